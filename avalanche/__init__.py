@@ -1,0 +1,16 @@
+"""avalanche: electron swarm parameters in gases by Monte Carlo simulation (null-collision method).
+
+Public entry points: :class:`Mixture`, :func:`get_set`, :func:`model_gas`, :func:`load_set`, :func:`swarm`.
+"""
+
+from ._version import __version__
+from .crosssections import CrossSectionSet, Process, load_set, make_set, process_from_table, save_set
+from .errors import AvalancheError, ConfigError, CrossSectionError, PhysicsWarning
+from .library import available_gases, get_set, model_gas, named_mixture
+from .mixture import Mixture
+
+__all__ = [
+    "__version__", "AvalancheError", "ConfigError", "CrossSectionError", "PhysicsWarning",
+    "CrossSectionSet", "Process", "load_set", "save_set", "make_set", "process_from_table",
+    "available_gases", "get_set", "model_gas", "named_mixture", "Mixture",
+]

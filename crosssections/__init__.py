@@ -1,0 +1,1 @@
+"""Shipped cross-section sets (package data; installed as ``avalanche.gasdata``)."""

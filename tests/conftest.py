@@ -1,0 +1,63 @@
+"""Shared test helpers."""
+
+from __future__ import annotations
+
+import os
+
+import pytest
+
+os.environ.setdefault("MPLBACKEND", "Agg")
+
+VALID_SET = '''format_version = 1
+
+[species]
+name = "Testium"
+formula = "Ts"
+mass_amu = 40.0
+ionization_energy_eV = 15.0
+
+[provenance]
+date = "2026-12-02"
+sources = ["invented test data for the loader"]
+
+[[process]]
+kind = "elastic"
+label = "momentum transfer"
+threshold_eV = 0.0
+energy_eV = [0.0, 1.0, 10.0, 100.0]
+cross_section = [1e-20, 2e-20, 1.5e-20, 5e-21]
+
+[[process]]
+kind = "excitation"
+label = "level 1"
+threshold_eV = 11.5
+energy_eV = [11.5, 20.0, 100.0]
+cross_section = [0.0, 1e-21, 5e-22]
+wavelength_nm = 107.8
+
+[[process]]
+kind = "ionization"
+label = "ionization"
+threshold_eV = 15.0
+opb_w_eV = 10.0
+energy_eV = [15.0, 100.0, 1000.0]
+cross_section = [0.0, 2.5e-20, 1.0e-20]
+'''
+
+
+@pytest.fixture
+def set_text():
+    """The text of a small valid cross-section file (invented data for loader tests only)."""
+    return VALID_SET
+
+
+@pytest.fixture
+def write_set(tmp_path):
+    """Write TOML text to a file in a temporary folder and return its path."""
+
+    def write(text: str, name: str = "test.toml"):
+        path = tmp_path / name
+        path.write_text(text)
+        return path
+
+    return write
