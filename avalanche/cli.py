@@ -130,6 +130,9 @@ def main(argv: Sequence[str] | None = None) -> int:
     except AvalancheError as exc:
         print(f"avalanche {args.command}: error: {exc}", file=sys.stderr)
         return 1
+    except BrokenPipeError:  # output piped into e.g. `head`
+        sys.stderr.close()
+        return 0
     except KeyboardInterrupt:
         print(f"avalanche {args.command}: interrupted", file=sys.stderr)
         return 130
