@@ -9,8 +9,26 @@ from .errors import AvalancheError, ConfigError, CrossSectionError, PhysicsWarni
 from .library import available_gases, get_set, model_gas, named_mixture
 from .mixture import Mixture
 
+
+def __getattr__(name):
+    # heavy modules (numba kernels, h5py) load on first use
+    if name == "swarm":
+        from .engine import swarm
+
+        return swarm
+    if name == "open_results":
+        from .results_file import open_results
+
+        return open_results
+    if name == "run_sweep":
+        from .sweep import run_sweep
+
+        return run_sweep
+    raise AttributeError(f"module 'avalanche' has no attribute '{name}'")
+
+
 __all__ = [
     "__version__", "AvalancheError", "ConfigError", "CrossSectionError", "PhysicsWarning",
     "CrossSectionSet", "Process", "load_set", "save_set", "make_set", "process_from_table",
-    "available_gases", "get_set", "model_gas", "named_mixture", "Mixture",
+    "available_gases", "get_set", "model_gas", "named_mixture", "Mixture", "swarm", "open_results", "run_sweep",
 ]

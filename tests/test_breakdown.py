@@ -92,9 +92,9 @@ def test_paschen_minimum_equals_the_closed_form_minimum():
     curve = paschen_curve(table, GAMMA, [1.0])
     v_min = math.e * B_N_TD * 1e-21 / A_N_M2 * THRESHOLD
     pd_min = math.e / A_N_M2 * THRESHOLD * sc.k * TEMPERATURE_K
-    assert curve.minimum_voltage_V == pytest.approx(v_min, rel=1e-3)
-    assert curve.minimum_pd_Pa_m == pytest.approx(pd_min, rel=1e-3)
-    assert curve.minimum_pd_Torr_cm == pytest.approx(curve.minimum_pd_Pa_m / sc.torr * 100.0, rel=1e-12)
+    assert curve.minimum_voltage_V == pytest.approx(v_min, rel=1e-3, abs=0)
+    assert curve.minimum_pd_Pa_m == pytest.approx(pd_min, rel=1e-3, abs=0)
+    assert curve.minimum_pd_Torr_cm == pytest.approx(curve.minimum_pd_Pa_m / sc.torr * 100.0, rel=1e-12, abs=0)
 
 
 def test_handbook_nitrogen_minimum_in_laboratory_units():
@@ -102,8 +102,8 @@ def test_handbook_nitrogen_minimum_in_laboratory_units():
     # memory): N2 with A = 12 /(cm Torr), B = 342 V/(cm Torr), γ = 0.01 has V_min = (B/A) e ln(101) = 357.6 V at
     # (p d)_min = (e/A) ln(101) = 1.045 Torr cm. 2000 nodes over E/p = 100–600: (p d)_min within 4.5e-4.
     curve = paschen_curve(handbook_table("N2", points=2000), GAMMA, [1.333])
-    assert curve.minimum_voltage_V == pytest.approx(B_V_PER_CM_TORR / A_PER_CM_TORR * math.e * THRESHOLD, rel=1e-3)
-    assert curve.minimum_pd_Torr_cm == pytest.approx(math.e / A_PER_CM_TORR * THRESHOLD, rel=1e-3)
+    assert curve.minimum_voltage_V == pytest.approx(B_V_PER_CM_TORR / A_PER_CM_TORR * math.e * THRESHOLD, rel=1e-3, abs=0)
+    assert curve.minimum_pd_Torr_cm == pytest.approx(math.e / A_PER_CM_TORR * THRESHOLD, rel=1e-3, abs=0)
 
 
 def test_paschen_curve_to_dict_is_json_with_the_public_keys():
@@ -133,7 +133,7 @@ def test_turning_point_of_the_left_branch_gives_nan_without_warning():
 def test_attaching_gas_has_the_constructed_critical_field():
     # Demo scenario with an analytic answer: η/N is set to α/N at 300 Td. Interpolation error in ln α ≤ 3.7e-5
     # there (see the tolerance note), which moves the crossing by ≤ 1.1e-5 in ln x.
-    assert critical_reduced_field_Td(townsend_table(attaching=True)) == pytest.approx(CRITICAL_TD, rel=2e-5)
+    assert critical_reduced_field_Td(townsend_table(attaching=True)) == pytest.approx(CRITICAL_TD, rel=2e-5, abs=0)
     assert critical_reduced_field_Td(townsend_table()) is None
 
 
@@ -143,7 +143,7 @@ def test_attaching_gas_paschen_curve_tends_to_the_critical_field():
     table = townsend_table(attaching=True)
     pd = np.array([1e3, 1e4, 1e5])
     curve = paschen_curve(table, GAMMA, pd)
-    assert curve.critical_reduced_field_Td == pytest.approx(CRITICAL_TD, rel=2e-5)
+    assert curve.critical_reduced_field_Td == pytest.approx(CRITICAL_TD, rel=2e-5, abs=0)
     field_Td = curve.breakdown_voltage_V / column_density_m2(pd) / 1e-21
     alpha_c = A_N_M2 * math.exp(-B_N_TD / CRITICAL_TD)
     predicted = THRESHOLD / (column_density_m2(pd) * alpha_c * B_N_TD / CRITICAL_TD**2)
@@ -170,7 +170,7 @@ def test_uniform_gap_ionization_integral_is_alpha_minus_eta_times_d():
     density = pressure_Pa / (sc.k * TEMPERATURE_K)
     result = ionization_integral(table, PlaneGap(gap_m), voltage_V, pressure_Pa, gamma=GAMMA)
     expected = table.effective_N(voltage_V / gap_m / density / 1e-21) * density * gap_m
-    assert result.value == pytest.approx(expected, rel=1e-13)
+    assert result.value == pytest.approx(expected, rel=1e-13, abs=0)
     assert result.ionization_region_m == (0.0, gap_m) and result.extrapolated_fraction == 0.0
 
 
@@ -184,7 +184,7 @@ def test_townsend_verdict_switches_at_the_paschen_voltage():
     high = ionization_integral(table, PlaneGap(gap_m), 1.005 * v_paschen, pressure_Pa, gamma=GAMMA)
     assert low.townsend_met is False and high.townsend_met is True
     voltage = breakdown_voltage(table, PlaneGap(gap_m), pressure_Pa, gamma=GAMMA)
-    assert voltage == pytest.approx(v_paschen, rel=1e-3)
+    assert voltage == pytest.approx(v_paschen, rel=1e-3, abs=0)
 
 
 def _coaxial_K(voltage_V, density_m3, a_m, b_m, eta_N_m2=0.0):
@@ -204,7 +204,7 @@ def test_coaxial_ionization_integral_matches_the_analytic_integral():
     table = townsend_table()
     density = 1e4 / (sc.k * TEMPERATURE_K)
     result = ionization_integral(table, CoaxialGap(1e-3, 1e-2), 5e3, 1e4)
-    assert result.value == pytest.approx(_coaxial_K(5e3, density, 1e-3, 1e-2), rel=1e-3)
+    assert result.value == pytest.approx(_coaxial_K(5e3, density, 1e-3, 1e-2), rel=1e-3, abs=0)
 
 
 def test_isolated_sphere_ionization_integral_matches_the_analytic_integral():
@@ -217,7 +217,7 @@ def test_isolated_sphere_ionization_integral_matches_the_analytic_integral():
     expected = A_N_M2 * density * math.sqrt(math.pi * voltage * radius / (4.0 * b_n)) * erfc(
         radius * math.sqrt(b_n / (voltage * radius)))
     result = ionization_integral(table, IsolatedSphere(radius), voltage, 1e4)
-    assert result.value == pytest.approx(expected, rel=1e-3)
+    assert result.value == pytest.approx(expected, rel=1e-3, abs=0)
     assert result.extrapolated_fraction < 1e-12
 
 
@@ -228,10 +228,10 @@ def test_attaching_coaxial_integral_stops_at_the_critical_radius():
     density = pressure_Pa / (sc.k * TEMPERATURE_K)
     eta = A_N_M2 * math.exp(-B_N_TD / CRITICAL_TD)
     result = ionization_integral(table, CoaxialGap(a_m, b_m), voltage_V, pressure_Pa, gamma=GAMMA)
-    assert result.value == pytest.approx(_coaxial_K(voltage_V, density, a_m, b_m, eta), rel=1e-3)
+    assert result.value == pytest.approx(_coaxial_K(voltage_V, density, a_m, b_m, eta), rel=1e-3, abs=0)
     r_c = voltage_V / (density * math.log(b_m / a_m) * CRITICAL_TD * 1e-21)
     assert result.ionization_region_m[0] == a_m
-    assert result.ionization_region_m[1] == pytest.approx(r_c, rel=2e-5)
+    assert result.ionization_region_m[1] == pytest.approx(r_c, rel=2e-5, abs=0)
 
 
 def test_streamer_breakdown_voltage_of_an_attaching_coaxial_gap():
@@ -243,7 +243,7 @@ def test_streamer_breakdown_voltage_of_an_attaching_coaxial_gap():
     eta = A_N_M2 * math.exp(-B_N_TD / CRITICAL_TD)
     voltage = breakdown_voltage(table, CoaxialGap(a_m, b_m), pressure_Pa, criterion="streamer")
     expected = brentq(lambda v: _coaxial_K(v, density, a_m, b_m, eta) - STREAMER_THRESHOLD, 1e3, 1e6, rtol=1e-12)
-    assert voltage == pytest.approx(expected, rel=1e-3)
+    assert voltage == pytest.approx(expected, rel=1e-3, abs=0)
 
 
 def test_fields_beyond_the_table_are_reported():

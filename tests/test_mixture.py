@@ -14,7 +14,7 @@ def test_default_is_300K_and_one_atmosphere():
     mix = Mixture({"maxwell": 1.0})
     assert mix.temperature_K == 300.0
     # ideal gas N = p/(kT) with p = 1 atm (scipy.constants: CODATA)
-    assert mix.number_density_m3 == pytest.approx(sc.atm / (sc.k * 300.0), rel=1e-12)
+    assert mix.number_density_m3 == pytest.approx(sc.atm / (sc.k * 300.0), rel=1e-12, abs=0)
 
 
 def test_string_form_and_pressure():

@@ -1,0 +1,480 @@
+"""Numba kernels of the null-collision Monte Carlo: free flight, collision kinematics, one chunk of a swarm.
+
+Everything here works on plain float64/int64/uint64 arrays and scalars, writes into preallocated outputs and never
+raises: anomalies (an electron above the energy grid, a full particle store, a collision frequency above the trial
+frequency) are counted in an output array that Python checks after each chunk. This module is the one place that
+sets the jit options; every function is a plain Python function underneath, so the same source runs with
+``NUMBA_DISABLE_JIT=1`` (slowly) in a test.
+
+Conventions
+-----------
+The electric field points along −z, so the electric force on an electron, and its drift, point along +z: the
+acceleration passed to the kernels is ``e E / m`` along +z and every reported drift velocity is positive.
+Velocities are in m s⁻¹, positions in m, times in s, energies in eV.
+
+Random numbers come from xoshiro256** (Blackman & Vigna 2021, ACM Trans. Math. Softw. 47 36), one generator per
+replica, held in four local uint64 scalars inside the loop (state in and out through a ``(R, 4)`` array).
+
+References
+----------
+Skullerud H R (1968) J. Phys. D 1 1567, doi:10.1088/0022-3727/1/11/423 (null-collision method).
+Okhrimovskyy A, Bogaerts A & Gijbels R (2002) Phys. Rev. E 65 037402, doi:10.1103/PhysRevE.65.037402
+(screened-Coulomb angular distribution, their eq. (9) for cos χ and eq. (11) for σ_m/σ_T; from memory).
+Opal C B, Peterson W K & Beaty E C (1971) J. Chem. Phys. 55 4100, doi:10.1063/1.1676707 (secondary energies).
+"""
+
+from __future__ import annotations
+
+import math
+
+import numba
+import numpy as np
+from numba import prange
+
+from .constants import ELEMENTARY_CHARGE_C, ELECTRON_MASS_kg
+
+JIT_OPTIONS = {"cache": True, "error_model": "numpy", "fastmath": False, "nogil": True}
+"""The jit options of every kernel (fastmath stays off: results must not depend on reassociation)."""
+jit = numba.njit(**JIT_OPTIONS)
+jit_parallel = numba.njit(parallel=True, **JIT_OPTIONS)
+
+ENERGY_PER_SPEED2_eV = 0.5 * ELECTRON_MASS_kg / ELEMENTARY_CHARGE_C
+"""ε [eV] = ENERGY_PER_SPEED2_eV · v² [m² s⁻²]."""
+TWO_PI = 2.0 * math.pi
+UNIT_53 = 1.0 / 9007199254740992.0  # 2**-53
+
+# Process action codes (the kernel's process table is generic: a new action is a new code here).
+ACTION_ELASTIC = 0
+ACTION_EXCITATION = 1
+ACTION_IONIZATION = 2
+ACTION_ATTACHMENT = 3
+# Angular distributions.
+SCATTER_ISOTROPIC = 0
+SCATTER_SCREENED_COULOMB = 1
+# Energy sharing rules of ionization.
+SHARING_EQUAL = 0
+SHARING_UNIFORM = 1
+SHARING_OPB = 2
+
+# Columns of the per-replica float tallies of one chunk (sums over trial events unless noted).
+SUM_ENERGY = 0          # Σ ε [eV]
+SUM_VZ = 1              # Σ v_z [m/s]
+SUM_ZVZ = 2             # Σ (z − z_ref) v_z [m²/s]
+SUM_Z = 3               # Σ (z − z_ref) [m]
+SUM_XYV = 4             # Σ (x − x_ref) v_x + (y − y_ref) v_y [m²/s]
+SUM_EXPOSURE = 5        # ∫ n dt over the chunk [s] (electron-seconds, unweighted)
+SUM_MAX_ENERGY = 6      # largest energy met at an event or a chunk end [eV] (a maximum, not a sum)
+N_SUMS = 7
+# Columns of the per-replica integer counters of one chunk.
+COUNT_EVENTS = 0        # trial events (real and null)
+COUNT_REAL = 1          # real collisions
+COUNT_CREATED = 2       # electrons created (ionization)
+COUNT_REMOVED = 3       # electrons removed (attachment)
+COUNT_EEDF_OVERFLOW = 4  # trial events above the last histogram bin
+COUNT_ABOVE_BOUND = 5   # interpolated collision frequency above the trial frequency (must stay 0)
+COUNT_ABOVE_GRID = 6    # 1 if an electron left the energy grid: the chunk must be redone on a larger grid
+COUNT_OVERFLOW = 7      # 1 if the particle store was full: the chunk must be redone with a larger store
+N_COUNTS = 8
+
+
+# ------------------------------------------------------------------------------------------- random numbers
+
+@jit
+def _rotl(x, k):
+    return (x << np.uint64(k)) | (x >> np.uint64(64 - k))
+
+
+@jit
+def next_uniform(s0, s1, s2, s3):
+    """One xoshiro256** step: a uniform double in [0, 1) from the top 53 bits, and the new state."""
+    result = _rotl(s1 * np.uint64(5), 7) * np.uint64(9)
+    t = s1 << np.uint64(17)
+    s2 ^= s0
+    s3 ^= s1
+    s1 ^= s2
+    s0 ^= s3
+    s2 ^= t
+    s3 = _rotl(s3, 45)
+    return (result >> np.uint64(11)) * UNIT_53, s0, s1, s2, s3
+
+
+# ------------------------------------------------------------------------------------------ free flight
+
+@jit
+def field_flight(t, tau, accel_dc, accel_ac, omega, phase):
+    """Velocity change and field-induced displacement along z during a free flight.
+
+    The acceleration is a(t) = a_dc + a_ac sin(ω t + φ). With the impulse functions F(t) = ∫₀ᵗ a dt' and
+    G(t) = ∫₀ᵗ F dt', a flight from t to t + τ gives Δv_z = F(t+τ) − F(t) and z(t+τ) = z(t) + v_z(t) τ + Δz with
+    Δz = G(t+τ) − G(t) − F(t) τ. The DC branch (a_ac = 0) uses a τ and a τ²/2 directly (no cancellation).
+
+    Parameters
+    ----------
+    t, tau : float
+        Start time and duration of the flight [s].
+    accel_dc, accel_ac : float
+        Constant and oscillating parts of the acceleration e E / m along +z [m s⁻²].
+    omega, phase : float
+        Angular frequency [rad s⁻¹] and phase [rad] of the oscillating part.
+
+    Returns
+    -------
+    (float, float)
+        Δv_z [m s⁻¹] and Δz [m].
+    """
+    if accel_ac == 0.0:
+        return accel_dc * tau, 0.5 * accel_dc * tau * tau
+    if omega == 0.0:
+        a = accel_dc + accel_ac * math.sin(phase)
+        return a * tau, 0.5 * a * tau * tau
+    theta0 = omega * t + phase
+    theta1 = theta0 + omega * tau
+    scale = accel_ac / omega
+    dv = accel_dc * tau + scale * (math.cos(theta0) - math.cos(theta1))
+    dz = 0.5 * accel_dc * tau * tau + scale * (tau * math.cos(theta0) - (math.sin(theta1) - math.sin(theta0)) / omega)
+    return dv, dz
+
+
+# ----------------------------------------------------------------------------------- collision kinematics
+
+@jit
+def rotate_direction(ux, uy, uz, cos_chi, phi):
+    """The unit vector at polar angle χ (``cos_chi``) and azimuth φ [rad] about the unit vector (ux, uy, uz)."""
+    sin_chi = math.sqrt(max(0.0, 1.0 - cos_chi * cos_chi))
+    cos_phi = math.cos(phi)
+    sin_phi = math.sin(phi)
+    rho2 = ux * ux + uy * uy
+    if rho2 < 1e-20:
+        sign = 1.0 if uz >= 0.0 else -1.0
+        return sin_chi * cos_phi, sin_chi * sin_phi, sign * cos_chi
+    rho = math.sqrt(rho2)
+    nx = ux * cos_chi + sin_chi * (ux * uz * cos_phi - uy * sin_phi) / rho
+    ny = uy * cos_chi + sin_chi * (uy * uz * cos_phi + ux * sin_phi) / rho
+    nz = uz * cos_chi - sin_chi * rho * cos_phi
+    return nx, ny, nz
+
+
+@jit
+def scattering_cosine(model, energy_eV, u):
+    """cos χ of one scattering event from a uniform number ``u`` in [0, 1).
+
+    Isotropic: cos χ = 1 − 2u. Screened Coulomb (Okhrimovskyy et al. 2002, eq. (9), from memory):
+    cos χ = 1 − 2u(1 − ξ)/(1 + ξ(1 − 2u)) with ξ(ε) = 4ε/(1 + 4ε), ε in eV.
+    """
+    if model == SCATTER_ISOTROPIC:
+        return 1.0 - 2.0 * u
+    xi = 4.0 * energy_eV / (1.0 + 4.0 * energy_eV)
+    return 1.0 - 2.0 * u * (1.0 - xi) / (1.0 + xi * (1.0 - 2.0 * u))
+
+
+@jit
+def new_direction(model, ux, uy, uz, energy_eV, u, phi):
+    """Direction after scattering from the unit vector (ux, uy, uz), at ``energy_eV`` [eV].
+
+    Isotropic: uniform on the sphere (cos θ = 1 − 2u, azimuth φ), whatever the incident direction. Screened
+    Coulomb: turned by χ from :func:`scattering_cosine` and azimuth φ about the incident direction.
+    """
+    if model == SCATTER_ISOTROPIC:
+        cos_t = 1.0 - 2.0 * u
+        sin_t = math.sqrt(max(0.0, 1.0 - cos_t * cos_t))
+        return sin_t * math.cos(phi), sin_t * math.sin(phi), cos_t
+    return rotate_direction(ux, uy, uz, scattering_cosine(model, energy_eV, u), phi)
+
+
+@jit
+def elastic_velocity(vx, vy, vz, tx, ty, tz, electron_fraction, target_fraction, model, energy_eV, u, phi):
+    """Electron velocity after an elastic collision with a target of velocity (tx, ty, tz).
+
+    Exact two-body kinematics: the relative velocity g = v − V turns in the centre-of-mass frame at constant |g|
+    (direction from :func:`new_direction`), and v' = V_cm + M/(m + M) g'. ``electron_fraction`` = m/(m + M),
+    ``target_fraction`` = M/(m + M). The target's velocity after the collision is V_cm − m/(m + M) g'.
+    """
+    gx = vx - tx
+    gy = vy - ty
+    gz = vz - tz
+    g = math.sqrt(gx * gx + gy * gy + gz * gz)
+    if g == 0.0:
+        return vx, vy, vz
+    nx, ny, nz = new_direction(model, gx / g, gy / g, gz / g, energy_eV, u, phi)
+    scale = target_fraction * g
+    return (electron_fraction * vx + target_fraction * tx + scale * nx,
+            electron_fraction * vy + target_fraction * ty + scale * ny,
+            electron_fraction * vz + target_fraction * tz + scale * nz)
+
+
+@jit
+def turned_velocity(vx, vy, vz, speed, model, energy_eV, u, phi):
+    """A velocity of magnitude ``speed`` [m/s] scattered from the direction of (vx, vy, vz) at ``energy_eV``.
+
+    Used for inelastic collisions in the laboratory frame with the target at rest (recoil neglected: an error of
+    order m/M in the energy, common practice).
+    """
+    v = math.sqrt(vx * vx + vy * vy + vz * vz)
+    if v == 0.0:
+        nx, ny, nz = new_direction(model, 0.0, 0.0, 1.0, energy_eV, u, phi)
+    else:
+        nx, ny, nz = new_direction(model, vx / v, vy / v, vz / v, energy_eV, u, phi)
+    return speed * nx, speed * ny, speed * nz
+
+
+@jit
+def secondary_energy_eV(excess_eV, rule, w_eV, u):
+    """Energy [eV] of the ejected electron when ``excess_eV`` = ε − I is shared; the primary keeps the rest.
+
+    equal: half each. uniform: every split equally likely. Opal–Peterson–Beaty (1971): the slower electron's
+    energy ε_s ∈ [0, excess/2] with density ∝ 1/(1 + (ε_s/w)²), sampled as ε_s = w tan(u atan(excess/(2w))).
+    """
+    if rule == SHARING_EQUAL:
+        return 0.5 * excess_eV
+    if rule == SHARING_UNIFORM:
+        return u * excess_eV
+    return w_eV * math.tan(u * math.atan(0.5 * excess_eV / w_eV))
+
+
+@jit
+def speed_from_energy(energy_eV):
+    """Electron speed [m/s] of kinetic energy ``energy_eV`` [eV]."""
+    return math.sqrt(energy_eV / ENERGY_PER_SPEED2_eV)
+
+
+# ---------------------------------------------------------------------------------------------- one chunk
+
+@jit
+def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc, accel_ac, omega, phase,
+                     inv_cell_eV, n_cells, nu_star, nu_total, nu_cumulative, action, loss_eV, electron_fraction,
+                     target_fraction, thermal_speed, scatter, sharing, w_eV, table_max_eV, reference,
+                     hist_inv_width_eV, sums, counts, hist, process_counts, extrapolated):
+    s0 = rng[r, 0]
+    s1 = rng[r, 1]
+    s2 = rng[r, 2]
+    s3 = rng[r, 3]
+    capacity = x.shape[1]
+    n_bins = hist.shape[1]
+    n_proc = action.shape[0]
+    for b in range(n_bins):
+        hist[r, b] = 0
+    for k in range(n_proc):
+        process_counts[r, k] = 0
+        extrapolated[r, k] = 0
+    x_ref = reference[r, 0]
+    y_ref = reference[r, 1]
+    z_ref = reference[r, 2]
+    sum_energy = 0.0
+    sum_vz = 0.0
+    sum_zvz = 0.0
+    sum_z = 0.0
+    sum_xyv = 0.0
+    exposure = 0.0
+    max_energy = 0.0
+    events = 0
+    real = 0
+    created = 0
+    removed = 0
+    eedf_overflow = 0
+    above_bound = 0
+    status = 0  # 0: fine, 1: above the energy grid, 2: particle store full
+    inv_nu_star = 1.0 / nu_star
+    n = count[r]
+    n_initial = n
+    write = 0
+    i = 0
+    while i < n:
+        px = x[r, i]
+        py = y[r, i]
+        pz = z[r, i]
+        ux = vx[r, i]
+        uy = vy[r, i]
+        uz = vz[r, i]
+        t = t0 if i < n_initial else birth[r, i]
+        alive = True
+        while True:
+            u, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
+            tau = -math.log(1.0 - u) * inv_nu_star
+            last = t + tau >= t1
+            if last:
+                tau = t1 - t
+            dvz, dz = field_flight(t, tau, accel_dc, accel_ac, omega, phase)
+            px += ux * tau
+            py += uy * tau
+            pz += uz * tau + dz
+            uz += dvz
+            t += tau
+            exposure += tau
+            energy = ENERGY_PER_SPEED2_eV * (ux * ux + uy * uy + uz * uz)
+            if energy > max_energy:
+                max_energy = energy
+            e_cell = energy * inv_cell_eV
+            if e_cell >= n_cells:
+                status = 1
+                break
+            if last:
+                break
+            # A trial event: with a constant trial frequency these are Poisson times, so sums of the
+            # pre-collision state over them are time integrals of the swarm (divided by ν*).
+            events += 1
+            sum_energy += energy
+            sum_vz += uz
+            dzr = pz - z_ref
+            sum_zvz += dzr * uz
+            sum_z += dzr
+            sum_xyv += (px - x_ref) * ux + (py - y_ref) * uy
+            b = int(energy * hist_inv_width_eV)
+            if b < n_bins:
+                hist[r, b] += 1
+            else:
+                eedf_overflow += 1
+            u, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
+            level = u * nu_star
+            c = int(e_cell)
+            f = e_cell - c
+            low = nu_total[c]
+            nu = low + f * (nu_total[c + 1] - low)
+            if nu > nu_star:
+                above_bound += 1
+            if level >= nu:
+                continue  # null collision
+            k = 0
+            while k < n_proc - 1:
+                low = nu_cumulative[c, k]
+                if level < low + f * (nu_cumulative[c + 1, k] - low):
+                    break
+                k += 1
+            if energy < loss_eV[k]:
+                continue  # inside the threshold's grid cell but below the threshold: rejected like a null event
+            real += 1
+            process_counts[r, k] += 1
+            if energy > table_max_eV[k]:
+                extrapolated[r, k] += 1
+            kind = action[k]
+            if kind == ACTION_ATTACHMENT:
+                alive = False
+                removed += 1
+                break
+            u, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
+            u_phi, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
+            phi = TWO_PI * u_phi
+            if kind == ACTION_ELASTIC:
+                tx = 0.0
+                ty = 0.0
+                tz = 0.0
+                if thermal_speed[k] > 0.0:
+                    a1, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
+                    a2, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
+                    a3, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
+                    a4, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
+                    radius = thermal_speed[k] * math.sqrt(-2.0 * math.log(1.0 - a1))
+                    tx = radius * math.cos(TWO_PI * a2)
+                    ty = radius * math.sin(TWO_PI * a2)
+                    tz = thermal_speed[k] * math.sqrt(-2.0 * math.log(1.0 - a3)) * math.cos(TWO_PI * a4)
+                ux, uy, uz = elastic_velocity(ux, uy, uz, tx, ty, tz, electron_fraction[k], target_fraction[k],
+                                              scatter[k], energy, u, phi)
+            elif kind == ACTION_EXCITATION:
+                new_energy = energy - loss_eV[k]
+                ux, uy, uz = turned_velocity(ux, uy, uz, speed_from_energy(new_energy), scatter[k], new_energy, u,
+                                             phi)
+            else:  # ACTION_IONIZATION
+                if n >= capacity:
+                    status = 2
+                    break
+                excess = energy - loss_eV[k]
+                a1, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
+                a2, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
+                a3, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
+                ejected = secondary_energy_eV(excess, sharing[k], w_eV[k], a1)
+                kept = excess - ejected
+                wx, wy, wz = turned_velocity(ux, uy, uz, speed_from_energy(ejected), scatter[k], ejected, a2,
+                                             TWO_PI * a3)
+                ux, uy, uz = turned_velocity(ux, uy, uz, speed_from_energy(kept), scatter[k], kept, u, phi)
+                x[r, n] = px
+                y[r, n] = py
+                z[r, n] = pz
+                vx[r, n] = wx
+                vy[r, n] = wy
+                vz[r, n] = wz
+                birth[r, n] = t
+                n += 1
+                created += 1
+        if status != 0:
+            break
+        if alive:
+            x[r, write] = px
+            y[r, write] = py
+            z[r, write] = pz
+            vx[r, write] = ux
+            vy[r, write] = uy
+            vz[r, write] = uz
+            write += 1
+        i += 1
+    if status == 0:
+        count[r] = write
+    rng[r, 0] = s0
+    rng[r, 1] = s1
+    rng[r, 2] = s2
+    rng[r, 3] = s3
+    sums[r, SUM_ENERGY] = sum_energy
+    sums[r, SUM_VZ] = sum_vz
+    sums[r, SUM_ZVZ] = sum_zvz
+    sums[r, SUM_Z] = sum_z
+    sums[r, SUM_XYV] = sum_xyv
+    sums[r, SUM_EXPOSURE] = exposure
+    sums[r, SUM_MAX_ENERGY] = max_energy
+    counts[r, COUNT_EVENTS] = events
+    counts[r, COUNT_REAL] = real
+    counts[r, COUNT_CREATED] = created
+    counts[r, COUNT_REMOVED] = removed
+    counts[r, COUNT_EEDF_OVERFLOW] = eedf_overflow
+    counts[r, COUNT_ABOVE_BOUND] = above_bound
+    counts[r, COUNT_ABOVE_GRID] = 1 if status == 1 else 0
+    counts[r, COUNT_OVERFLOW] = 1 if status == 2 else 0
+
+
+@jit_parallel
+def advance_chunk(x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc, accel_ac, omega, phase,
+                  inv_cell_eV, n_cells, nu_star, nu_total, nu_cumulative, action, loss_eV, electron_fraction,
+                  target_fraction, thermal_speed, scatter, sharing, w_eV, table_max_eV, reference,
+                  hist_inv_width_eV, sums, counts, hist, process_counts, extrapolated):
+    """Advance every replica's electrons from time ``t0`` to ``t1`` [s] (one chunk), in parallel over replicas.
+
+    Each replica is a serial simulation with its own generator state, so the result does not depend on the
+    number of threads. Within a replica the electrons are followed one by one to ``t1``; secondaries are
+    appended to the replica's store and followed in the same pass from their birth time; survivors are written
+    back compacted, and ``count[r]`` becomes their number.
+
+    Parameters
+    ----------
+    x, y, z, vx, vy, vz : ndarray, shape (R, capacity)
+        Positions [m] and velocities [m/s]; the first ``count[r]`` entries of row r are live. Updated in place.
+    birth : ndarray, shape (R, capacity)
+        Work space: birth times [s] of the secondaries created in the chunk.
+    count : ndarray of int64, shape (R,)
+        Live electrons per replica (in: at ``t0``; out: at ``t1``, unless the chunk was aborted).
+    rng : ndarray of uint64, shape (R, 4)
+        xoshiro256** states, advanced in place.
+    t0, t1 : float
+        Chunk start and end [s].
+    accel_dc, accel_ac, omega, phase : float
+        Field as an acceleration e E(t)/m along +z, see :func:`field_flight`.
+    inv_cell_eV, n_cells : float, int
+        The energy grid: node i is at i / inv_cell_eV [eV], i = 0 … n_cells.
+    nu_star : float
+        Trial collision frequency [s⁻¹], ≥ every value of ``nu_total``.
+    nu_total : ndarray, shape (n_cells + 1,)
+        Total collision frequency at the nodes [s⁻¹].
+    nu_cumulative : ndarray, shape (n_cells + 1, P)
+        Cumulative collision frequencies of the P processes at the nodes [s⁻¹].
+    action, loss_eV, electron_fraction, target_fraction, thermal_speed, scatter, sharing, w_eV, table_max_eV :
+        Per-process tables: action code, energy loss [eV], m/(m+M), M/(m+M), target thermal speed √(kT/M)
+        [m/s], angular distribution code, energy sharing code, OPB w [eV], last tabulated energy [eV].
+    reference : ndarray, shape (R, 3)
+        Reference position (x, y, z) [m] of each replica, subtracted in the position tallies.
+    hist_inv_width_eV : float
+        1 / width of the energy histogram's bins [eV⁻¹].
+    sums, counts, hist, process_counts, extrapolated : ndarray
+        Outputs, overwritten: float tallies (R, N_SUMS), counters (R, N_COUNTS), energy histogram (R, B) of trial
+        events, real collisions per process (R, P), and those beyond the process's table (R, P).
+    """
+    for r in prange(x.shape[0]):
+        _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc, accel_ac, omega, phase,
+                         inv_cell_eV, n_cells, nu_star, nu_total, nu_cumulative, action, loss_eV,
+                         electron_fraction, target_fraction, thermal_speed, scatter, sharing, w_eV, table_max_eV,
+                         reference, hist_inv_width_eV, sums, counts, hist, process_counts, extrapolated)

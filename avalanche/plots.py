@@ -1,0 +1,709 @@
+"""Figures of swarm results for reports and papers: swarm parameters against E/N, energy distributions,
+phase-resolved AC panels, steady-state Townsend profiles, Paschen curves and emission stick spectra.
+
+Every function returns a :class:`matplotlib.figure.Figure` built without pyplot (no global state, any backend);
+:func:`save_figure` writes it as PNG and PDF. Sizes follow a two-column paper: 7 in wide, 9 pt text. Each plotted
+series carries a ``gid`` (e.g. ``"drift_velocity_bulk"``, ``"handbook_alpha_N"``) so its data can be read back
+from the figure — the tests do that to check that what is drawn is what the file holds.
+
+Log axes cannot show zero or negative values: a log-scaled panel leaves such points out (a panel with a negative
+value is drawn on a linear axis instead).
+"""
+
+from __future__ import annotations
+
+import functools
+import math
+import textwrap
+from collections.abc import Mapping, Sequence
+from dataclasses import dataclass, field
+from pathlib import Path
+
+import matplotlib
+import numpy as np
+from matplotlib.figure import Figure
+from matplotlib.ticker import FuncFormatter, LogLocator, NullFormatter
+
+from .breakdown import CAUTION, PaschenCurve
+from .coefficients import HANDBOOK_TOWNSEND, handbook_alpha_N, handbook_validity_range_Td
+from .constants import BOLTZMANN_J_K, TORR_Pa, TOWNSEND_V_m2
+from .errors import ConfigError
+from .tables import QUANTITY_UNITS, RATE_PREFIX, SwarmTable, did_you_mean, quantity_unit
+
+__all__ = [
+    "PAPER_STYLE", "FORMATS", "save_figure", "ReferenceData", "read_reference", "handbook_gas_name",
+    "swarm_panels", "plot_swarm_parameters", "plot_eedf", "PhaseCurve", "plot_phase_resolved", "SSTProfile",
+    "plot_sst_profiles", "plot_paschen", "plot_emission_spectrum", "plot_phase_resolved_emission",
+]
+
+PAPER_STYLE = {
+    "font.size": 9, "axes.labelsize": 9, "axes.titlesize": 9, "legend.fontsize": 7, "xtick.labelsize": 8,
+    "ytick.labelsize": 8, "lines.linewidth": 1.2, "lines.markersize": 3.5, "axes.grid": True, "grid.alpha": 0.3,
+    "savefig.dpi": 300, "savefig.bbox": "tight", "pdf.fonttype": 42, "ps.fonttype": 42,
+}
+"""Matplotlib settings used for every figure (readable at print size; fonts embedded as TrueType in PDF)."""
+
+FORMATS = ("png", "pdf")
+"""File formats :func:`save_figure` writes by default."""
+
+_WIDTH_IN = 7.0
+_PANEL_HEIGHT_IN = 2.5
+
+_PRETTY_UNITS = {
+    "m/s": r"m s$^{-1}$", "1/(m s)": r"m$^{-1}$ s$^{-1}$", "m2": r"m$^{2}$", "m3/s": r"m$^{3}$ s$^{-1}$",
+    "1/s": r"s$^{-1}$", "1/(V m s)": r"V$^{-1}$ m$^{-1}$ s$^{-1}$", "eV^-3/2": r"eV$^{-3/2}$", "1/m": r"m$^{-1}$",
+}
+
+PAIRS = {
+    "drift_velocity": ("drift_velocity_flux", "drift_velocity_bulk"),
+    "long_diffusion_N": ("long_diffusion_N_flux", "long_diffusion_N_bulk"),
+    "trans_diffusion_N": ("trans_diffusion_N_flux", "trans_diffusion_N_bulk"),
+}
+"""Panels that show a flux and a bulk quantity together."""
+
+_COMPANIONS = {"alpha_N_simple": "alpha_N", "eta_N_simple": "eta_N"}
+"""Quantities drawn on another quantity's panel (the ν/(N W) estimates beside the diffusion-corrected ones)."""
+
+_PANEL_LABELS = {
+    "mean_energy_eV": "mean energy ⟨ε⟩",
+    "characteristic_energy_eV": "characteristic energy D$_T$/μ",
+    "drift_velocity": "drift velocity W",
+    "mobility_N": "reduced mobility μN",
+    "long_diffusion_N": "longitudinal diffusion N D$_L$",
+    "trans_diffusion_N": "transverse diffusion N D$_T$",
+    "alpha_N": "ionization coefficient α/N",
+    "eta_N": "attachment coefficient η/N",
+    "effective_alpha_N": "effective ionization coefficient (α−η)/N",
+    "effective_ionization_frequency": "effective ionization frequency",
+    "ionization_rate_coefficient": "ionization rate coefficient",
+    "attachment_rate_coefficient": "attachment rate coefficient",
+    "excitation_rate_coefficient": "total excitation rate coefficient",
+    "rate_coefficients": "rate coefficients",
+}
+
+_SERIES_LABELS = {"flux": "flux", "bulk": "bulk", "simple": "ν/(N W)"}
+
+DEFAULT_PANELS = ("mean_energy_eV", "drift_velocity", "long_diffusion_N", "trans_diffusion_N", "alpha_N", "eta_N")
+"""Panels drawn when no quantities are chosen (those the data have; η/N only where it is nonzero)."""
+
+_PHASE_DEFAULTS = ("mean_energy_eV", "ionization_rate_coefficient", "drift_velocity_flux")
+
+
+def _pretty_unit(unit: str) -> str:
+    return _PRETTY_UNITS.get(unit, unit)
+
+
+def _axis_label(label: str, unit: str) -> str:
+    return f"{label} [{_pretty_unit(unit)}]" if unit else label
+
+
+def _new_figure(panels: int, columns: int = 2, height_in: float = _PANEL_HEIGHT_IN):
+    columns = max(1, min(columns, panels))
+    rows = math.ceil(panels / columns)
+    figure = Figure(figsize=(_WIDTH_IN if columns > 1 else _WIDTH_IN / 1.6, height_in * rows), layout="constrained")
+    axes = figure.subplots(rows, columns, squeeze=False).ravel()
+    for extra in axes[panels:]:
+        extra.remove()
+    return figure, list(axes[:panels])
+
+
+def _styled(function):
+    """Run a plotting function under :data:`PAPER_STYLE` (text sizes are fixed when artists are created)."""
+
+    @functools.wraps(function)
+    def styled(*args, **kwargs):
+        with matplotlib.rc_context(PAPER_STYLE):
+            return function(*args, **kwargs)
+
+    return styled
+
+
+def save_figure(figure: Figure, stem, formats: Sequence[str] = FORMATS) -> list[Path]:
+    """Write ``figure`` to ``stem.<format>`` for every format; returns the paths written.
+
+    Raises
+    ------
+    ConfigError
+        For a format other than png, pdf or svg.
+    """
+    stem = Path(stem)
+    stem.parent.mkdir(parents=True, exist_ok=True)
+    paths = []
+    for fmt in formats:
+        if fmt not in ("png", "pdf", "svg"):
+            raise ConfigError(f"save_figure: format {fmt!r}{did_you_mean(fmt, ('png', 'pdf', 'svg'))}; choose "
+                              "png, pdf or svg")
+        path = stem.with_name(f"{stem.name}.{fmt}")
+        with matplotlib.rc_context(PAPER_STYLE):
+            figure.savefig(path)
+        paths.append(path)
+    return paths
+
+
+def _errorbar(ax, x, y, err, gid: str, label: str, log_y: bool, **style):
+    """Error-bar series of the finite points (positive ones on a log axis), tagged with ``gid``."""
+    x, y = np.asarray(x, dtype=float), np.asarray(y, dtype=float)
+    err = np.zeros_like(y) if err is None else np.asarray(err, dtype=float)
+    keep = np.isfinite(x) & np.isfinite(y) & ((y > 0.0) if log_y else True)
+    if not np.any(keep):
+        return None
+    container = ax.errorbar(x[keep], y[keep], yerr=np.nan_to_num(err[keep]), label=label,
+                            **({"fmt": "o-", "capsize": 2} | style))
+    container.lines[0].set_gid(gid)
+    return container
+
+
+def _log_y(ax) -> None:
+    """Log y axis whose range follows the data points, not error bars reaching towards zero (those run off the
+    bottom of the panel)."""
+    ax.set_yscale("log")
+    values = [np.asarray(line.get_ydata(), dtype=float) for line in ax.lines if line.get_gid()]
+    positive = np.concatenate(values)[np.concatenate(values) > 0] if values else np.empty(0)
+    if positive.size:
+        low, high = float(positive.min()), float(positive.max())
+        ax.set_ylim(low / 2.0, max(ax.get_ylim()[1], high * 1.5))
+
+
+def _legend(ax, **kwargs) -> None:
+    """A legend sized to its entries (many entries: two small columns), if there is anything to label."""
+    handles, labels = ax.get_legend_handles_labels()
+    if not handles:
+        return
+    if len(handles) > 6:  # below the axes, so the curves stay visible
+        ax.legend(loc="upper center", bbox_to_anchor=(0.5, -0.25), fontsize=5.5, ncols=2, **kwargs)
+    else:
+        ax.legend(loc="best", **kwargs)
+
+
+def _log_x(ax, values) -> None:
+    """Log x axis labelled with plain numbers: 1-2-5 ticks within two decades, decades beyond."""
+    finite = np.asarray(values, dtype=float)
+    finite = finite[np.isfinite(finite) & (finite > 0)]
+    ax.set_xscale("log")
+    decades = math.log10(finite.max() / finite.min()) if finite.size else 0.0
+    ax.xaxis.set_major_locator(LogLocator(subs=(1.0,) if decades > 2.5 else (1.0, 2.0, 5.0)))
+    ax.xaxis.set_major_formatter(FuncFormatter(lambda v, _: f"{v:g}"))
+    ax.xaxis.set_minor_formatter(NullFormatter())
+
+
+def _use_log(values: Sequence[np.ndarray]) -> bool:
+    finite = np.concatenate([np.asarray(v, dtype=float)[np.isfinite(v)] for v in values]) if values else []
+    return len(finite) > 0 and bool(np.all(finite >= 0.0)) and bool(np.any(finite > 0.0))
+
+
+# --- swarm parameters against E/N ---------------------------------------------------------------------------------
+
+@dataclass
+class ReferenceData:
+    """Reference values to overlay, read by :func:`read_reference`.
+
+    Attributes
+    ----------
+    label : str
+        Legend text (the file's ``# source:`` line, else the file name).
+    reduced_field_Td : numpy.ndarray
+    quantities : dict
+        Quantity name → (values, stderr or None), in avalanche's units.
+    """
+
+    label: str
+    reduced_field_Td: np.ndarray
+    quantities: dict[str, tuple[np.ndarray, np.ndarray | None]] = field(default_factory=dict)
+
+
+def read_reference(path) -> ReferenceData:
+    """Read a reference CSV file for the overlay of :func:`plot_swarm_parameters`.
+
+    The format (comma-separated): lines starting with ``#`` are comments, and ``# source: <text>`` gives the
+    legend label (cite the publication and table). The first other line names the columns: ``reduced_field_Td``
+    first, then quantity names as avalanche uses them, in the same units (e.g. ``alpha_N`` [m²],
+    ``drift_velocity_bulk`` [m/s], ``mean_energy_eV`` [eV]; see :data:`avalanche.tables.QUANTITY_UNITS`), each
+    optionally followed by ``<name>_stderr``. Empty cells are missing values. Example::
+
+        # source: Author et al. (1990) J. Phys. D 23 1, table 2
+        reduced_field_Td,alpha_N,alpha_N_stderr
+        200,1.1e-21,0.1e-21
+
+    Raises
+    ------
+    ConfigError
+        Naming the file, line and column: missing file, no header, first column not ``reduced_field_Td``, an
+        unknown quantity (with a did-you-mean), a cell that is not a number.
+    """
+    path = Path(path)
+    if not path.is_file():
+        raise ConfigError(f"reference file '{path}' not found; give a CSV with columns reduced_field_Td,<quantity>,..")
+    label, header, rows = path.name, None, []
+    for number, line in enumerate(path.read_text(encoding="utf-8").splitlines(), start=1):
+        text = line.strip()
+        if not text:
+            continue
+        if text.startswith("#"):
+            key, sep, value = text[1:].strip().partition(":")
+            if sep and key.strip().lower() == "source" and value.strip():
+                label = value.strip()
+            continue
+        cells = [cell.strip() for cell in text.split(",")]
+        if header is None:
+            header = cells
+            continue
+        if len(cells) != len(header):
+            raise ConfigError(f"{path}, line {number}: {len(cells)} cells for {len(header)} columns {header}")
+        try:
+            rows.append([float(cell) if cell else math.nan for cell in cells])
+        except ValueError:
+            raise ConfigError(f"{path}, line {number}: a cell is not a number: {cells}") from None
+    if header is None or not rows:
+        raise ConfigError(f"reference file '{path}' has no header line and data rows; see avalanche plot --help")
+    if header[0] != "reduced_field_Td":
+        raise ConfigError(f"{path}: the first column is {header[0]!r}; it must be 'reduced_field_Td' (E/N in Td)")
+    data = np.array(rows, dtype=float)
+    quantities = {}
+    for j, name in enumerate(header[1:], start=1):
+        if name.endswith("_stderr"):
+            if name.removesuffix("_stderr") not in header:
+                raise ConfigError(f"{path}: column {name!r} has no value column {name.removesuffix('_stderr')!r}")
+            continue
+        if not quantity_unit(name):
+            raise ConfigError(f"{path}: unknown quantity column {name!r}{did_you_mean(name, _known_names())}; "
+                              "use avalanche's quantity names and units")
+        stderr = data[:, header.index(f"{name}_stderr")] if f"{name}_stderr" in header else None
+        quantities[name] = (data[:, j], stderr)
+    return ReferenceData(label, data[:, 0], quantities)
+
+
+def _known_names() -> list[str]:
+    return [name for name in QUANTITY_UNITS if name != "reduced_field_Td"]
+
+
+def _panel_of(name: str) -> str:
+    for group, members in PAIRS.items():
+        if name in members:
+            return group
+    if name.startswith(RATE_PREFIX):
+        return "rate_coefficients"
+    return _COMPANIONS.get(name, name)
+
+
+def swarm_panels(table: SwarmTable, quantities: Sequence[str] | None = None) -> dict[str, list[str]]:
+    """Panels to draw: panel name → quantity names on it, in order.
+
+    Parameters
+    ----------
+    table : SwarmTable
+    quantities : sequence of str, optional
+        Quantity names (``drift_velocity_bulk``), panel names (``drift_velocity`` = flux and bulk), or
+        ``rate_coefficients`` (every per-process rate coefficient on one panel). Default
+        :data:`DEFAULT_PANELS` where present.
+
+    Raises
+    ------
+    ConfigError
+        For a name that is neither a quantity nor a panel (with a did-you-mean), or one absent from the data.
+    """
+    panels: dict[str, list[str]] = {}
+    if quantities is None:
+        for group in DEFAULT_PANELS:
+            members = [m for m in PAIRS.get(group, (group,)) if m in table.quantities]
+            if group == "eta_N" and members and not np.any(np.nan_to_num(table.get("eta_N")[0]) > 0.0):
+                continue
+            if members:
+                panels[group] = members
+        if not panels:
+            raise ConfigError(f"{table.source or 'swarm table'}: none of the default quantities is present; choose "
+                              f"some of {', '.join(table.names)}")
+        return panels
+    choices = [*table.names, *PAIRS, "rate_coefficients"]
+    for token in quantities:
+        token = token.strip()
+        if token in PAIRS:
+            members = [m for m in PAIRS[token] if m in table.quantities]
+        elif token == "rate_coefficients":
+            members = [name for name in table.names if name.startswith(RATE_PREFIX)]
+        elif token in table.quantities:
+            members = [token]
+        elif quantity_unit(token):
+            raise ConfigError(f"{table.source or 'swarm table'}: quantity {token!r} is not in the data; available: "
+                              f"{', '.join(table.names)}")
+        else:
+            raise ConfigError(f"unknown quantity {token!r}{did_you_mean(token, choices)}; choose from "
+                              f"{', '.join(choices)}")
+        if not members:
+            raise ConfigError(f"{table.source or 'swarm table'}: no data for {token!r}; available: "
+                              f"{', '.join(table.names)}")
+        group = token if token in PAIRS or token == "rate_coefficients" else _panel_of(token)
+        panels.setdefault(group, [])
+        panels[group] += [m for m in members if m not in panels[group]]
+    return panels
+
+
+def _series_label(name: str, members: list[str]) -> str:
+    if name.startswith(RATE_PREFIX):
+        return name[len(RATE_PREFIX):]
+    for suffix, label in _SERIES_LABELS.items():
+        if name.endswith(f"_{suffix}"):
+            return label
+    return "avalanche" if len(members) == 1 else name
+
+
+def handbook_gas_name(gas: str) -> str | None:
+    """The key of :data:`~avalanche.coefficients.HANDBOOK_TOWNSEND` matching ``gas`` (case-insensitive), or None."""
+    return next((name for name in HANDBOOK_TOWNSEND if name.lower() == str(gas).strip().lower()), None)
+
+
+def _handbook_overlay(ax, gas: str, fields_Td: np.ndarray) -> None:
+    low, high = handbook_validity_range_Td(gas)
+    finite = fields_Td[np.isfinite(fields_Td)]
+    low, high = max(low, float(finite.min())), min(high, float(finite.max()))
+    if low >= high:
+        return
+    field_Td = np.geomspace(low, high, 100)
+    constants = HANDBOOK_TOWNSEND[gas]
+    ax.plot(field_Td, handbook_alpha_N(gas, field_Td), "--", color="0.3", gid="handbook_alpha_N",
+            label=textwrap.fill(f"Townsend formula, {constants.source}", 36))
+
+
+@_styled
+def plot_swarm_parameters(table: SwarmTable, quantities: Sequence[str] | None = None,
+                          reference: ReferenceData | None = None, handbook: str | None = "auto") -> Figure:
+    """Swarm parameters against E/N on log axes with error bars, one panel per quantity.
+
+    Parameters
+    ----------
+    table : SwarmTable
+    quantities : sequence of str, optional
+        See :func:`swarm_panels`. Flux and bulk values share a panel.
+    reference : ReferenceData, optional
+        Drawn as open markers on the panels of its quantities (others are ignored).
+    handbook : str or None
+        Gas whose empirical Townsend formula (:data:`~avalanche.coefficients.HANDBOOK_TOWNSEND`) is drawn on the
+        α/N panel, only inside its validity range and the data's E/N range: ``"auto"`` (the table's gas, if the
+        handbook has it), a gas name, or None for no overlay.
+
+    Returns
+    -------
+    matplotlib.figure.Figure
+    """
+    panels = swarm_panels(table, quantities)
+    if handbook is None:
+        gas = None
+    elif handbook == "auto":
+        gas = handbook_gas_name(table.gas_label)
+    else:
+        gas = handbook_gas_name(handbook)
+        if gas is None:
+            handbook_validity_range_Td(handbook)  # raises ConfigError naming the gas, with a did-you-mean
+    figure, axes = _new_figure(len(panels))
+    fields = table.reduced_field_Td
+    for ax, (panel, members) in zip(axes, panels.items(), strict=True):
+        series = [table.get(name) for name in members]
+        log_y = _use_log([values for values, _ in series])
+        for name, (values, errors) in zip(members, series, strict=True):
+            _errorbar(ax, fields, values, errors, name, _series_label(name, members), log_y,
+                      fmt="s--" if name.endswith("_bulk") or name.endswith("_simple") else "o-")
+        if reference is not None:
+            for name in members:
+                if name in reference.quantities:
+                    values, errors = reference.quantities[name]
+                    _errorbar(ax, reference.reduced_field_Td, values, errors, f"reference:{name}",
+                              f"{reference.label}" + (f" ({_series_label(name, members)})" if len(members) > 1
+                                                      else ""), log_y, fmt="D", mfc="none", color="k")
+        if panel == "alpha_N" and gas is not None:
+            _handbook_overlay(ax, gas, fields)
+        _log_x(ax, fields)
+        if log_y:
+            _log_y(ax)
+        unit = table.unit(members[0])
+        ax.set_xlabel("reduced field E/N [Td]")
+        ax.set_ylabel(_axis_label(_PANEL_LABELS.get(panel, panel), unit))
+        if not ax.has_data():
+            ax.text(0.5, 0.5, "no finite values", transform=ax.transAxes, ha="center")
+        _legend(ax)
+    figure.suptitle(_title(table))
+    return figure
+
+
+def _title(table: SwarmTable) -> str:
+    parts = [table.gas_label or "swarm parameters"]
+    if table.temperature_K is not None:
+        parts.append(f"T = {table.temperature_K:g} K")
+    if table.source:
+        parts.append(Path(table.source).name)
+    return ", ".join(parts)
+
+
+# --- energy distributions -----------------------------------------------------------------------------------------
+
+@_styled
+def plot_eedf(distributions: Mapping[float, tuple], title: str = "") -> Figure:
+    """Electron energy distributions f(ε) [eV^-3/2] at several E/N, on a log axis against energy [eV].
+
+    Parameters
+    ----------
+    distributions : mapping
+        E/N [Td] → ``(energy_edges_eV, values, stderr)``: bin edges (n + 1) and values/errors (n) of the EEDF
+        normalised as ∫ f(ε) ε^1/2 dε = 1. Points are drawn at bin centres; empty bins are left out.
+    title : str
+    """
+    if not distributions:
+        raise ConfigError("plot_eedf: no energy distributions given")
+    figure, (ax,) = _new_figure(1, columns=1, height_in=3.0)
+    for field_Td, (edges, values, errors) in sorted(distributions.items()):
+        edges = np.asarray(edges, dtype=float)
+        centres = 0.5 * (edges[:-1] + edges[1:])
+        _errorbar(ax, centres, values, errors, f"eedf:{field_Td:g}", f"{field_Td:g} Td", True, fmt="-",
+                  elinewidth=0.5, capsize=0)
+    _log_y(ax)
+    ax.set_xlabel("electron energy ε [eV]")
+    ax.set_ylabel(_axis_label("EEDF f(ε)", "eV^-3/2"))
+    ax.legend(title="E/N")
+    if title:
+        ax.set_title(title)
+    return figure
+
+
+# --- AC: phase-resolved panels ------------------------------------------------------------------------------------
+
+@dataclass
+class PhaseCurve:
+    """Phase-resolved results of one AC run.
+
+    Attributes
+    ----------
+    frequency_Hz : float
+    phase_rad : numpy.ndarray
+        Phase-bin centres of ωt [rad], in [0, 2π).
+    quantities : mapping
+        Quantity name → (values, stderr), one per phase bin, in the DC result's units.
+    reduced_field_Td : float, optional
+        The field amplitude E_0/N [Td].
+    """
+
+    frequency_Hz: float
+    phase_rad: np.ndarray
+    quantities: Mapping[str, tuple[np.ndarray, np.ndarray]]
+    reduced_field_Td: float | None = None
+
+    @property
+    def label(self) -> str:
+        text = _frequency_text(self.frequency_Hz)
+        return text if self.reduced_field_Td is None else f"{text}, {self.reduced_field_Td:g} Td"
+
+
+def _frequency_text(frequency_Hz: float) -> str:
+    for scale, unit in ((1e9, "GHz"), (1e6, "MHz"), (1e3, "kHz")):
+        if abs(frequency_Hz) >= scale:
+            return f"{frequency_Hz / scale:g} {unit}"
+    return f"{frequency_Hz:g} Hz"
+
+
+def _phase_axis(ax) -> None:
+    ax.set_xlim(0.0, 2.0 * math.pi)
+    ax.set_xticks(np.arange(5) * math.pi / 2.0, ["0", "π/2", "π", "3π/2", "2π"])
+    ax.set_xlabel("phase ωt [rad]")
+
+
+@_styled
+def plot_phase_resolved(curves: Sequence[PhaseCurve], quantities: Sequence[str] | None = None) -> Figure:
+    """Phase-resolved AC panels: each quantity against the phase ωt, one curve per frequency (linear axes).
+
+    Parameters
+    ----------
+    curves : sequence of PhaseCurve
+    quantities : sequence of str, optional
+        Default: mean energy, ionization rate coefficient and flux drift velocity, those present.
+
+    Raises
+    ------
+    ConfigError
+        When no curve is given, or a chosen quantity is in none of the curves (with a did-you-mean).
+    """
+    if not curves:
+        raise ConfigError("plot_phase_resolved: no phase-resolved results given (AC runs only)")
+    available = list(dict.fromkeys(name for curve in curves for name in curve.quantities))
+    if quantities is None:
+        quantities = [name for name in _PHASE_DEFAULTS if name in available]
+        if not quantities:
+            raise ConfigError(f"plot_phase_resolved: none of {', '.join(_PHASE_DEFAULTS)} is phase-resolved; choose "
+                              f"from {', '.join(available)}")
+    for name in quantities:
+        if name not in available:
+            raise ConfigError(f"plot_phase_resolved: no phase-resolved {name!r}{did_you_mean(name, available)}; "
+                              f"available: {', '.join(available)}")
+    figure, axes = _new_figure(len(quantities), columns=min(3, len(quantities)))
+    for ax, name in zip(axes, quantities, strict=True):
+        for curve in sorted(curves, key=lambda c: c.frequency_Hz):
+            if name in curve.quantities:
+                values, errors = curve.quantities[name]
+                _errorbar(ax, curve.phase_rad, values, errors, f"phase:{name}:{curve.frequency_Hz:g}", curve.label,
+                          False, fmt=".-")
+        _phase_axis(ax)
+        ax.set_ylabel(_axis_label(_PANEL_LABELS.get(name, name), quantity_unit(name)))
+        _legend(ax)
+    return figure
+
+
+# --- steady-state Townsend profiles -------------------------------------------------------------------------------
+
+@dataclass
+class SSTProfile:
+    """Spatial profile of a steady-state Townsend run.
+
+    Attributes
+    ----------
+    position_m : numpy.ndarray
+        Distances of the sampling planes from the emitting electrode [m].
+    quantities : mapping
+        Quantity name → (values, stderr) per plane (e.g. the electron flux crossing each plane per released
+        electron, the mean energy there).
+    reduced_field_Td : float, optional
+    effective_alpha_per_m : float, optional
+        The fitted (α − η) [1/m]: drawn as exp((α − η) x) through the flux beyond the relaxation length.
+    relaxation_length_m : float, optional
+        Marked with a vertical line.
+    flux_quantity : str
+        Name of the flux among ``quantities`` (for the exponential fit line).
+    """
+
+    position_m: np.ndarray
+    quantities: Mapping[str, tuple[np.ndarray, np.ndarray]]
+    reduced_field_Td: float | None = None
+    effective_alpha_per_m: float | None = None
+    relaxation_length_m: float | None = None
+    flux_quantity: str = "flux"
+
+
+def _growth_line(ax, profile: SSTProfile, color) -> None:
+    if profile.effective_alpha_per_m is None or profile.flux_quantity not in profile.quantities:
+        return
+    x = np.asarray(profile.position_m, dtype=float)
+    flux = np.asarray(profile.quantities[profile.flux_quantity][0], dtype=float)
+    beyond = (x >= (profile.relaxation_length_m or 0.0)) & (flux > 0.0) & np.isfinite(flux)
+    if not np.any(beyond):
+        return
+    alpha = profile.effective_alpha_per_m
+    intercept = float(np.mean(np.log(flux[beyond]) - alpha * x[beyond]))
+    line_x = np.linspace(x[beyond].min(), x[beyond].max(), 50)
+    ax.plot(line_x, np.exp(intercept + alpha * line_x), ":", color=color, gid=f"sst_growth:{profile.reduced_field_Td}",
+            label=f"exp((α−η) x), α−η = {alpha:.4g} m$^{{-1}}$")
+
+
+@_styled
+def plot_sst_profiles(profiles: Sequence[SSTProfile], quantities: Sequence[str] | None = None) -> Figure:
+    """Steady-state Townsend spatial profiles: one panel per quantity against distance from the cathode.
+
+    A panel is log-scaled when all its values are positive and span more than a decade (the growing flux).
+    """
+    if not profiles:
+        raise ConfigError("plot_sst_profiles: no profiles given (steady-state Townsend runs only)")
+    available = list(dict.fromkeys(name for p in profiles for name in p.quantities))
+    quantities = available if quantities is None else list(quantities)
+    for name in quantities:
+        if name not in available:
+            raise ConfigError(f"plot_sst_profiles: no profile of {name!r}{did_you_mean(name, available)}; "
+                              f"available: {', '.join(available)}")
+    figure, axes = _new_figure(len(quantities))
+    for ax, name in zip(axes, quantities, strict=True):
+        values_all = [np.asarray(p.quantities[name][0], dtype=float) for p in profiles if name in p.quantities]
+        finite = np.concatenate(values_all)[np.isfinite(np.concatenate(values_all))]
+        log_y = finite.size > 0 and bool(np.all(finite > 0.0)) and finite.max() > 10.0 * finite.min()
+        for profile in profiles:
+            if name not in profile.quantities:
+                continue
+            values, errors = profile.quantities[name]
+            label = "" if profile.reduced_field_Td is None else f"{profile.reduced_field_Td:g} Td"
+            container = _errorbar(ax, profile.position_m, values, errors, f"sst:{name}:{profile.reduced_field_Td}",
+                                  label, log_y, fmt=".-")
+            color = container.lines[0].get_color() if container else None
+            if name == profile.flux_quantity:
+                _growth_line(ax, profile, color)
+            if profile.relaxation_length_m is not None:
+                ax.axvline(profile.relaxation_length_m, color=color, lw=0.8, ls="--",
+                           gid=f"sst_relaxation:{profile.reduced_field_Td}")
+        if log_y:
+            _log_y(ax)
+        ax.set_xlabel("distance from the emitting electrode x [m]")
+        ax.set_ylabel(_axis_label(_PANEL_LABELS.get(name, name.replace("_", " ")), quantity_unit(name)))
+        _legend(ax)
+    return figure
+
+
+# --- Paschen curve ------------------------------------------------------------------------------------------------
+
+@_styled
+def plot_paschen(curve: PaschenCurve, title: str = "") -> Figure:
+    """Breakdown voltage against p d [Pa m] (bottom) and [Torr cm] (top), with the minimum, the asymptote
+    V = (E/N)_crit N d of an attaching gas, and :data:`avalanche.breakdown.CAUTION` under the plot."""
+    figure, (ax,) = _new_figure(1, columns=1, height_in=3.6)
+    ok = np.isfinite(curve.breakdown_voltage_V)
+    ax.plot(curve.pd_Pa_m[ok], curve.breakdown_voltage_V[ok], "-", gid="paschen",
+            label=f"Townsend criterion, γ = {curve.gamma:g}")
+    if math.isfinite(curve.minimum_voltage_V):
+        ax.plot([curve.minimum_pd_Pa_m], [curve.minimum_voltage_V], "o", gid="paschen_minimum",
+                label=f"minimum {curve.minimum_voltage_V:.4g} V at {curve.minimum_pd_Pa_m:.4g} Pa m "
+                      f"({curve.minimum_pd_Torr_cm:.4g} Torr cm)")
+    if curve.critical_reduced_field_Td is not None:
+        pd = curve.pd_Pa_m
+        voltage = curve.critical_reduced_field_Td * TOWNSEND_V_m2 * pd / (BOLTZMANN_J_K * curve.temperature_K)
+        ax.plot(pd, voltage, ":", color="0.4", gid="paschen_asymptote",
+                label=f"(E/N)$_{{crit}}$ N d, (E/N)$_{{crit}}$ = {curve.critical_reduced_field_Td:.4g} Td")
+    _log_x(ax, curve.pd_Pa_m)
+    ax.set_yscale("log")
+    ax.set_xlabel("p d [Pa m]")
+    ax.set_ylabel("breakdown voltage [V]")
+    top = ax.secondary_xaxis("top", functions=(lambda x: x * 100.0 / TORR_Pa, lambda x: x * TORR_Pa / 100.0))
+    top.set_xlabel("p d [Torr cm]")
+    _legend(ax)
+    ax.set_title(title or f"Paschen curve, {curve.gas_label or 'gas'}, T = {curve.temperature_K:g} K")
+    figure.text(0.01, -0.02, "Caution: " + CAUTION, wrap=True, fontsize=6, va="top", gid="caution")
+    return figure
+
+
+# --- emission -----------------------------------------------------------------------------------------------------
+
+@_styled
+def plot_emission_spectrum(wavelength_nm, relative_rate, labels: Sequence[str], title: str = "",
+                           annotate: int = 8) -> Figure:
+    """Stick spectrum: relative photon emission rate of each radiating level at its wavelength [nm].
+
+    The ``annotate`` strongest lines are labelled; the method's limits are printed under the plot.
+    """
+    from .emission import APPROXIMATION_NOTE
+
+    wavelength = np.asarray(wavelength_nm, dtype=float)
+    rate = np.asarray(relative_rate, dtype=float)
+    if wavelength.size == 0:
+        raise ConfigError("plot_emission_spectrum: no radiating levels (no excitation process has wavelength_nm)")
+    figure, (ax,) = _new_figure(1, columns=1, height_in=3.2)
+    ax.vlines(wavelength, 0.0, rate, gid="emission", lw=1.5)
+    for k in np.argsort(-np.nan_to_num(rate))[:annotate]:
+        ax.annotate(f"{labels[k]}\n{wavelength[k]:.4g} nm", (wavelength[k], rate[k]), textcoords="offset points",
+                    xytext=(0, 3), ha="center", fontsize=6)
+    ax.set_ylim(0.0, 1.25 * max(float(np.nanmax(rate)), 1e-300))
+    ax.set_xlabel("wavelength [nm]")
+    ax.set_ylabel("relative photon emission rate")
+    if title:
+        ax.set_title(title)
+    figure.text(0.01, -0.02, APPROXIMATION_NOTE, wrap=True, fontsize=6, va="top", gid="note")
+    return figure
+
+
+@_styled
+def plot_phase_resolved_emission(phase_rad, relative_rate, labels: Sequence[str], title: str = "") -> Figure:
+    """Relative photon emission rate of each radiating level against the phase ωt (one curve per level).
+
+    ``relative_rate`` has shape (levels, phase bins).
+    """
+    from .emission import APPROXIMATION_NOTE
+
+    rate = np.asarray(relative_rate, dtype=float)
+    figure, (ax,) = _new_figure(1, columns=1, height_in=3.2)
+    for k, label in enumerate(labels):
+        ax.plot(phase_rad, rate[k], ".-", gid=f"emission_phase:{label}", label=label)
+    _phase_axis(ax)
+    ax.set_ylabel("relative photon emission rate")
+    _legend(ax)
+    if title:
+        ax.set_title(title)
+    figure.text(0.01, -0.02, APPROXIMATION_NOTE, wrap=True, fontsize=6, va="top", gid="note")
+    return figure
