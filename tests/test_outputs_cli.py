@@ -93,8 +93,8 @@ def test_plot_errors_name_the_problem(outputs_results, tmp_path, capsys):
     assert code == 1 and "2 mixtures" in err and "--mixture" in err and "'Ar'" in err
     code, _, err = run(capsys, "plot", outputs_results, "--mixture", "Ar", "--quantity", "alpha_n", "--out", tmp_path)
     assert code == 1 and "unknown quantity 'alpha_n'" in err and "did you mean 'alpha_N'" in err
-    code, _, err = run(capsys, "plot", outputs_results, "--mixture", "Argon", "--out", tmp_path)
-    assert code == 1 and "did you mean 'Ar'" in err
+    code, _, err = run(capsys, "plot", outputs_results, "--mixture", "Ar:0.5,N2:0.6", "--out", tmp_path)
+    assert code == 1 and "did you mean 'Ar:0.5,N2:0.5'" in err
     code, _, err = run(capsys, "plot", outputs_results, "--mixture", "Ar", "--format", "jpeg", "--out", tmp_path)
     assert code == 1 and "jpeg" in err
 
