@@ -240,10 +240,21 @@ def speed_from_energy(energy_eV):
 # ---------------------------------------------------------------------------------------------- one chunk
 
 @jit
+def _store(x, y, z, vx, vy, vz, r, i, px, py, pz, ux, uy, uz):
+    """Write one electron's position and velocity at slot i of replica r."""
+    x[r, i] = px
+    y[r, i] = py
+    z[r, i] = pz
+    vx[r, i] = ux
+    vy[r, i] = uy
+    vz[r, i] = uz
+
+
+@jit
 def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc, accel_ac, omega, phase,
                      inv_cell_eV, n_cells, nu_star, nu_total, nu_cumulative, action, loss_eV, electron_fraction,
                      target_fraction, thermal_speed, scatter, sharing, w_eV, table_max_eV, reference,
-                     hist_inv_width_eV, sums, counts, hist, process_counts, extrapolated):
+                     tally_positions, hist_inv_width_eV, sums, counts, hist, process_counts, extrapolated):
     s0 = rng[r, 0]
     s1 = rng[r, 1]
     s2 = rng[r, 2]
@@ -286,6 +297,7 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
         uy = vy[r, i]
         uz = vz[r, i]
         t = t0 if i < n_initial else birth[r, i]
+        vperp2 = ux * ux + uy * uy  # v_x² + v_y² changes only in collisions
         alive = True
         while True:
             u, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
@@ -300,7 +312,7 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
             uz += dvz
             t += tau
             exposure += tau
-            energy = ENERGY_PER_SPEED2_eV * (ux * ux + uy * uy + uz * uz)
+            energy = ENERGY_PER_SPEED2_eV * (vperp2 + uz * uz)
             if energy > max_energy:
                 max_energy = energy
             e_cell = energy * inv_cell_eV
@@ -314,10 +326,11 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
             events += 1
             sum_energy += energy
             sum_vz += uz
-            dzr = pz - z_ref
-            sum_zvz += dzr * uz
-            sum_z += dzr
-            sum_xyv += (px - x_ref) * ux + (py - y_ref) * uy
+            if tally_positions:
+                dzr = pz - z_ref
+                sum_zvz += dzr * uz
+                sum_z += dzr
+                sum_xyv += (px - x_ref) * ux + (py - y_ref) * uy
             b = int(energy * hist_inv_width_eV)
             if b < n_bins:
                 hist[r, b] += 1
@@ -385,24 +398,15 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
                 wx, wy, wz = turned_velocity(ux, uy, uz, speed_from_energy(ejected), scatter[k], ejected, a2,
                                              TWO_PI * a3)
                 ux, uy, uz = turned_velocity(ux, uy, uz, speed_from_energy(kept), scatter[k], kept, u, phi)
-                x[r, n] = px
-                y[r, n] = py
-                z[r, n] = pz
-                vx[r, n] = wx
-                vy[r, n] = wy
-                vz[r, n] = wz
+                _store(x, y, z, vx, vy, vz, r, n, px, py, pz, wx, wy, wz)
                 birth[r, n] = t
                 n += 1
                 created += 1
+            vperp2 = ux * ux + uy * uy
         if status != 0:
             break
         if alive:
-            x[r, write] = px
-            y[r, write] = py
-            z[r, write] = pz
-            vx[r, write] = ux
-            vy[r, write] = uy
-            vz[r, write] = uz
+            _store(x, y, z, vx, vy, vz, r, write, px, py, pz, ux, uy, uz)
             write += 1
         i += 1
     if status == 0:
@@ -432,7 +436,7 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
 def advance_chunk(x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc, accel_ac, omega, phase,
                   inv_cell_eV, n_cells, nu_star, nu_total, nu_cumulative, action, loss_eV, electron_fraction,
                   target_fraction, thermal_speed, scatter, sharing, w_eV, table_max_eV, reference,
-                  hist_inv_width_eV, sums, counts, hist, process_counts, extrapolated):
+                  tally_positions, hist_inv_width_eV, sums, counts, hist, process_counts, extrapolated):
     """Advance every replica's electrons from time ``t0`` to ``t1`` [s] (one chunk), in parallel over replicas.
 
     Each replica is a serial simulation with its own generator state, so the result does not depend on the
@@ -467,6 +471,8 @@ def advance_chunk(x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc, acce
         [m/s], angular distribution code, energy sharing code, OPB w [eV], last tabulated energy [eV].
     reference : ndarray, shape (R, 3)
         Reference position (x, y, z) [m] of each replica, subtracted in the position tallies.
+    tally_positions : bool
+        Whether to accumulate the position tallies (SUM_ZVZ, SUM_Z, SUM_XYV; left 0 otherwise).
     hist_inv_width_eV : float
         1 / width of the energy histogram's bins [eV⁻¹].
     sums, counts, hist, process_counts, extrapolated : ndarray
@@ -477,4 +483,5 @@ def advance_chunk(x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc, acce
         _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc, accel_ac, omega, phase,
                          inv_cell_eV, n_cells, nu_star, nu_total, nu_cumulative, action, loss_eV,
                          electron_fraction, target_fraction, thermal_speed, scatter, sharing, w_eV, table_max_eV,
-                         reference, hist_inv_width_eV, sums, counts, hist, process_counts, extrapolated)
+                         reference, tally_positions, hist_inv_width_eV, sums, counts, hist, process_counts,
+                         extrapolated)

@@ -73,6 +73,8 @@ TRIAL_MARGIN = 1e-3
 """ν* = (1 + TRIAL_MARGIN) max ν(ε) over the nodes: a bound also between nodes for smooth data."""
 RELAXATION_MIN_CHUNKS = 8
 RELAXATION_MIN_ENERGY_TIMES = 3.0
+EXTRAPOLATION_WARNING = 0.01
+"""A PhysicsWarning is given when more than this fraction of the real collisions fall beyond their tables."""
 GROWTH_PER_CHUNK = 0.3
 """A chunk is at most GROWTH_PER_CHUNK / |ν_eff| long, so the population changes by < ~35 % per chunk."""
 
@@ -292,7 +294,7 @@ class EnergyGrid:
 class Ensemble:
     """The electrons of R replicas in arrays of shape (R, capacity), with their generators and weights."""
 
-    def __init__(self, settings: Settings):
+    def __init__(self, settings: Settings, growing: bool = True):
         self.replicas = settings.replicas
         self.target = settings.electrons // settings.replicas
         lower, upper = settings.population_bounds
@@ -303,7 +305,9 @@ class Ensemble:
         self.rng = np.array([s[0].generate_state(4, np.uint64) for s in streams], dtype=np.uint64)
         self.rng[np.all(self.rng == 0, axis=1), 0] = np.uint64(1)  # xoshiro's one forbidden state
         self.control_rng = [np.random.Generator(np.random.PCG64(s[1])) for s in streams]
-        self.capacity = int(math.ceil(1.6 * self.upper))
+        # Without ionization no replica ever exceeds its target (cloning stops there); with it, room for growth
+        # above the upper bound (the store is enlarged, and the chunk redone, if that is not enough).
+        self.capacity = int(math.ceil(1.4 * self.upper)) if growing else self.target
         self._allocate(self.capacity)
         self.count = np.full(self.replicas, self.target, dtype=np.int64)
         self.log_weight = np.zeros(self.replicas)
@@ -325,9 +329,9 @@ class Ensemble:
             setattr(self, name, np.zeros((self.replicas, capacity)))
 
     def enlarge(self) -> None:
-        """Double the capacity (keeping the live electrons)."""
+        """Enlarge the capacity 1.5 times (keeping the live electrons)."""
         old = {name: getattr(self, name) for name in self._STATE}
-        self.capacity *= 2
+        self.capacity = int(math.ceil(1.5 * self.capacity))
         self._allocate(self.capacity)
         for name, arr in old.items():
             getattr(self, name)[:, :arr.shape[1]] = arr
@@ -345,22 +349,32 @@ class Ensemble:
             getattr(self, name)[:, :arr.shape[1]] = arr
 
     def moments(self) -> np.ndarray:
-        """Per replica (R, 6): x̄, ȳ, z̄, var(z), var(x) + var(y), n (variances with n − 1)."""
-        out = np.full((self.replicas, 6), np.nan)
-        for r in range(self.replicas):
-            n = int(self.count[r])
-            out[r, 5] = n
-            if n < 2:
-                continue
-            x, y, z = self.x[r, :n], self.y[r, :n], self.z[r, :n]
-            out[r, 0], out[r, 1], out[r, 2] = x.mean(), y.mean(), z.mean()
-            out[r, 3] = z.var(ddof=1)
-            out[r, 4] = x.var(ddof=1) + y.var(ddof=1)
+        """Per replica (R, 6): x̄, ȳ, z̄, var(z), var(x) + var(y), n (variances with n − 1; NaN for n < 2)."""
+        n = self.count.astype(float)
+        top = int(self.count.max())
+        live = np.arange(top)[None, :] < self.count[:, None]
+        out = np.empty((self.replicas, 6))
+        out[:, 5] = n
+        with np.errstate(invalid="ignore", divide="ignore"):
+            for column, name in enumerate(("x", "y", "z")):
+                values = np.where(live, getattr(self, name)[:, :top], 0.0)
+                mean = values.sum(axis=1) / n
+                deviation = np.where(live, values - mean[:, None], 0.0)
+                out[:, column] = mean
+                var = np.einsum("ij,ij->i", deviation, deviation) / (n - 1)
+                if name == "z":
+                    out[:, 3] = var
+                else:
+                    out[:, 4] = var if name == "x" else out[:, 4] + var
+        out[n < 2, :5] = np.nan
         return out
 
     def reset_positions(self) -> None:
+        """Move every live electron to the origin (only live entries are touched: memory stays ∝ electrons)."""
         for name in ("x", "y", "z"):
-            getattr(self, name)[:] = 0.0
+            arr = getattr(self, name)
+            for r in range(self.replicas):
+                arr[r, :self.count[r]] = 0.0
 
     def control(self) -> int:
         """Population control of every replica; returns how many replicas were resampled."""
@@ -404,7 +418,7 @@ def ensure_compiled() -> None:
                     np.zeros(1, dtype=np.int64), np.ones((1, 4), dtype=np.uint64), 0.0, 1.0, 0.0, 0.0, 0.0, 0.0,
                     1.0, 1, 1.0, np.ones(2), np.ones((2, 1)), np.zeros(1, dtype=np.int64), np.zeros(1),
                     np.zeros(1), np.ones(1), np.zeros(1), np.zeros(1, dtype=np.int64), np.zeros(1, dtype=np.int64),
-                    np.zeros(1), np.full(1, np.inf), np.zeros((1, 3)), 1.0, np.zeros((1, K.N_SUMS)),
+                    np.zeros(1), np.full(1, np.inf), np.zeros((1, 3)), True, 1.0, np.zeros((1, K.N_SUMS)),
                     np.zeros((1, K.N_COUNTS), dtype=np.int64), i2.copy(), i2.copy(), i2.copy())
 
 
@@ -418,7 +432,7 @@ class _Run:
         self.field_V_m = reduced_field_Td * TOWNSEND_V_m2 * mixture.number_density_m3
         self.accel = ELEMENTARY_CHARGE_C * self.field_V_m / ELECTRON_MASS_kg
         self.kT_eV = BOLTZMANN_J_K * mixture.temperature_K / EV_J
-        self.ens = Ensemble(settings)
+        self.ens = Ensemble(settings, growing=bool(np.any(self.table.action == K.ACTION_IONIZATION)))
         start = settings.energy_max_eV or 10.0 * settings.initial_energy_eV
         self.grid = EnergyGrid.build(self.table, start, settings.energy_cells)
         R, P, B = settings.replicas, len(self.table.processes), settings.eedf_bins
@@ -431,7 +445,7 @@ class _Run:
                           "redone_chunks": 0, "shortened_chunks": 0, "frequency_above_bound": 0,
                           "population_controls": 0, "not_relaxed": 0}
 
-    def advance(self, t0: float, t1: float, reference: np.ndarray) -> tuple[_ChunkOutput, float]:
+    def advance(self, t0: float, t1: float, reference: np.ndarray, positions: bool) -> tuple[_ChunkOutput, float]:
         """Advance every replica from t0 to t1, redoing the chunk on a larger grid, in a larger store, or (when the
         store would pass 4 × the upper population bound) over half the time; returns the outputs and the end."""
         saved = self.ens.save()
@@ -440,7 +454,8 @@ class _Run:
             K.advance_chunk(e.x, e.y, e.z, e.vx, e.vy, e.vz, e.birth, e.count, e.rng, t0, t1, self.accel, 0.0,
                             0.0, 0.0, g.inv_cell_eV, g.n_cells, g.nu_star, g.nu_total, g.nu_cumulative, t.action,
                             t.loss_eV, t.electron_fraction, t.target_fraction, t.thermal_speed, t.scatter,
-                            t.sharing, t.w_eV, t.table_max_eV, reference, self.settings.eedf_bins / self.eedf_max_eV,
+                            t.sharing, t.w_eV, t.table_max_eV, reference, positions,
+                            self.settings.eedf_bins / self.eedf_max_eV,
                             o.sums, o.counts, o.hist, o.process_counts, o.extrapolated)
             self.events += int(o.counts[:, K.COUNT_EVENTS].sum())
             self.anomalies["frequency_above_bound"] += int(o.counts[:, K.COUNT_ABOVE_BOUND].sum())
@@ -528,7 +543,7 @@ def _stationary(series: _Series, now: float) -> tuple[bool, float, float, float]
 
 def swarm(mixture: Mixture | str, reduced_field_Td: float, *, seed=0, precision: float = 0.01,
           electrons: int = 16384, max_events: int = 1_000_000_000, sharing: str = "opb",
-          scattering: str = "isotropic", **more) -> SwarmResult:
+          scattering: str = "isotropic", threads: int | None = None, **more) -> SwarmResult:
     """Swarm parameters of electrons in ``mixture`` at reduced field ``reduced_field_Td`` (DC), by Monte Carlo.
 
     Parameters
@@ -551,6 +566,8 @@ def swarm(mixture: Mixture | str, reduced_field_Td: float, *, seed=0, precision:
         to equal sharing, with a PhysicsWarning, where a process has none; the model-gas benchmarks use 'uniform'.
     scattering : {'isotropic', 'screened-coulomb'}
         Angular distribution of every process (a process whose file says 'screened-coulomb' uses it anyway).
+    threads : int, optional
+        numba threads for this run (default: numba's current setting); results do not depend on it.
     **more
         replicas (16), precision_on ('auto' or an estimate name), energy_cells (8192), energy_max_eV (initial grid
         top, default 10 × initial_energy_eV), energy_limit_eV (1e5, runaway guard), initial_energy_eV (1.0, mean
@@ -585,12 +602,22 @@ def swarm(mixture: Mixture | str, reduced_field_Td: float, *, seed=0, precision:
     if not isinstance(mixture, Mixture):
         raise ConfigError(f"swarm(): mixture must be a Mixture or a gas string, got {type(mixture).__name__}")
     reduced_field_Td = _positive("reduced_field_Td", reduced_field_Td)
-    ensure_compiled()
-    cpu0, wall0 = time.process_time(), time.perf_counter()
-    run = _Run(mixture, reduced_field_Td, settings)
-    result = _simulate(run, reduced_field_Td)
-    result.cpu_seconds = time.process_time() - cpu0
-    result.wall_seconds = time.perf_counter() - wall0
+    previous = numba.get_num_threads()
+    if threads is not None:
+        threads = _positive("threads", threads, integer=True)
+        if threads > numba.config.NUMBA_NUM_THREADS:
+            raise ConfigError(f"swarm(): argument threads = {threads} exceeds the {numba.config.NUMBA_NUM_THREADS} "
+                              "threads numba was started with (set NUMBA_NUM_THREADS)")
+        numba.set_num_threads(threads)
+    try:
+        ensure_compiled()
+        cpu0, wall0 = time.process_time(), time.perf_counter()
+        run = _Run(mixture, reduced_field_Td, settings)
+        result = _simulate(run, reduced_field_Td)
+        result.cpu_seconds = time.process_time() - cpu0
+        result.wall_seconds = time.perf_counter() - wall0
+    finally:
+        numba.set_num_threads(previous)
     return result
 
 
@@ -636,7 +663,7 @@ def _simulate(run: _Run, reduced_field_Td: float) -> SwarmResult:
     while True:
         dt = run.chunk_duration(nu_eff)
         reference = np.nan_to_num(start[:, :3])
-        out, t_end = run.advance(t, t + dt, reference)
+        out, t_end = run.advance(t, t + dt, reference, t >= mature_from)
         t_start, t, dt = t, t_end, t_end - t
         end = ens.moments()
         sums, counts = out.sums, out.counts
@@ -711,6 +738,14 @@ def _result(run: _Run, reduced_field_Td: float, tallies: SwarmTallies, series: _
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", RuntimeWarning)
         estimates = swarm_estimates(tallies, ctx)
+    beyond = tallies["extrapolated_counts"].sum(axis=0)
+    real = max(int(tallies["process_counts"].sum()), 1)
+    if beyond.sum() > EXTRAPOLATION_WARNING * real:
+        worst = sorted(range(beyond.size), key=lambda k: -beyond[k])[:3]
+        listing = ", ".join(f"'{run.table.keys[k]}' ({100 * beyond[k] / real:.2g} %)" for k in worst if beyond[k])
+        warnings.warn(f"E/N = {reduced_field_Td:g} Td: {100 * beyond.sum() / real:.2g} % of the collisions happened "
+                      f"beyond the end of their cross-section table, where it is extrapolated: {listing}; extend the "
+                      "tables to higher energy", PhysicsWarning, stacklevel=3)
     if tallies["mature_events"].sum() == 0:
         warnings.warn(f"E/N = {reduced_field_Td:g} Td: no chunk was sampled for position moments (bulk drift, "
                       "diffusion, Townsend coefficients are NaN); raise max_events", PhysicsWarning, stacklevel=3)

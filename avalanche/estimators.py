@@ -1,7 +1,11 @@
 """Swarm parameters from the raw tallies of independent replicas (plain numpy).
 
-Every quantity is first computed for each replica from its own sums; the value is the mean over the R
-replicas and the standard error their standard deviation over √R (the replicas are independent simulations).
+Every quantity is a function of sums over the R independent replicas (the replicas are independent
+simulations). Its value is the function of the sums pooled over all replicas, and its standard error the
+leave-one-replica-out jackknife error (Efron B & Tibshirani R J 1993, An Introduction to the Bootstrap, ch. 11):
+σ² = (R − 1)/R Σ_i (θ_(i) − θ̄)², θ_(i) computed without replica i. For a plain mean of equal replicas this is
+exactly std/√R; for the ratios and nonlinear functions here (drift and diffusion, α from the steady-state relation
+near its limit 4 D_L ν → W²) it avoids the bias and the NaN that a mean of noisy per-replica values would give.
 
 Definitions (field along −z, so the electrons drift along +z and W > 0; sums over trial events are time
 averages of the swarm because the trial events are Poisson in time)
@@ -104,8 +108,31 @@ def _ratio(numerator, denominator):
         return np.asarray(numerator, dtype=float) / np.asarray(denominator, dtype=float)
 
 
+def pooled(t: SwarmTallies) -> SwarmTallies:
+    """The sums of all replicas as one replica (arrays of shape (1, ...))."""
+    return SwarmTallies({k: v.sum(axis=0, keepdims=True) for k, v in t.arrays.items()})
+
+
+def leave_one_out(t: SwarmTallies) -> SwarmTallies:
+    """R sets of sums, set i without replica i (arrays of shape (R, ...))."""
+    return SwarmTallies({k: v.sum(axis=0, keepdims=True) - v for k, v in t.arrays.items()})
+
+
+def jackknife(values_pooled: np.ndarray, values_loo: np.ndarray):
+    """Value and jackknife standard error from the pooled value (shape (1, ...)) and the leave-one-out values
+    (shape (R, ...)); NaN errors where fewer than two replicas exist."""
+    value = np.asarray(values_pooled, dtype=float)[0]
+    loo = np.asarray(values_loo, dtype=float)
+    replicas = loo.shape[0]
+    if replicas < 2:
+        return value, np.full_like(value, np.nan)
+    spread = np.sum((loo - loo.mean(axis=0)) ** 2, axis=0)
+    return value, np.sqrt((replicas - 1) / replicas * spread)
+
+
 def per_replica_quantities(t: SwarmTallies, ctx: EstimatorContext) -> dict[str, np.ndarray]:
-    """Every scalar quantity of :data:`avalanche.results.ESTIMATES` for each replica (arrays of shape (R,))."""
+    """Every scalar quantity of :data:`avalanche.results.ESTIMATES` for each set of sums in ``t`` (each replica,
+    or pooled / leave-one-out sets; arrays of shape (R,))."""
     N = ctx.number_density_m3
     kinds = np.asarray(ctx.process_kinds)
     counts = t["process_counts"].astype(float)
@@ -147,28 +174,39 @@ def per_replica_quantities(t: SwarmTallies, ctx: EstimatorContext) -> dict[str, 
     return q
 
 
+def _rates(t: SwarmTallies, ctx: EstimatorContext) -> np.ndarray:
+    return _ratio(t["process_counts"], t["exposure_s"][:, None] * np.asarray(ctx.target_density_m3)[None, :])
+
+
 def rate_coefficients(t: SwarmTallies, ctx: EstimatorContext) -> dict[str, Estimate]:
     """Rate coefficient per target molecule of every process [m³/s], keyed by ``ctx.process_keys``."""
-    per = _ratio(t["process_counts"], t["exposure_s"][:, None] * np.asarray(ctx.target_density_m3)[None, :])
-    return {key: estimate(per[:, k]) for k, key in enumerate(ctx.process_keys)}
+    value, error = jackknife(_rates(pooled(t), ctx), _rates(leave_one_out(t), ctx))
+    return {key: Estimate(float(value[k]), float(error[k])) for k, key in enumerate(ctx.process_keys)}
+
+
+def _eedf(t: SwarmTallies, weight: np.ndarray) -> np.ndarray:
+    return _ratio(t["eedf_counts"], t["events"].astype(float)[:, None] * weight[None, :])
 
 
 def energy_distribution(t: SwarmTallies, ctx: EstimatorContext) -> EnergyDistribution:
-    """The EEDF (∫ f ε^½ dε = 1, [eV^-3/2]) with per-bin standard errors over replicas."""
+    """The EEDF (∫ f ε^½ dε = 1, [eV^-3/2]) with per-bin jackknife standard errors over replicas."""
     edges = np.asarray(ctx.energy_edges_eV, dtype=float)
     weight = (2.0 / 3.0) * (edges[1:] ** 1.5 - edges[:-1] ** 1.5)
-    events = t["events"].astype(float)
-    per = _ratio(t["eedf_counts"], events[:, None] * weight[None, :])
-    value = np.nanmean(per, axis=0) if per.size and np.all(events > 0) else np.full(weight.size, np.nan)
-    replicas = per.shape[0]
-    stderr = per.std(axis=0, ddof=1) / np.sqrt(replicas) if replicas > 1 else np.full(weight.size, np.nan)
-    overflow = float(t["eedf_overflow"].sum() / events.sum()) if events.sum() > 0 else 0.0
-    return EnergyDistribution(energy_edges_eV=edges, value=value, stderr=stderr, overflow_fraction=overflow)
+    value, error = jackknife(_eedf(pooled(t), weight), _eedf(leave_one_out(t), weight))
+    events = float(t["events"].sum())
+    overflow = float(t["eedf_overflow"].sum()) / events if events > 0 else 0.0
+    return EnergyDistribution(energy_edges_eV=edges, value=value, stderr=error, overflow_fraction=overflow)
 
 
 def swarm_estimates(t: SwarmTallies, ctx: EstimatorContext) -> dict[str, Estimate]:
     """Every scalar estimate (see :data:`avalanche.results.ESTIMATES`) from the tallies."""
-    return {name: estimate(values) for name, values in per_replica_quantities(t, ctx).items()}
+    full = per_replica_quantities(pooled(t), ctx)
+    loo = per_replica_quantities(leave_one_out(t), ctx)
+    out = {}
+    for name in full:
+        value, error = jackknife(full[name], loo[name])
+        out[name] = Estimate(float(value), float(error))
+    return out
 
 
 def extrapolated_fraction(t: SwarmTallies) -> float:

@@ -205,3 +205,25 @@ def test_population_control_keeps_the_ensemble_bounded():
     assert electrons.max() <= 16 * 1.5 * 1.4 * target
     # The weights carry the growth: d ln(n × weight)/dt is the net production frequency ν_eff.
     assert result.time_series["log_weight"][-1] > 0
+
+
+def test_threads_argument_is_checked_and_restored():
+    before = numba.get_num_threads()
+    result = swarm(REID, 12.0, electrons=256, max_events=2e5, threads=1)
+    assert result.inputs["threads"] == 1
+    assert numba.get_num_threads() == before
+    with pytest.raises(ConfigError, match="threads"):
+        swarm(REID, 12.0, threads=0)
+
+
+def test_collisions_beyond_the_tables_are_warned_about():
+    # A set whose tables stop at 2 eV, run where electrons reach tens of eV: the extrapolated fraction is
+    # reported and warned about (STYLE: PhysicsWarning when a model is used outside its validity).
+    from avalanche import PhysicsWarning, make_set, process_from_table
+
+    elastic = process_from_table([[0.0, 5e-20], [2.0, 5e-20]], kind="elastic", label="elastic", threshold_eV=0.0)
+    short = make_set("short", mass_amu=4.0, processes=[elastic])
+    mixture = Mixture("short", temperature_K=0.0, number_density_m3=1e24, sets={"short": short})
+    with pytest.warns(PhysicsWarning, match="beyond the end of their cross-section table"):
+        result = swarm(mixture, 30.0, electrons=256, max_events=3e6)
+    assert result.extrapolated_fraction > 0.5
