@@ -102,7 +102,8 @@ def test_handbook_nitrogen_minimum_in_laboratory_units():
     # memory): N2 with A = 12 /(cm Torr), B = 342 V/(cm Torr), γ = 0.01 has V_min = (B/A) e ln(101) = 357.6 V at
     # (p d)_min = (e/A) ln(101) = 1.045 Torr cm. 2000 nodes over E/p = 100–600: (p d)_min within 4.5e-4.
     curve = paschen_curve(handbook_table("N2", points=2000), GAMMA, [1.333])
-    assert curve.minimum_voltage_V == pytest.approx(B_V_PER_CM_TORR / A_PER_CM_TORR * math.e * THRESHOLD, rel=1e-3, abs=0)
+    expected = B_V_PER_CM_TORR / A_PER_CM_TORR * math.e * THRESHOLD
+    assert curve.minimum_voltage_V == pytest.approx(expected, rel=1e-3, abs=0)
     assert curve.minimum_pd_Torr_cm == pytest.approx(math.e / A_PER_CM_TORR * THRESHOLD, rel=1e-3, abs=0)
 
 
