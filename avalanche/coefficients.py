@@ -161,6 +161,24 @@ def loglog_interpolate(x, xp, fp, *, quantity: str = "value"):
     return _scalar_or_array(table(values))
 
 
+def sorted_reduced_fields(field: np.ndarray, owner: str, *, repeat_hint: str) -> tuple[np.ndarray, np.ndarray]:
+    """Check a grid of finite reduced fields [Td] (positive, each once) and sort it.
+
+    Returns the sorted fields and the permutation that sorts them (to apply to the columns beside them).
+    Raises :class:`ConfigError` naming ``owner``, the offending value and, for a repeat, ``repeat_hint``.
+    """
+    if np.any(field <= 0.0):
+        index = int(np.flatnonzero(field <= 0.0)[0])
+        raise ConfigError(f"{owner}: reduced_field_Td[{index}]={float(field[index])!r} must be positive")
+    order = np.argsort(field, kind="stable")
+    field = field[order]
+    repeated = np.flatnonzero(np.diff(field) == 0.0)
+    if repeated.size:
+        raise ConfigError(f"{owner}: reduced_field_Td={float(field[repeated[0]])!r} Td appears more than once; "
+                          f"give each reduced field once ({repeat_hint})")
+    return field, order
+
+
 class CoefficientTable:
     """Reduced Townsend ionization and attachment coefficients tabulated against E/N.
 
@@ -212,15 +230,7 @@ class CoefficientTable:
                 raise ConfigError(f"{owner}: {name}[{index}]={float(array[index])!r} is negative at "
                                   f"{float(field[index])!r} Td; coefficients and their errors must be ≥ 0")
             arrays[name] = array
-        if np.any(field <= 0.0):
-            index = int(np.flatnonzero(field <= 0.0)[0])
-            raise ConfigError(f"{owner}: reduced_field_Td[{index}]={float(field[index])!r} must be positive")
-        order = np.argsort(field, kind="stable")
-        field = field[order]
-        repeated = np.flatnonzero(np.diff(field) == 0.0)
-        if repeated.size:
-            raise ConfigError(f"{owner}: reduced_field_Td={float(field[repeated[0]])!r} Td appears more than once; "
-                              "give each reduced field once (average repeated runs first)")
+        field, order = sorted_reduced_fields(field, owner, repeat_hint="average repeated runs first")
         self.temperature_K = _finite_number("temperature_K", temperature_K, owner)
         self.reduced_field_Td = field
         sorted_arrays = {name: array[order] for name, array in arrays.items()}

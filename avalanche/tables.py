@@ -24,7 +24,7 @@ from pathlib import Path
 import numpy as np
 
 from ._version import __version__
-from .coefficients import CoefficientTable, loglog_interpolate
+from .coefficients import CoefficientTable, loglog_interpolate, sorted_reduced_fields
 from .crosssections import _did_you_mean as did_you_mean
 from .errors import ConfigError, PhysicsWarning
 
@@ -147,15 +147,11 @@ class SwarmTable:
         fields = _array("reduced_field_Td", self.reduced_field_Td, owner)
         if fields.size == 0:
             raise ConfigError(f"{owner}: no reduced fields; give at least one point")
-        bad = ~np.isfinite(fields) | (fields <= 0.0)
+        bad = ~np.isfinite(fields)
         if np.any(bad):
             raise ConfigError(f"{owner}: reduced_field_Td={float(fields[bad][0])!r} must be positive and finite")
-        order = np.argsort(fields, kind="stable")
-        fields = fields[order]
-        repeated = np.flatnonzero(np.diff(fields) == 0.0)
-        if repeated.size:
-            raise ConfigError(f"{owner}: reduced_field_Td={float(fields[repeated[0]])!r} Td appears more than once; "
-                              "give each reduced field once (select one frequency/composition, or average repeats)")
+        fields, order = sorted_reduced_fields(
+            fields, owner, repeat_hint="select one frequency/composition, or average repeats")
         quantities = {}
         for name, pair in dict(self.quantities).items():
             try:
