@@ -27,3 +27,30 @@ def test_check_accepts_valid_and_rejects_malformed(capsys, write_set, set_text):
 def test_no_command_prints_help(capsys):
     assert main([]) == 2
     assert "COMMAND" in capsys.readouterr().out
+
+
+def test_swarm_command_json_and_hdf5_agree(capsys, tmp_path):
+    import json
+
+    from avalanche.io import load_result
+
+    out = tmp_path / "point.h5"
+    code = main(["swarm", "--gas", "reid-ramp", "--temperature", "0", "--density", "1e25", "--en", "12",
+                 "--max-events", "3e6", "--electrons", "1000", "--seed", "3", "--json", "--out", str(out)])
+    assert code == 0
+    data = json.loads(capsys.readouterr().out)
+    for name in ("mean_energy_eV", "drift_velocity_flux", "drift_velocity_bulk", "long_diffusion_N_flux",
+                 "long_diffusion_N_bulk", "trans_diffusion_N_flux", "trans_diffusion_N_bulk", "alpha_N", "eta_N"):
+        assert set(data[name]) == {"value", "stderr"}, name
+    # Reid ramp at 12 Td: mean energy 0.269 eV (Reid 1979, Aust. J. Phys. 32 231 — from memory); 1 % + 3 sigma
+    energy = data["mean_energy_eV"]
+    assert abs(energy["value"] - 0.269) < 0.01 * 0.269 + 3 * energy["stderr"]
+    stored = load_result(out)
+    assert stored.mean_energy_eV.value == energy["value"]
+    assert stored.drift_velocity_bulk.stderr == data["drift_velocity_bulk"]["stderr"]
+
+
+def test_swarm_command_reports_bad_input(capsys):
+    assert main(["swarm", "--gas", "nonesuch", "--en", "100"]) == 1
+    err = capsys.readouterr().err
+    assert "unknown gas 'nonesuch'" in err and "Traceback" not in err
