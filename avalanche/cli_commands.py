@@ -22,7 +22,7 @@ def _demo(args) -> int:
     header = f"{'E/N [Td]':>9s} {'mean energy [eV]':>18s} {'W bulk [m/s]':>20s} {'alpha/N [m2]':>24s} {'events':>10s}"
     print(header)
     for field in DEMO_FIELDS_Td:
-        r = swarm(mixture, field, seed=1, precision=0.05, max_events=30_000_000)
+        r = swarm(mixture, field, seed=1, precision=0.05, max_events=120_000_000)
         e, w, a = r.mean_energy_eV, r.drift_velocity_bulk, r.alpha_N
         print(f"{field:9.0f} {e.value:10.3f} ± {e.stderr:5.3f} {w.value:11.4g} ± {w.stderr:6.2g}"
               f" {a.value:12.4g} ± {a.stderr:8.2g} {r.events:10.3g}")
