@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import pytest
+
 from avalanche.cli import main
 
 
@@ -54,3 +56,17 @@ def test_swarm_command_reports_bad_input(capsys):
     assert main(["swarm", "--gas", "nonesuch", "--en", "100"]) == 1
     err = capsys.readouterr().err
     assert "unknown gas 'nonesuch'" in err and "Traceback" not in err
+
+
+@pytest.mark.slow
+def test_demo_computes_argon_points_with_the_safety_note(capsys):
+    from avalanche.cli_commands import DEMO_FIELDS_Td
+
+    assert main(["demo"]) == 0
+    out = capsys.readouterr().out
+    rows = [line.split() for line in out.splitlines() if line.split() and line.split()[0].replace(".", "").isdigit()]
+    assert [float(r[0]) for r in rows] == list(DEMO_FIELDS_Td)
+    # alpha/N rises with E/N in argon (Raizer 1991, Gas Discharge Physics, table 4.1 Townsend formula — from memory)
+    alpha = [float(r[7]) for r in rows]
+    assert all(a > 0 for a in alpha) and alpha == sorted(alpha)
+    assert "local electrical codes" in out
