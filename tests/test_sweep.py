@@ -231,11 +231,15 @@ KILLED = "import sys, avalanche.sweep_cli; from avalanche.cli import main; sys.e
 
 
 def _finished_points(path) -> list[int]:
-    """Indices of committed points, read while the sweep may still be writing (no file lock)."""
+    """Indices of committed points, read while the sweep may still be writing (no file lock).
+
+    A reader racing the writer can see a half-flushed B-tree; h5py then raises RuntimeError or
+    OSError. That is a torn read of a file still being written, not a damaged file, so poll again.
+    """
     try:
         with h5py.File(path, "r", locking=False) as f:
             return [int(k) for k, g in f["points"].items() if g.attrs.get("sweep_status") == "ok"]
-    except (OSError, KeyError):
+    except (OSError, KeyError, RuntimeError, ValueError):
         return []
 
 
