@@ -3,29 +3,15 @@
 from __future__ import annotations
 
 from .cli import SAFETY_NOTE, command, print_json
-from .library import available_gases, get_set
-
-DEMO_FIELDS_Td = (100.0, 200.0, 400.0)
-"""The demo's scenario (our own): an argon lamp-cell gas at 300 K and 1 kPa, three reduced fields."""
 
 
-@command("demo", "run the demonstration job on the shipped data (a few argon swarm points)")
+@command("demo", "run the demonstration job on the shipped data: an argon sweep, plots, a rate table and a "
+                 "Paschen curve", configure=lambda p: p.add_argument(
+                     "--out", default="runs", metavar="DIR", help="folder of the outputs (default: runs)"))
 def _demo(args) -> int:
-    from .engine import swarm
-    from .mixture import Mixture
+    from .demo import run_demo
 
-    print(f"avalanche demo: {len(available_gases())} gases in the library, all validated on load")
-    for name in available_gases():
-        get_set(name)
-    mixture = Mixture("Ar", temperature_K=300.0, pressure_Pa=1000.0)
-    print(f"argon at 300 K, 1 kPa (N = {mixture.number_density_m3:.3e} m^-3); Monte Carlo swarm points:")
-    header = f"{'E/N [Td]':>9s} {'mean energy [eV]':>18s} {'W bulk [m/s]':>20s} {'alpha/N [m2]':>24s} {'events':>10s}"
-    print(header)
-    for field in DEMO_FIELDS_Td:
-        r = swarm(mixture, field, seed=1, precision=0.05, max_events=120_000_000)
-        e, w, a = r.mean_energy_eV, r.drift_velocity_bulk, r.alpha_N
-        print(f"{field:9.0f} {e.value:10.3f} ± {e.stderr:5.3f} {w.value:11.4g} ± {w.stderr:6.2g}"
-              f" {a.value:12.4g} ± {a.stderr:8.2g} {r.events:10.3g}")
+    run_demo(args.out)
     print(SAFETY_NOTE)
     return 0
 

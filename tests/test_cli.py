@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import numpy as np
 import pytest
 
 from avalanche.cli import main
@@ -59,14 +60,37 @@ def test_swarm_command_reports_bad_input(capsys):
 
 
 @pytest.mark.slow
-def test_demo_computes_argon_points_with_the_safety_note(capsys):
-    from avalanche.cli_commands import DEMO_FIELDS_Td
+def test_demo_runs_the_whole_job_and_says_where_each_output_went(capsys, tmp_path):
+    import h5py
 
-    assert main(["demo"]) == 0
+    from avalanche.demo import DEMO_FIELDS_Td
+
+    assert main(["demo", "--out", str(tmp_path)]) == 0
     out = capsys.readouterr().out
-    rows = [line.split() for line in out.splitlines() if line.split() and line.split()[0].replace(".", "").isdigit()]
-    assert [float(r[0]) for r in rows] == list(DEMO_FIELDS_Td)
+    for name in ("demo.toml", "demo.h5", "demo_rates.csv", "demo_plots/demo_swarm.png", "demo_plots/demo_eedf.png",
+                 "demo_paschen/paschen_Ar.csv", "demo_paschen/paschen_Ar.png"):
+        path = tmp_path / name
+        assert path.stat().st_size > 0 and str(path) in out, name
+    with h5py.File(tmp_path / "demo.h5", "r") as f:
+        assert sorted(f["points"]) == [f"{k:06d}" for k in range(len(DEMO_FIELDS_Td))]
+    rows = np.loadtxt(tmp_path / "demo_rates.csv", delimiter=",", skiprows=_header_lines(tmp_path / "demo_rates.csv"))
+    names = _csv_names(tmp_path / "demo_rates.csv")
+    assert list(rows[:, 0]) == list(DEMO_FIELDS_Td)
     # alpha/N rises with E/N in argon (Raizer 1991, Gas Discharge Physics, table 4.1 Townsend formula — from memory)
-    alpha = [float(r[7]) for r in rows]
-    assert all(a > 0 for a in alpha) and alpha == sorted(alpha)
-    assert "local electrical codes" in out
+    alpha = rows[:, names.index("alpha_N")]
+    assert np.all(alpha > 0) and np.all(np.diff(alpha) > 0)
+    assert "Caution" in out and "local electrical codes" in out
+    # a second demo resumes the finished file instead of recomputing it
+    assert main(["demo", "--out", str(tmp_path)]) == 0
+    assert "exists: finished points are kept" in capsys.readouterr().out
+
+
+def _csv_names(path) -> list[str]:
+    lines = [line for line in path.read_text().splitlines() if not line.startswith("#")]
+    return lines[0].split(",")
+
+
+def _header_lines(path) -> int:
+    lines = path.read_text().splitlines()
+    comments = sum(1 for line in lines if line.startswith("#"))
+    return comments + 2  # the names line and the units line follow the comments
