@@ -48,6 +48,7 @@ ACTION_ELASTIC = 0
 ACTION_EXCITATION = 1
 ACTION_IONIZATION = 2
 ACTION_ATTACHMENT = 3
+ACTION_PENNING = 4      # a pseudo-process row with zero frequency (never selected): its count slot tallies Penning
 # Angular distributions.
 SCATTER_ISOTROPIC = 0
 SCATTER_SCREENED_COULOMB = 1
@@ -68,7 +69,7 @@ N_SUMS = 7
 # Columns of the per-replica integer counters of one chunk.
 COUNT_EVENTS = 0        # trial events (real and null)
 COUNT_REAL = 1          # real collisions
-COUNT_CREATED = 2       # electrons created (ionization)
+COUNT_CREATED = 2       # electrons created (ionization, Penning transfer)
 COUNT_REMOVED = 3       # electrons removed (attachment)
 COUNT_EEDF_OVERFLOW = 4  # trial events above the last histogram bin
 COUNT_ABOVE_BOUND = 5   # interpolated collision frequency above the trial frequency (must stay 0)
@@ -254,7 +255,8 @@ def _store(x, y, z, vx, vy, vz, r, i, px, py, pz, ux, uy, uz):
 def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc, accel_ac, omega, phase,
                      inv_cell_eV, n_cells, nu_star, nu_total, nu_cumulative, action, loss_eV, electron_fraction,
                      target_fraction, thermal_speed, scatter, sharing, w_eV, table_max_eV, reference,
-                     tally_positions, hist_inv_width_eV, sums, counts, hist, process_counts, extrapolated):
+                     tally_positions, hist_inv_width_eV, sums, counts, hist, process_counts, extrapolated,
+                     penning_probability, penning_energy_eV, penning_slot):
     s0 = rng[r, 0]
     s1 = rng[r, 1]
     s2 = rng[r, 2]
@@ -385,6 +387,24 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
                 new_energy = energy - loss_eV[k]
                 ux, uy, uz = turned_velocity(ux, uy, uz, speed_from_energy(new_energy), scatter[k], new_energy, u,
                                              phi)
+                # ---- Penning transfer (avalanche.penning): with probability r_k the excited atom ionizes the
+                # receiver; the new electron gets ε_level − I_B, isotropic, here and now; slot penning_slot[k] counts.
+                if penning_probability[k] > 0.0:
+                    a1, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
+                    if a1 < penning_probability[k]:
+                        if n >= capacity:
+                            status = 2
+                            break
+                        a2, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
+                        a3, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
+                        speed = speed_from_energy(penning_energy_eV[k])
+                        wx, wy, wz = new_direction(SCATTER_ISOTROPIC, 0.0, 0.0, 1.0, 0.0, a2, TWO_PI * a3)
+                        _store(x, y, z, vx, vy, vz, r, n, px, py, pz, speed * wx, speed * wy, speed * wz)
+                        birth[r, n] = t
+                        n += 1
+                        created += 1
+                        process_counts[r, penning_slot[k]] += 1
+                # ---- end of Penning transfer
             else:  # ACTION_IONIZATION
                 if n >= capacity:
                     status = 2
@@ -436,7 +456,8 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
 def advance_chunk(x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc, accel_ac, omega, phase,
                   inv_cell_eV, n_cells, nu_star, nu_total, nu_cumulative, action, loss_eV, electron_fraction,
                   target_fraction, thermal_speed, scatter, sharing, w_eV, table_max_eV, reference,
-                  tally_positions, hist_inv_width_eV, sums, counts, hist, process_counts, extrapolated):
+                  tally_positions, hist_inv_width_eV, sums, counts, hist, process_counts, extrapolated,
+                  penning_probability, penning_energy_eV, penning_slot):
     """Advance every replica's electrons from time ``t0`` to ``t1`` [s] (one chunk), in parallel over replicas.
 
     Each replica is a serial simulation with its own generator state, so the result does not depend on the
@@ -478,10 +499,14 @@ def advance_chunk(x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc, acce
     sums, counts, hist, process_counts, extrapolated : ndarray
         Outputs, overwritten: float tallies (R, N_SUMS), counters (R, N_COUNTS), energy histogram (R, B) of trial
         events, real collisions per process (R, P), and those beyond the process's table (R, P).
+    penning_probability, penning_energy_eV, penning_slot : ndarray, shape (P,)
+        Penning transfer per process (see :mod:`avalanche.penning`): the probability r_k that an excitation of
+        process k creates an electron (0 for no transfer), the created electron's energy ε_level − I_B [eV], and
+        the column of ``process_counts`` (a pseudo-process with zero frequency) that counts the transfers.
     """
     for r in prange(x.shape[0]):
         _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc, accel_ac, omega, phase,
                          inv_cell_eV, n_cells, nu_star, nu_total, nu_cumulative, action, loss_eV,
                          electron_fraction, target_fraction, thermal_speed, scatter, sharing, w_eV, table_max_eV,
                          reference, tally_positions, hist_inv_width_eV, sums, counts, hist, process_counts,
-                         extrapolated)
+                         extrapolated, penning_probability, penning_energy_eV, penning_slot)

@@ -22,14 +22,18 @@ def _mixture_arguments(p) -> None:
     density = p.add_mutually_exclusive_group()
     density.add_argument("--pressure", type=float, metavar="PA", help="gas pressure [Pa] (default 1 atm)")
     density.add_argument("--density", type=float, metavar="M3", help="gas number density [m^-3]")
+    p.add_argument("--penning", default=None, metavar="GROUP:R",
+                   help='Penning transfer probabilities, e.g. "Ne:0.3" or "Ne:1s:0.2,Ne:2p->Ar:0.5" (default none)')
 
 
 def mixture_from_args(args):
     """The :class:`~avalanche.mixture.Mixture` described by the common gas arguments."""
     from .mixture import Mixture
+    from .penning import parse_penning
 
+    penning = parse_penning(args.penning) if args.penning else None
     return Mixture(args.gas, temperature_K=args.temperature, pressure_Pa=args.pressure,
-                   number_density_m3=args.density)
+                   number_density_m3=args.density, penning=penning)
 
 
 def _swarm_configure(p) -> None:

@@ -14,7 +14,9 @@ Method
   target velocity is drawn from the Maxwellian at each real elastic collision (the collision frequency uses the
   electron speed, an O(V²/v²) approximation that is exact for the Maxwell model). Excitation: the threshold
   is lost (laboratory frame, target at rest). Attachment removes the electron. Ionization adds an electron and
-  shares ε − I by the ``sharing`` rule. Three-body processes scale with their species' density over
+  shares ε − I by the ``sharing`` rule. Penning transfer (a mixture's ``penning`` groups, :mod:`avalanche.penning`):
+  an excitation of a selected level creates, with its probability r, an electron of energy ε_level − I_B,
+  isotropic, at the excitation's place and time. Three-body processes scale with their species' density over
   ``reference_density_m3``. Angles are isotropic, or screened Coulomb (Okhrimovskyy et al. 2002) for every
   process if ``scattering="screened-coulomb"`` or for a process whose file says so; the elastic total cross
   section is then σ_m / ⟨1 − cos χ⟩, so that the momentum-transfer cross section is preserved, and inelastic
@@ -60,17 +62,20 @@ from .crosssections import _did_you_mean
 from .errors import AvalancheError, ConfigError, PhysicsWarning
 from .estimators import EstimatorContext, energy_distribution, extrapolated_fraction, rate_coefficients, swarm_estimates
 from .mixture import Mixture
+from .penning import kernel_arrays
 from .results import ESTIMATE_UNITS, SwarmResult
 from .tallies import SwarmTallies
 
 SHARING_RULES = {"equal": K.SHARING_EQUAL, "uniform": K.SHARING_UNIFORM, "opb": K.SHARING_OPB}
 SCATTERING_MODELS = {"isotropic": K.SCATTER_ISOTROPIC, "screened-coulomb": K.SCATTER_SCREENED_COULOMB}
 ACTIONS = {"elastic": K.ACTION_ELASTIC, "excitation": K.ACTION_EXCITATION, "ionization": K.ACTION_IONIZATION,
-           "attachment": K.ACTION_ATTACHMENT}
+           "attachment": K.ACTION_ATTACHMENT, "penning": K.ACTION_PENNING}
 ENERGY_FLOOR_eV = 1e-9
 """Cross sections are evaluated at ε ≥ this, so σ ∝ ε^-1/2 gives a finite σ v."""
 TRIAL_MARGIN = 1e-3
 """ν* = (1 + TRIAL_MARGIN) max ν(ε) over the nodes: a bound also between nodes for smooth data."""
+IONIZING_KINDS = ("ionization", "penning")
+"""Process kinds that create electrons (a "penning" row is the pseudo-process counting Penning transfers)."""
 RELAXATION_MIN_CHUNKS = 8
 RELAXATION_MIN_ENERGY_TIMES = 3.0
 EXTRAPOLATION_WARNING = 0.01
@@ -188,7 +193,9 @@ def momentum_transfer_fraction(energy_eV) -> np.ndarray:
 
 @dataclass(frozen=True, eq=False)
 class ProcessTable:
-    """The enabled processes of a mixture as kernel arrays (one entry per process)."""
+    """The enabled processes of a mixture as kernel arrays (one entry per process), followed by one pseudo-process
+    row of kind "penning" per Penning channel of the mixture (zero collision frequency, never selected; its count
+    is the channel's Penning ionizations, its target density the receiver's, see :mod:`avalanche.penning`)."""
 
     processes: tuple
     keys: tuple[str, ...]
@@ -205,6 +212,9 @@ class ProcessTable:
     sharing: np.ndarray
     w_eV: np.ndarray
     table_max_eV: np.ndarray
+    penning_probability: np.ndarray
+    penning_energy_eV: np.ndarray
+    penning_slot: np.ndarray
 
     @classmethod
     def build(cls, mixture: Mixture, sharing: str, scattering: str) -> ProcessTable:
@@ -236,6 +246,15 @@ class ProcessTable:
                     scatter=SCATTERING_MODELS[model], sharing=rule, w=w, table_max=proc.max_energy_eV))
         if not rows:
             raise ConfigError(f"mixture {mixture.label}: every process is disabled; enable at least the elastic one")
+        penning = kernel_arrays(mixture.penning_channels, [r["species"] for r in rows],
+                                [r["process"].label for r in rows])
+        fractions = {c.name: c.fraction for c in mixture.components}
+        for channel in mixture.penning_channels:
+            rows.append(dict(process=channel, key=channel.key, kind="penning", species=channel.receiver,
+                             density=fractions[channel.receiver] * mixture.number_density_m3, factor=1.0,
+                             action=K.ACTION_PENNING, loss=0.0, electron_fraction=0.0, target_fraction=0.0,
+                             thermal=0.0, scatter=K.SCATTER_ISOTROPIC, sharing=K.SHARING_EQUAL, w=0.0,
+                             table_max=math.inf))
 
         def col(name, dtype=float):
             return np.array([r[name] for r in rows], dtype=dtype)
@@ -246,7 +265,8 @@ class ProcessTable:
                    loss_eV=col("loss"), electron_fraction=col("electron_fraction"),
                    target_fraction=col("target_fraction"), thermal_speed=col("thermal"),
                    scatter=col("scatter", np.int64), sharing=col("sharing", np.int64), w_eV=col("w"),
-                   table_max_eV=col("table_max"))
+                   table_max_eV=col("table_max"), penning_probability=penning[0], penning_energy_eV=penning[1],
+                   penning_slot=penning[2])
 
     def frequencies(self, energy_eV: np.ndarray) -> np.ndarray:
         """Collision frequency of each process [s⁻¹] at ``energy_eV`` (shape (P, len(energy_eV)))."""
@@ -254,6 +274,9 @@ class ProcessTable:
         speed = np.sqrt(2.0 * energy * EV_J / ELECTRON_MASS_kg)
         out = np.empty((len(self.processes), energy.size))
         for k, proc in enumerate(self.processes):
+            if self.kinds[k] == "penning":
+                out[k] = 0.0
+                continue
             sigma = np.asarray(proc.sigma_m2(energy), dtype=float)
             if proc.kind == "elastic" and self.scatter[k] == K.SCATTER_SCREENED_COULOMB:
                 sigma = sigma / momentum_transfer_fraction(energy)
@@ -419,7 +442,8 @@ def ensure_compiled() -> None:
                     1.0, 1, 1.0, np.ones(2), np.ones((2, 1)), np.zeros(1, dtype=np.int64), np.zeros(1),
                     np.zeros(1), np.ones(1), np.zeros(1), np.zeros(1, dtype=np.int64), np.zeros(1, dtype=np.int64),
                     np.zeros(1), np.full(1, np.inf), np.zeros((1, 3)), True, 1.0, np.zeros((1, K.N_SUMS)),
-                    np.zeros((1, K.N_COUNTS), dtype=np.int64), i2.copy(), i2.copy(), i2.copy())
+                    np.zeros((1, K.N_COUNTS), dtype=np.int64), i2.copy(), i2.copy(), i2.copy(), np.zeros(1),
+                    np.zeros(1), np.full(1, -1, dtype=np.int64))
 
 
 class _Run:
@@ -432,7 +456,8 @@ class _Run:
         self.field_V_m = reduced_field_Td * TOWNSEND_V_m2 * mixture.number_density_m3
         self.accel = ELEMENTARY_CHARGE_C * self.field_V_m / ELECTRON_MASS_kg
         self.kT_eV = BOLTZMANN_J_K * mixture.temperature_K / EV_J
-        self.ens = Ensemble(settings, growing=bool(np.any(self.table.action == K.ACTION_IONIZATION)))
+        self.ens = Ensemble(settings, growing=bool(np.any(self.table.action == K.ACTION_IONIZATION)
+                                                   or np.any(self.table.penning_probability > 0)))
         start = settings.energy_max_eV or 10.0 * settings.initial_energy_eV
         self.grid = EnergyGrid.build(self.table, start, settings.energy_cells)
         R, P, B = settings.replicas, len(self.table.processes), settings.eedf_bins
@@ -456,7 +481,8 @@ class _Run:
                             t.loss_eV, t.electron_fraction, t.target_fraction, t.thermal_speed, t.scatter,
                             t.sharing, t.w_eV, t.table_max_eV, reference, positions,
                             self.settings.eedf_bins / self.eedf_max_eV,
-                            o.sums, o.counts, o.hist, o.process_counts, o.extrapolated)
+                            o.sums, o.counts, o.hist, o.process_counts, o.extrapolated, t.penning_probability,
+                            t.penning_energy_eV, t.penning_slot)
             self.events += int(o.counts[:, K.COUNT_EVENTS].sum())
             self.anomalies["frequency_above_bound"] += int(o.counts[:, K.COUNT_ABOVE_BOUND].sum())
             above = bool(o.counts[:, K.COUNT_ABOVE_GRID].any())
@@ -658,7 +684,7 @@ def _simulate(run: _Run, reduced_field_Td: float) -> SwarmResult:
     mature_from = window_end = math.inf
     skip = segment = math.nan
     stop_reason = "max_events"
-    ion_kinds = np.array([k == "ionization" for k in run.table.kinds])
+    ion_kinds = np.array([k in IONIZING_KINDS for k in run.table.kinds])
     precision_on = s.precision_on
     while True:
         dt = run.chunk_duration(nu_eff)

@@ -19,7 +19,11 @@ averages of the swarm because the trial events are Poisson in time)
   unchanged and keeps the sums small.
 * rate coefficient of process k: k_k = C_k / (N_k ∫ n dt) [m³ s⁻¹], C_k its real collisions and N_k the density
   of its target species (per target molecule); totals are frequencies divided by the total density N.
-* ν_ion, ν_att: ionization and attachment frequencies per electron [s⁻¹]; ν_eff = ν_ion − ν_att.
+* ν_ion, ν_att: ionization and attachment frequencies per electron [s⁻¹]; ν_eff = ν_ion − ν_att. ν_ion counts
+  direct ionization and Penning transfer (the "penning" pseudo-processes, :mod:`avalanche.penning`):
+  ν_ion = ν_direct + ν_Penning. penning_ionization_rate_coefficient = ν_Penning / N, penning_fraction =
+  ν_Penning / ν_ion; the per-channel rate coefficient of a "penning" row is per receiver molecule,
+  C / (N_B ∫ n dt), like that of any process of B.
 * Townsend coefficients (steady-state, with the longitudinal-diffusion correction; e.g. Robson R E 1991, Aust.
   J. Phys. 44 685, eq. for α from the time-of-flight coefficients, from memory):
   α(ν) = [W − √(W² − 4 D_L ν)] / (2 D_L) = 2ν / (W + √(W² − 4 D_L ν)), with W = W_bulk and D_L the bulk value.
@@ -54,7 +58,8 @@ class EstimatorContext:
     process_keys : tuple of str
         Result key of each process (label, or "<species>:<label>").
     process_kinds : tuple of str
-        Kind of each process ('elastic', 'excitation', 'ionization', 'attachment').
+        Kind of each process ('elastic', 'excitation', 'ionization', 'attachment', or 'penning' for a Penning
+        transfer pseudo-process).
     target_density_m3 : ndarray, shape (P,)
         Density of each process's target species [m⁻³].
     energy_edges_eV : ndarray, shape (B + 1,)
@@ -137,7 +142,8 @@ def per_replica_quantities(t: SwarmTallies, ctx: EstimatorContext) -> dict[str, 
     kinds = np.asarray(ctx.process_kinds)
     counts = t["process_counts"].astype(float)
     exposure = t["exposure_s"]
-    ionization = counts[:, kinds == "ionization"].sum(axis=1)
+    penning = counts[:, kinds == "penning"].sum(axis=1)
+    ionization = counts[:, kinds == "ionization"].sum(axis=1) + penning
     attachment = counts[:, kinds == "attachment"].sum(axis=1)
     excitation = counts[:, kinds == "excitation"].sum(axis=1)
     nu_ion = _ratio(ionization, exposure)
@@ -168,6 +174,8 @@ def per_replica_quantities(t: SwarmTallies, ctx: EstimatorContext) -> dict[str, 
         "ionization_rate_coefficient": nu_ion / N,
         "attachment_rate_coefficient": nu_att / N,
         "excitation_rate_coefficient": _ratio(excitation, exposure) / N,
+        "penning_ionization_rate_coefficient": _ratio(penning, exposure) / N,
+        "penning_fraction": _ratio(penning, ionization),
         "effective_ionization_frequency": nu_eff,
         "collision_frequency": _ratio(t["real_collisions"], exposure),
     }

@@ -11,6 +11,7 @@ from .constants import number_density_m3 as ideal_gas_density_m3
 from .crosssections import CrossSectionSet
 from .errors import AvalancheError, ConfigError
 from .library import get_set, named_mixtures
+from .penning import PenningChannel, penning_channels
 
 FRACTION_TOLERANCE = 1e-6
 
@@ -65,10 +66,22 @@ class Mixture:
         Total number density N [m⁻³]; overrides the pressure.
     sets : mapping, optional
         Cross-section sets to use for some species instead of the library's (e.g. model gases with parameters).
+    penning : mapping, optional
+        Penning transfer: level group → transfer probability r in [0, 1] (default none), e.g. ``{"Ne": 0.3}`` (every
+        neon level above the receiver's ionization energy) or ``{"Ne:1s": 0.2, "Ne:2p->Ar": 0.5}`` (levels whose
+        label starts with the pattern; ``-> B`` names the receiver, else the other component with the lowest
+        ionization energy). See :mod:`avalanche.penning` for the rules and the model. Groups with r = 0 are
+        dropped after validation.
+
+    Raises
+    ------
+    ConfigError
+        Bad composition, state or Penning settings (the message names the field and the fix).
     """
 
     def __init__(self, composition, temperature_K: float = 300.0, pressure_Pa: float | None = None,
-                 number_density_m3: float | None = None, sets: Mapping[str, CrossSectionSet] | None = None):
+                 number_density_m3: float | None = None, sets: Mapping[str, CrossSectionSet] | None = None,
+                 penning: Mapping[str, float] | None = None):
         if isinstance(composition, str):
             composition = parse_composition(composition)
         if not isinstance(composition, Mapping) or not composition:
@@ -116,6 +129,10 @@ class Mixture:
         self.temperature_K = temperature_K
         self.number_density_m3 = density
         self.pressure_Pa = pressure_Pa if number_density_m3 is None else None
+        self.penning_channels: tuple[PenningChannel, ...] = penning_channels(penning, self.components)
+        groups = {c.group for c in self.penning_channels}
+        self.penning: dict[str, float] = {k: float(v) for k, v in (penning or {}).items() if k in groups}
+        """The Penning groups with r > 0 (group → r)."""
 
     @staticmethod
     def _number(name, value) -> float:
@@ -135,11 +152,17 @@ class Mixture:
         return {c.name: c.cross_sections.checksum() for c in self.components}
 
     def describe(self) -> dict:
-        """Plain-data description (for results files and JSON)."""
-        return {"composition": {c.name: c.fraction for c in self.components},
-                "temperature_K": self.temperature_K, "number_density_m3": self.number_density_m3,
-                "pressure_Pa": self.pressure_Pa, "checksums": self.checksums()}
+        """Plain-data description (for results files and JSON); ``penning`` (groups and channels) only when some
+        transfer probability is nonzero."""
+        out = {"composition": {c.name: c.fraction for c in self.components},
+               "temperature_K": self.temperature_K, "number_density_m3": self.number_density_m3,
+               "pressure_Pa": self.pressure_Pa, "checksums": self.checksums()}
+        if self.penning_channels:
+            out["penning"] = {"groups": dict(self.penning),
+                              "channels": [c.describe() for c in self.penning_channels]}
+        return out
 
     def __repr__(self) -> str:
+        penning = f", penning={self.penning!r}" if self.penning else ""
         return (f"Mixture({self.label!r}, temperature_K={self.temperature_K:g}, "
-                f"number_density_m3={self.number_density_m3:.4g})")
+                f"number_density_m3={self.number_density_m3:.4g}{penning})")

@@ -78,6 +78,8 @@ _PANEL_LABELS = {
     "ionization_rate_coefficient": "ionization rate coefficient",
     "attachment_rate_coefficient": "attachment rate coefficient",
     "excitation_rate_coefficient": "total excitation rate coefficient",
+    "penning_ionization_rate_coefficient": "Penning ionization rate coefficient",
+    "penning_fraction": "Penning share of ionization",
     "rate_coefficients": "rate coefficients",
 }
 

@@ -86,9 +86,11 @@ ESTIMATES: tuple[tuple[str, str, str], ...] = (
     ("effective_alpha_N", "m2", "(alpha - eta)/N from nu_eff"),
     ("alpha_N_simple", "m2", "nu_ion / (N W_bulk)"),
     ("eta_N_simple", "m2", "nu_att / (N W_bulk)"),
-    ("ionization_rate_coefficient", "m3/s", "total ionization frequency / N"),
+    ("ionization_rate_coefficient", "m3/s", "total ionization frequency / N (direct + Penning)"),
     ("attachment_rate_coefficient", "m3/s", "total attachment frequency / N"),
     ("excitation_rate_coefficient", "m3/s", "total excitation frequency / N"),
+    ("penning_ionization_rate_coefficient", "m3/s", "Penning ionization frequency / N"),
+    ("penning_fraction", "1", "Penning share of the ionization frequency"),
     ("effective_ionization_frequency", "1/s", "nu_ion - nu_att"),
     ("collision_frequency", "1/s", "real collision frequency per electron"),
 )

@@ -32,6 +32,7 @@ from .crosssections import _did_you_mean
 from .errors import AvalancheError, ConfigError
 from .library import MODEL_GASES, model_gas
 from .mixture import Mixture, parse_composition
+from .penning import applicable_penning, split_key
 
 RUNFILE_FORMAT_VERSION = 1
 MODES = ("time-of-flight", "steady-state-townsend")
@@ -43,7 +44,7 @@ _SECTIONS = {
     "format_version": None,
     "sweep": {"name", "description", "mode", "seed", "output"},
     "gas": {"mixture", "mixtures", "balance", "fractions", "temperature_K", "pressure_Pa", "number_density_m3",
-            "parameters"},
+            "parameters", "penning"},
     "grid": {"reduced_field_Td", "frequencies_Hz"},
     "engine": None,  # keywords of avalanche.engine.swarm, checked in _engine_options
     "cluster": {"kind", "jobs", "cores", "processes", "memory", "walltime", "queue", "account", "options"},
@@ -111,12 +112,15 @@ class MixtureSpec:
         Species (library name, or absolute path of a ``.toml`` set) → mole fraction; zero fractions removed.
     parameters : dict
         Model-gas parameters per species (e.g. ``{"lucas-saelee": {"F": 0.5}}``).
+    penning : dict
+        Penning transfer groups that apply to this composition → probability (see :mod:`avalanche.penning`).
     label : str
         The string form, e.g. ``"Ne:0.99,Ar:0.01"`` (or ``"Ar"``).
     """
 
     composition: dict
     parameters: dict = field(default_factory=dict)
+    penning: dict = field(default_factory=dict)
 
     @property
     def label(self) -> str:
@@ -126,17 +130,22 @@ class MixtureSpec:
 
     @property
     def key(self) -> str:
-        """Canonical text of the composition and parameters (exact fractions); the mixture's seed coordinate."""
-        return json.dumps({"composition": {_species_label(k): v for k, v in sorted(self.composition.items())},
-                           "parameters": {k: self.parameters[k] for k in sorted(self.parameters)}},
-                          sort_keys=True)
+        """Canonical text of the composition, parameters and Penning groups (exact values; ``penning`` only for
+        groups with r > 0, so that r = 0 is the same mixture as no transfer, seed included); the mixture's seed
+        coordinate."""
+        data = {"composition": {_species_label(k): v for k, v in sorted(self.composition.items())},
+                "parameters": {k: self.parameters[k] for k in sorted(self.parameters)}}
+        active = {k: v for k, v in sorted(self.penning.items()) if v > 0}
+        if active:
+            data["penning"] = active
+        return json.dumps(data, sort_keys=True)
 
     def build(self, temperature_K: float, pressure_Pa: float | None = None,
               number_density_m3: float | None = None) -> Mixture:
         """The :class:`~avalanche.mixture.Mixture` of this composition at the given state."""
         sets = {name: model_gas(name, **params) for name, params in self.parameters.items()}
         return Mixture(dict(self.composition), temperature_K=temperature_K, pressure_Pa=pressure_Pa,
-                       number_density_m3=number_density_m3, sets=sets)
+                       number_density_m3=number_density_m3, sets=sets, penning=self.penning or None)
 
 
 def _species_label(name: str) -> str:
@@ -514,15 +523,38 @@ def _mixtures(gas: dict, check: _Checker, base: Path) -> tuple[MixtureSpec, ...]
         compositions = [_composition(v, f"[gas] mixtures[{i}]", check, base) for i, v in enumerate(value)]
     else:
         compositions = _composition_grid(gas, check, base)
+    penning = _penning_table(gas, check, compositions)
     specs = []
     for composition in compositions:
         used = {k: dict(v) for k, v in parameters.items() if k in composition}
-        specs.append(MixtureSpec(composition=composition, parameters=used))
+        specs.append(MixtureSpec(composition=composition, parameters=used,
+                                 penning=applicable_penning(penning, composition)))
     keys = [s.key for s in specs]
     for i, key in enumerate(keys):
         if key in keys[:i]:
             raise ConfigError(f"{check.source}: [gas] mixture {specs[i].label} appears more than once")
     return tuple(specs)
+
+
+def _penning_table(gas: dict, check: _Checker, compositions: list[dict[str, float]]) -> dict[str, float]:
+    """The [gas] penning table (level group → transfer probability). It serves every mixture of the sweep; each
+    group must apply to at least one (its species and a receiver present); the rest of the checks (levels, ionization
+    energies) happen when the mixtures are built."""
+    table = gas.get("penning", {})
+    if not isinstance(table, dict):
+        check.fail("[gas]", "penning", table, "must be a table of level group → transfer probability, e.g. "
+                   "penning = { Ne = 0.3 } or penning = { \"Ne:1s\" = 0.2, \"Ne:2p\" = 0.5 }")
+    species = sorted({_species_label(k) for c in compositions for k in c})
+    for key, value in table.items():
+        if isinstance(value, bool) or not isinstance(value, (int, float)) or not 0 <= value <= 1:
+            check.fail("[gas.penning]", f'"{key}"', value, "must be a transfer probability between 0 and 1")
+        if not any(applicable_penning({key: value}, c) for c in compositions):
+            donor, _, receiver = split_key(key)
+            missing = donor if donor not in species else (receiver or "a second species")
+            raise ConfigError(f"{check.source}: [gas.penning] \"{key}\" applies to no mixture of the sweep: "
+                              f"'{missing}' is not in any of them{_did_you_mean(missing, species)} (species: "
+                              f"{species})")
+    return {k: float(v) for k, v in table.items()}
 
 
 def _composition_grid(gas: dict, check: _Checker, base: Path) -> list[dict[str, float]]:

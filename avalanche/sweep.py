@@ -59,7 +59,8 @@ def point_task(runfile: RunFile, point, threads: int | None = 1) -> dict:
     """The plain-data task of one grid point, as sent to a worker (see :func:`compute_point`)."""
     mixture = runfile.mixtures[point.mixture_index]
     species = runfile.mixture_checksums[point.mixture_index]
-    return {"index": point.index, "mixture": {"composition": mixture.composition, "parameters": mixture.parameters},
+    return {"index": point.index, "mixture": {"composition": mixture.composition, "parameters": mixture.parameters,
+                                              "penning": mixture.penning},
             "temperature_K": runfile.temperature_K, "pressure_Pa": runfile.pressure_Pa,
             "number_density_m3": runfile.number_density_m3, "reduced_field_Td": point.reduced_field_Td,
             "frequency_Hz": point.frequency_Hz, "mode": runfile.mode, "seed": point.seed,

@@ -52,6 +52,8 @@ QUANTITY_UNITS: dict[str, str] = {
     "ionization_rate_coefficient": "m3/s",
     "attachment_rate_coefficient": "m3/s",
     "excitation_rate_coefficient": "m3/s",
+    "penning_ionization_rate_coefficient": "m3/s",
+    "penning_fraction": "1",
     "effective_ionization_frequency": "1/s",
     "collision_frequency": "1/s",
 }
