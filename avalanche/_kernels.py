@@ -76,6 +76,17 @@ COUNT_ABOVE_BOUND = 5   # interpolated collision frequency above the trial frequ
 COUNT_ABOVE_GRID = 6    # 1 if an electron left the energy grid: the chunk must be redone on a larger grid
 COUNT_OVERFLOW = 7      # 1 if the particle store was full: the chunk must be redone with a larger store
 N_COUNTS = 8
+# AC: columns of the per-replica, per-phase-bin tallies (``phase_sums`` (R, B_φ, N_PHASE_SUMS) and
+# ``phase_counts`` (R, B_φ, N_PHASE_COUNTS)); real collisions per bin and process go to ``phase_process``.
+PHASE_ENERGY = 0        # Σ ε at trial events in the bin [eV]
+PHASE_VZ = 1            # Σ v_z [m/s]
+PHASE_EXPOSURE = 2      # ∫ n dt inside the bin [s]
+PHASE_POWER = 3         # Σ a(t) v_z [m² s⁻³] (× m/e: power per electron from the field [eV/s])
+N_PHASE_SUMS = 4
+PHASE_EVENTS = 0        # trial events in the bin
+PHASE_CREATED = 1       # electrons created (ionization, Penning transfer)
+PHASE_REMOVED = 2       # electrons removed (attachment)
+N_PHASE_COUNTS = 3
 
 
 # ------------------------------------------------------------------------------------------- random numbers
@@ -134,6 +145,114 @@ def field_flight(t, tau, accel_dc, accel_ac, omega, phase):
     dv = accel_dc * tau + scale * (math.cos(theta0) - math.cos(theta1))
     dz = 0.5 * accel_dc * tau * tau + scale * (tau * math.cos(theta0) - (math.sin(theta1) - math.sin(theta0)) / omega)
     return dv, dz
+
+
+# ------------------------------------------------------------------------- AC: tabulated waveform, phases
+# (AC block: everything between here and "collision kinematics" serves periodic drives; DC runs never enter it.)
+
+@jit
+def _table_impulses(x, period, wave_time, wave_accel, wave_F, wave_G):
+    """F(x) = ∫₀ˣ a and G(x) = ∫₀ˣ F of the periodic piecewise-linear acceleration, x ≥ 0 from a period start.
+
+    With x = k T + s (0 ≤ s < T), F_T = F(T) and G_T = G(T) the whole-period sums:
+    F(x) = k F_T + F(s), G(x) = k G_T + F_T T k(k − 1)/2 + k F_T s + G(s); inside node interval i (u = s − t_i,
+    slope c) F(s) = F_i + a_i u + c u²/2 and G(s) = G_i + F_i u + a_i u²/2 + c u³/6.
+    """
+    last = wave_time.shape[0] - 1
+    k = math.floor(x / period)
+    s = x - k * period
+    if s >= period:
+        s -= period
+        k += 1
+    if s < 0.0:
+        s = 0.0
+    i = np.searchsorted(wave_time, s, side="right") - 1
+    if i >= last:
+        i = last - 1
+    u = s - wave_time[i]
+    c = (wave_accel[i + 1] - wave_accel[i]) / (wave_time[i + 1] - wave_time[i])
+    f_local = wave_F[i] + wave_accel[i] * u + 0.5 * c * u * u
+    g_local = wave_G[i] + wave_F[i] * u + 0.5 * wave_accel[i] * u * u + c * u * u * u / 6.0
+    f_period = wave_F[last]
+    g = k * wave_G[last] + f_period * period * 0.5 * k * (k - 1.0) + k * f_period * s + g_local
+    return k * f_period + f_local, g
+
+
+@jit
+def table_flight(t, tau, accel_dc, period, wave_time, wave_accel, wave_F, wave_G):
+    """Δv_z [m/s] and Δz [m] of a free flight from t to t + τ [s] in a(t) = a_dc + a_w(t mod T), a_w piecewise
+    linear through (``wave_time``, ``wave_accel``) with precomputed node impulses ``wave_F``, ``wave_G``.
+
+    Exact (see :func:`field_flight` for Δv = F(t+τ) − F(t), Δz = G(t+τ) − G(t) − F(t) τ). Times are taken from
+    the start of the flight's period, so k counts only the periods the flight spans; a flight inside one node
+    interval uses Δv = a₀τ + cτ²/2, Δz = a₀τ²/2 + cτ³/6 directly (no cancellation).
+    """
+    s0 = t - math.floor(t / period) * period
+    if s0 >= period or s0 < 0.0:
+        s0 = 0.0
+    i = np.searchsorted(wave_time, s0, side="right") - 1
+    if i >= wave_time.shape[0] - 1:
+        i = wave_time.shape[0] - 2
+    dc_v = accel_dc * tau
+    dc_z = 0.5 * accel_dc * tau * tau
+    if s0 + tau <= wave_time[i + 1]:
+        c = (wave_accel[i + 1] - wave_accel[i]) / (wave_time[i + 1] - wave_time[i])
+        a0 = wave_accel[i] + c * (s0 - wave_time[i])
+        return dc_v + a0 * tau + 0.5 * c * tau * tau, dc_z + 0.5 * a0 * tau * tau + c * tau * tau * tau / 6.0
+    f0, g0 = _table_impulses(s0, period, wave_time, wave_accel, wave_F, wave_G)
+    f1, g1 = _table_impulses(s0 + tau, period, wave_time, wave_accel, wave_F, wave_G)
+    return dc_v + f1 - f0, dc_z + g1 - g0 - f0 * tau
+
+
+@jit
+def instantaneous_accel(t, accel_dc, accel_ac, omega, phase, period, wave_time, wave_accel):
+    """a(t) [m s⁻²]: a_dc + a_ac sin(ωt + φ), or a_dc + the tabulated waveform at t mod T when it is given."""
+    if wave_time.shape[0] == 0:
+        return accel_dc + accel_ac * math.sin(omega * t + phase)
+    s = t - math.floor(t / period) * period
+    i = np.searchsorted(wave_time, s, side="right") - 1
+    if i >= wave_time.shape[0] - 1:
+        i = wave_time.shape[0] - 2
+    if i < 0:
+        i = 0
+    f = (s - wave_time[i]) / (wave_time[i + 1] - wave_time[i])
+    return accel_dc + wave_accel[i] + f * (wave_accel[i + 1] - wave_accel[i])
+
+
+@jit
+def phase_bin(t, inv_period, n_bins):
+    """Index of the phase bin of time t [s]: int(n_bins · frac(t / T))."""
+    x = t * inv_period
+    b = int((x - math.floor(x)) * n_bins)
+    return n_bins - 1 if b >= n_bins else (0 if b < 0 else b)
+
+
+@jit
+def split_exposure(phase_sums, r, column, t, tau, inv_period, n_bins):
+    """Add the flight [t, t + τ] to the exposure column of the phase bins it crosses (exactly); returns the number
+    of whole periods it spans (each adds T / n_bins to every bin; the caller adds them once at the end)."""
+    x0 = t * inv_period
+    position = (x0 - math.floor(x0)) * n_bins
+    length = tau * inv_period * n_bins
+    whole = math.floor(length / n_bins)
+    length -= whole * n_bins
+    bin_time = 1.0 / (inv_period * n_bins)
+    b = int(position)
+    if b >= n_bins:
+        b = 0
+        position = 0.0
+    while length > 0.0:
+        room = b + 1.0 - position
+        if length <= room:
+            phase_sums[r, b, column] += length * bin_time
+            break
+        phase_sums[r, b, column] += room * bin_time
+        length -= room
+        b += 1
+        if b == n_bins:
+            b = 0
+        position = float(b)
+    return whole
 
 
 # ----------------------------------------------------------------------------------- collision kinematics
@@ -256,7 +375,8 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
                      inv_cell_eV, n_cells, nu_star, nu_total, nu_cumulative, action, loss_eV, electron_fraction,
                      target_fraction, thermal_speed, scatter, sharing, w_eV, table_max_eV, reference,
                      tally_positions, hist_inv_width_eV, sums, counts, hist, process_counts, extrapolated,
-                     penning_probability, penning_energy_eV, penning_slot):
+                     penning_probability, penning_energy_eV, penning_slot, period_s, wave_time, wave_accel,
+                     wave_F, wave_G, phase_sums, phase_counts, phase_process):
     s0 = rng[r, 0]
     s1 = rng[r, 1]
     s2 = rng[r, 2]
@@ -269,6 +389,22 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
     for k in range(n_proc):
         process_counts[r, k] = 0
         extrapolated[r, k] = 0
+    # -- AC block: phase-resolved tallies (period_s > 0 only) --
+    ac = period_s > 0.0
+    table = wave_time.shape[0] > 0
+    n_phase = phase_sums.shape[1]
+    inv_period = 1.0 / period_s if ac else 0.0
+    whole_periods = 0.0
+    pb = 0
+    if ac:
+        for b in range(n_phase):
+            for j in range(N_PHASE_SUMS):
+                phase_sums[r, b, j] = 0.0
+            for j in range(N_PHASE_COUNTS):
+                phase_counts[r, b, j] = 0
+            for k in range(n_proc):
+                phase_process[r, b, k] = 0
+    # -- end AC block --
     x_ref = reference[r, 0]
     y_ref = reference[r, 1]
     z_ref = reference[r, 2]
@@ -307,7 +443,12 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
             last = t + tau >= t1
             if last:
                 tau = t1 - t
-            dvz, dz = field_flight(t, tau, accel_dc, accel_ac, omega, phase)
+            if table:  # AC: tabulated waveform
+                dvz, dz = table_flight(t, tau, accel_dc, period_s, wave_time, wave_accel, wave_F, wave_G)
+            else:
+                dvz, dz = field_flight(t, tau, accel_dc, accel_ac, omega, phase)
+            if ac:
+                whole_periods += split_exposure(phase_sums, r, PHASE_EXPOSURE, t, tau, inv_period, n_phase)
             px += ux * tau
             py += uy * tau
             pz += uz * tau + dz
@@ -333,6 +474,13 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
                 sum_zvz += dzr * uz
                 sum_z += dzr
                 sum_xyv += (px - x_ref) * ux + (py - y_ref) * uy
+            if ac:  # AC: the event's phase bin
+                pb = phase_bin(t, inv_period, n_phase)
+                phase_counts[r, pb, PHASE_EVENTS] += 1
+                phase_sums[r, pb, PHASE_ENERGY] += energy
+                phase_sums[r, pb, PHASE_VZ] += uz
+                phase_sums[r, pb, PHASE_POWER] += uz * instantaneous_accel(t, accel_dc, accel_ac, omega, phase,
+                                                                           period_s, wave_time, wave_accel)
             b = int(energy * hist_inv_width_eV)
             if b < n_bins:
                 hist[r, b] += 1
@@ -358,12 +506,16 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
                 continue  # inside the threshold's grid cell but below the threshold: rejected like a null event
             real += 1
             process_counts[r, k] += 1
+            if ac:
+                phase_process[r, pb, k] += 1
             if energy > table_max_eV[k]:
                 extrapolated[r, k] += 1
             kind = action[k]
             if kind == ACTION_ATTACHMENT:
                 alive = False
                 removed += 1
+                if ac:
+                    phase_counts[r, pb, PHASE_REMOVED] += 1
                 break
             u, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
             u_phi, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
@@ -404,6 +556,9 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
                         n += 1
                         created += 1
                         process_counts[r, penning_slot[k]] += 1
+                        if ac:
+                            phase_counts[r, pb, PHASE_CREATED] += 1
+                            phase_process[r, pb, penning_slot[k]] += 1
                 # ---- end of Penning transfer
             else:  # ACTION_IONIZATION
                 if n >= capacity:
@@ -422,6 +577,8 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
                 birth[r, n] = t
                 n += 1
                 created += 1
+                if ac:
+                    phase_counts[r, pb, PHASE_CREATED] += 1
             vperp2 = ux * ux + uy * uy
         if status != 0:
             break
@@ -431,6 +588,9 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
         i += 1
     if status == 0:
         count[r] = write
+    if ac and whole_periods > 0.0:  # AC: whole periods spanned by flights add T / B_φ to every bin
+        for b in range(n_phase):
+            phase_sums[r, b, PHASE_EXPOSURE] += whole_periods * period_s / n_phase
     rng[r, 0] = s0
     rng[r, 1] = s1
     rng[r, 2] = s2
@@ -457,7 +617,8 @@ def advance_chunk(x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc, acce
                   inv_cell_eV, n_cells, nu_star, nu_total, nu_cumulative, action, loss_eV, electron_fraction,
                   target_fraction, thermal_speed, scatter, sharing, w_eV, table_max_eV, reference,
                   tally_positions, hist_inv_width_eV, sums, counts, hist, process_counts, extrapolated,
-                  penning_probability, penning_energy_eV, penning_slot):
+                  penning_probability, penning_energy_eV, penning_slot, period_s, wave_time, wave_accel, wave_F,
+                  wave_G, phase_sums, phase_counts, phase_process):
     """Advance every replica's electrons from time ``t0`` to ``t1`` [s] (one chunk), in parallel over replicas.
 
     Each replica is a serial simulation with its own generator state, so the result does not depend on the
@@ -503,10 +664,21 @@ def advance_chunk(x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc, acce
         Penning transfer per process (see :mod:`avalanche.penning`): the probability r_k that an excitation of
         process k creates an electron (0 for no transfer), the created electron's energy ε_level − I_B [eV], and
         the column of ``process_counts`` (a pseudo-process with zero frequency) that counts the transfers.
+    period_s : float
+        AC: the drive period T [s]; 0 for DC (no phase tallies, and the phase arrays are not touched).
+    wave_time, wave_accel, wave_F, wave_G : ndarray, shape (M,)
+        AC, tabulated waveform: node times in [0, T] (first 0, last T), the acceleration at the nodes (last =
+        first) and the impulses F, G at the nodes (see :func:`table_flight`); empty arrays for DC or a sine
+        (which uses ``accel_ac``, ``omega``, ``phase``).
+    phase_sums, phase_counts, phase_process : ndarray, shapes (R, B_φ, N_PHASE_SUMS), (R, B_φ, N_PHASE_COUNTS),
+        (R, B_φ, P)
+        AC outputs, overwritten when ``period_s`` > 0: per phase bin of t mod T the columns PHASE_*, and the real
+        collisions per process.
     """
     for r in prange(x.shape[0]):
         _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc, accel_ac, omega, phase,
                          inv_cell_eV, n_cells, nu_star, nu_total, nu_cumulative, action, loss_eV,
                          electron_fraction, target_fraction, thermal_speed, scatter, sharing, w_eV, table_max_eV,
                          reference, tally_positions, hist_inv_width_eV, sums, counts, hist, process_counts,
-                         extrapolated, penning_probability, penning_energy_eV, penning_slot)
+                         extrapolated, penning_probability, penning_energy_eV, penning_slot, period_s, wave_time,
+                         wave_accel, wave_F, wave_G, phase_sums, phase_counts, phase_process)

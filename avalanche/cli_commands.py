@@ -45,6 +45,12 @@ def _swarm_configure(p) -> None:
     p.add_argument("--seed", type=int, default=0, help="master random seed (0)")
     p.add_argument("--sharing", default=None, help="ionization energy sharing: equal, uniform or opb")
     p.add_argument("--scattering", default=None, help="angular scattering: isotropic or screened-coulomb")
+    p.add_argument("--frequency", type=float, default=None, metavar="HZ",
+                   help="AC drive frequency [Hz] (--en is then the amplitude); omit for DC")
+    p.add_argument("--waveform", default=None, metavar="FILE.csv",
+                   help="AC: periodic waveform as a two-column CSV (phase fraction or time_s, value), peak = --en")
+    p.add_argument("--phase-bins", type=int, default=None, help="AC: phase bins per period (32)")
+    p.add_argument("--dc-offset", type=float, default=None, metavar="TD", help="AC: DC part E_dc/N [Td] (0)")
     p.add_argument("--json", action="store_true", help="print the result as JSON (value and stderr per quantity)")
     p.add_argument("--out", default=None, metavar="FILE.h5", help="also write the result to an HDF5 file")
 
@@ -55,7 +61,9 @@ def _swarm(args) -> int:
     from .engine import swarm
 
     options = {k: v for k, v in (("max_events", args.max_events), ("electrons", args.electrons),
-                                 ("sharing", args.sharing), ("scattering", args.scattering)) if v is not None}
+                                 ("sharing", args.sharing), ("scattering", args.scattering),
+                                 ("frequency_Hz", args.frequency), ("waveform", args.waveform),
+                                 ("phase_bins", args.phase_bins), ("dc_offset_Td", args.dc_offset)) if v is not None}
     if "max_events" in options:
         options["max_events"] = int(options["max_events"])
     result = swarm(mixture_from_args(args), args.en, seed=args.seed, precision=args.precision, **options)

@@ -56,6 +56,7 @@ import numba
 import numpy as np
 
 from . import _kernels as K
+from . import ac
 from ._version import __version__
 from .constants import BOLTZMANN_J_K, ELEMENTARY_CHARGE_C, EV_J, ATOMIC_MASS_UNIT_kg, ELECTRON_MASS_kg, TOWNSEND_V_m2
 from .crosssections import _did_you_mean
@@ -443,18 +444,30 @@ def ensure_compiled() -> None:
                     np.zeros(1), np.ones(1), np.zeros(1), np.zeros(1, dtype=np.int64), np.zeros(1, dtype=np.int64),
                     np.zeros(1), np.full(1, np.inf), np.zeros((1, 3)), True, 1.0, np.zeros((1, K.N_SUMS)),
                     np.zeros((1, K.N_COUNTS), dtype=np.int64), i2.copy(), i2.copy(), i2.copy(), np.zeros(1),
-                    np.zeros(1), np.full(1, -1, dtype=np.int64))
+                    np.zeros(1), np.full(1, -1, dtype=np.int64), 0.0, *(np.zeros(0),) * 4, np.zeros((1, 0, K.N_PHASE_SUMS)),
+                    np.zeros((1, 0, K.N_PHASE_COUNTS), dtype=np.int64), np.zeros((1, 0, 1), dtype=np.int64))
 
 
 class _Run:
     """The outer loop of one swarm point."""
 
-    def __init__(self, mixture: Mixture, reduced_field_Td: float, settings: Settings):
+    def __init__(self, mixture: Mixture, reduced_field_Td: float, settings: Settings, drive: ac.Drive | None = None):
         self.settings = settings
         self.mixture = mixture
         self.table = ProcessTable.build(mixture, settings.sharing, settings.scattering)
         self.field_V_m = reduced_field_Td * TOWNSEND_V_m2 * mixture.number_density_m3
         self.accel = ELEMENTARY_CHARGE_C * self.field_V_m / ELECTRON_MASS_kg
+        # AC: the drive's kernel arguments (DC: no oscillating part, period 0, no phase bins)
+        self.drive = drive
+        empty = np.zeros(0)
+        field = {"accel_ac": 0.0, "omega": 0.0, "period_s": 0.0, "wave": (empty,) * 4}
+        if drive is not None:
+            field = drive.kernel_field(mixture.number_density_m3)
+            self.accel = field["accel_dc"]
+        self.accel_ac, self.omega, self.period_s, self.wave = (field["accel_ac"], field["omega"],
+                                                                field["period_s"], field["wave"])
+        self.phase_out = ac.PhaseTallies.zeros(settings.replicas, drive.phase_bins if drive else 0,
+                                               len(self.table.processes))
         self.kT_eV = BOLTZMANN_J_K * mixture.temperature_K / EV_J
         self.ens = Ensemble(settings, growing=bool(np.any(self.table.action == K.ACTION_IONIZATION)
                                                    or np.any(self.table.penning_probability > 0)))
@@ -476,13 +489,14 @@ class _Run:
         saved = self.ens.save()
         while True:
             e, g, t, o = self.ens, self.grid, self.table, self.out
-            K.advance_chunk(e.x, e.y, e.z, e.vx, e.vy, e.vz, e.birth, e.count, e.rng, t0, t1, self.accel, 0.0,
-                            0.0, 0.0, g.inv_cell_eV, g.n_cells, g.nu_star, g.nu_total, g.nu_cumulative, t.action,
-                            t.loss_eV, t.electron_fraction, t.target_fraction, t.thermal_speed, t.scatter,
-                            t.sharing, t.w_eV, t.table_max_eV, reference, positions,
+            K.advance_chunk(e.x, e.y, e.z, e.vx, e.vy, e.vz, e.birth, e.count, e.rng, t0, t1, self.accel,
+                            self.accel_ac, self.omega, 0.0, g.inv_cell_eV, g.n_cells, g.nu_star, g.nu_total,
+                            g.nu_cumulative, t.action, t.loss_eV, t.electron_fraction, t.target_fraction,
+                            t.thermal_speed, t.scatter, t.sharing, t.w_eV, t.table_max_eV, reference, positions,
                             self.settings.eedf_bins / self.eedf_max_eV,
                             o.sums, o.counts, o.hist, o.process_counts, o.extrapolated, t.penning_probability,
-                            t.penning_energy_eV, t.penning_slot)
+                            t.penning_energy_eV, t.penning_slot, self.period_s, *self.wave, self.phase_out.sums, self.phase_out.counts,
+                            self.phase_out.process)
             self.events += int(o.counts[:, K.COUNT_EVENTS].sum())
             self.anomalies["frequency_above_bound"] += int(o.counts[:, K.COUNT_ABOVE_BOUND].sum())
             above = bool(o.counts[:, K.COUNT_ABOVE_GRID].any())
@@ -569,8 +583,9 @@ def _stationary(series: _Series, now: float) -> tuple[bool, float, float, float]
 
 def swarm(mixture: Mixture | str, reduced_field_Td: float, *, seed=0, precision: float = 0.01,
           electrons: int = 16384, max_events: int = 1_000_000_000, sharing: str = "opb",
-          scattering: str = "isotropic", threads: int | None = None, **more) -> SwarmResult:
-    """Swarm parameters of electrons in ``mixture`` at reduced field ``reduced_field_Td`` (DC), by Monte Carlo.
+          scattering: str = "isotropic", threads: int | None = None, frequency_Hz: float | None = None,
+          phase_bins: int = 32, dc_offset_Td: float = 0.0, waveform=None, **more) -> SwarmResult:
+    """Swarm parameters of electrons in ``mixture`` at reduced field ``reduced_field_Td`` (DC or AC), by Monte Carlo.
 
     Parameters
     ----------
@@ -594,6 +609,19 @@ def swarm(mixture: Mixture | str, reduced_field_Td: float, *, seed=0, precision:
         Angular distribution of every process (a process whose file says 'screened-coulomb' uses it anyway).
     threads : int, optional
         numba threads for this run (default: numba's current setting); results do not depend on it.
+    frequency_Hz : float, optional
+        AC drive frequency f [Hz] (up to 10 GHz): E(t)/N = dc_offset_Td + reduced_field_Td · sin(2πft), or the
+        ``waveform`` repeated at f; None or 0 runs DC (unchanged). See :mod:`avalanche.ac` for the method; the
+        result then also has ``phase``, ``phase_resolved`` and ``regime``, and the scalar estimates of the
+        phase-resolved quantities are their cycle averages.
+    phase_bins : int
+        AC: number of phase bins of ωt mod 2π (32).
+    dc_offset_Td : float
+        AC: constant part E_dc/N [Td] added to the oscillating field (0).
+    waveform : str, path or array, optional
+        AC: a periodic waveform instead of the sine, as a two-column CSV file (phase fraction in [0, 1) or, with
+        the header ``time_s,value``, time within the period) or an (M, 2) array; piecewise linear between the
+        nodes and scaled so that its peak |value| is ``reduced_field_Td`` (:func:`avalanche.ac.load_waveform`).
     **more
         replicas (16), precision_on ('auto' or an estimate name), energy_cells (8192), energy_max_eV (initial grid
         top, default 10 × initial_energy_eV), energy_limit_eV (1e5, runaway guard), initial_energy_eV (1.0, mean
@@ -628,6 +656,7 @@ def swarm(mixture: Mixture | str, reduced_field_Td: float, *, seed=0, precision:
     if not isinstance(mixture, Mixture):
         raise ConfigError(f"swarm(): mixture must be a Mixture or a gas string, got {type(mixture).__name__}")
     reduced_field_Td = _positive("reduced_field_Td", reduced_field_Td)
+    drive = ac.make_drive(reduced_field_Td, frequency_Hz, phase_bins, dc_offset_Td, waveform)
     previous = numba.get_num_threads()
     if threads is not None:
         threads = _positive("threads", threads, integer=True)
@@ -638,7 +667,7 @@ def swarm(mixture: Mixture | str, reduced_field_Td: float, *, seed=0, precision:
     try:
         ensure_compiled()
         cpu0, wall0 = time.process_time(), time.perf_counter()
-        run = _Run(mixture, reduced_field_Td, settings)
+        run = _Run(mixture, reduced_field_Td, settings, drive)
         result = _simulate(run, reduced_field_Td)
         result.cpu_seconds = time.process_time() - cpu0
         result.wall_seconds = time.perf_counter() - wall0
@@ -686,10 +715,14 @@ def _simulate(run: _Run, reduced_field_Td: float) -> SwarmResult:
     stop_reason = "max_events"
     ion_kinds = np.array([k in IONIZING_KINDS for k in run.table.kinds])
     precision_on = s.precision_on
+    drive = run.drive  # AC: chunks end on a grid holding every period boundary; tests and stops at boundaries only
+    phase_tallies = ac.PhaseTallies.zeros(s.replicas, drive.phase_bins, len(run.table.processes)) if drive else None
+    slack = 1e-9 * drive.period_s if drive else 0.0
     while True:
         dt = run.chunk_duration(nu_eff)
         reference = np.nan_to_num(start[:, :3])
-        out, t_end = run.advance(t, t + dt, reference, t >= mature_from)
+        out, t_end = run.advance(t, t + dt if drive is None else drive.chunk_end(t, dt), reference,
+                                 t + slack >= mature_from)
         t_start, t, dt = t, t_end, t_end - t
         end = ens.moments()
         sums, counts = out.sums, out.counts
@@ -701,13 +734,22 @@ def _simulate(run: _Run, reduced_field_Td: float) -> SwarmResult:
                    events=counts[:, K.COUNT_EVENTS], energy_sum=sums[:, K.SUM_ENERGY], vz_sum=sums[:, K.SUM_VZ],
                    real=counts[:, K.COUNT_REAL], exposure=exposure, max_energy=sums[:, K.SUM_MAX_ENERGY],
                    net_production=np.full(s.replicas, net / s.replicas))
+        boundary = drive is None or drive.at_boundary(t)
+        if drive is not None:
+            series.add(net=(counts[:, K.COUNT_CREATED] - counts[:, K.COUNT_REMOVED]).astype(float),
+                       power=run.phase_out.sums[:, :, K.PHASE_POWER].sum(axis=1))
         if not sampling:
             ionized = ionized or bool(out.process_counts[:, ion_kinds].sum() > 0)
-            ok, energy, drift, frequency = _stationary(series, t)
+            if drive is None:
+                ok, energy, drift, frequency = _stationary(series, t)
+            else:  # the field's power per electron over the field amplitude stands in for W
+                ok, energy, power, frequency = (ac.periodic_stationary(series, drive, t) if boundary
+                                                else (False, math.nan, math.nan, math.nan))
+                drift = power / run.field_V_m
             tau = _energy_relaxation_time(run, energy, drift, frequency)
             enough = len(series) >= RELAXATION_MIN_CHUNKS and (
                 not math.isfinite(tau) or t >= RELAXATION_MIN_ENERGY_TIMES * tau)
-            forced = run.events >= 0.5 * s.max_events
+            forced = boundary and run.events >= 0.5 * s.max_events
             if (ok and enough) or forced:
                 if forced and not (ok and enough):
                     run.anomalies["not_relaxed"] = 1
@@ -722,33 +764,51 @@ def _simulate(run: _Run, reduced_field_Td: float) -> SwarmResult:
                     tau = dt
                 skip = s.diffusion_skip * tau
                 segment = max(s.diffusion_segment * skip, 4.0 * dt)
+                if drive is not None:  # AC: position windows of whole periods, stop rule on cycle averages
+                    skip, segment = (drive.period_s * math.ceil(x / drive.period_s - 1e-9) for x in (skip, segment))
+                    if precision_on == "auto":
+                        precision_on = "ionization_rate_coefficient" if ionized else "mean_energy_eV"
                 if precision_on == "auto":
                     precision_on = "alpha_N" if ionized else "drift_velocity_flux"
             elif len(series) % RELAXATION_MIN_CHUNKS == 0:
                 _shrink_grid(run, float(series.array("max_energy")[-RELAXATION_MIN_CHUNKS:].max()), 2.0)
         else:
             tallies.add_chunk(sums, counts, out.hist, out.process_counts, out.extrapolated, dt)
-            if t_start >= mature_from:
+            if drive is not None:
+                phase_tallies.add(run.phase_out)
+            if t_start + slack >= mature_from:
                 tallies.add_mature_chunk(sums, counts, dt, start[:, 2:5], end[:, 2:5])
         if ens.control():
             run.anomalies["population_controls"] += 1
             start = ens.moments()
         else:
             start = end
-        if sampling and t >= window_end:
+        if sampling and t + slack >= window_end:
             estimates = swarm_estimates(tallies, _context(run, tallies))
+            if drive is not None:
+                estimates.update(_phase_estimates(run, phase_tallies).cycle)
             if estimates[precision_on].relative_stderr < s.precision:
                 stop_reason = "precision"
                 break
-        if sampling and (t >= window_end or not math.isfinite(window_end)):
+        if sampling and (t + slack >= window_end or not math.isfinite(window_end)):
             ens.reset_positions()
             start = ens.moments()
             mature_from = t + skip
             window_end = mature_from + segment
-        if run.events >= s.max_events and tallies["events"].sum() > 0:
+        if run.events >= s.max_events and tallies["events"].sum() > 0 and boundary:
             break
     run.windows = {"skip_s": skip, "segment_s": segment}
-    return _result(run, reduced_field_Td, tallies, series, relaxation_time, stop_reason, precision_on)
+    result = _result(run, reduced_field_Td, tallies, series, relaxation_time, stop_reason, precision_on)
+    if drive is not None:
+        ac.finish(result, drive, _phase_estimates(run, phase_tallies), phase_tallies, run.table.target_density_m3,
+                  run.table.scatter == K.SCATTER_SCREENED_COULOMB, run.kT_eV)
+    return result
+
+
+def _phase_estimates(run: _Run, phase_tallies: ac.PhaseTallies) -> ac.PhaseEstimates:
+    t = run.table
+    return ac.phase_estimates(phase_tallies, run.drive, t.keys, t.kinds, t.target_density_m3,
+                              run.mixture.number_density_m3)
 
 
 def _context(run: _Run, tallies: SwarmTallies) -> EstimatorContext:

@@ -14,6 +14,11 @@ Layout of a point group (the root of a file written by :func:`save_result`; swee
   ``overflow_fraction``.
 * ``time_series/<name>``: per-chunk series (C,), each with ``units``.
 * ``tallies/<name>``: the raw per-replica sums (R,), (R, P) or (R, B), each with ``units`` and ``description``.
+* AC points only, ``phase/``: ``phase_rad`` (B_φ,) bin centres of ωt mod 2π [rad]; ``keys`` (str, K) of the
+  phase-resolved quantities, ``units`` (str, K), ``value`` and ``stderr`` (K, B_φ); the regime as attributes
+  (``verdict``, ``statement``, ``omega_over_nu_m``, ``omega_over_nu_energy``, ``effective_field_Td``, ... and
+  all of it as ``regime_json``); ``phase/tallies/sums`` (R, B_φ, 4), ``counts`` (R, B_φ, 3), ``process``
+  (R, B_φ, P): the raw per-replica phase sums (columns as in :mod:`avalanche._kernels`).
 """
 
 from __future__ import annotations
@@ -27,7 +32,7 @@ import numpy as np
 
 from ._version import __version__
 from .errors import AvalancheError
-from .results import ESTIMATES, EnergyDistribution, Estimate, SwarmResult
+from .results import ESTIMATES, EnergyDistribution, Estimate, PhaseResolved, SwarmResult
 from .tallies import FIELDS, SwarmTallies
 
 FILE_TYPE = "avalanche swarm point"
@@ -94,6 +99,41 @@ def write_result(group: h5py.Group, result: SwarmResult) -> None:
             ds = tallies.create_dataset(name, data=result.tallies[name])
             ds.attrs["units"] = units
             ds.attrs["description"] = description
+    if result.phase is not None:
+        _write_phase(group.create_group("phase"), result)
+
+
+def _write_phase(group: h5py.Group, result: SwarmResult) -> None:
+    from .ac import PHASE_UNITS
+
+    group.create_dataset("phase_rad", data=np.asarray(result.phase, dtype=float)).attrs["units"] = "rad"
+    keys = list(result.phase_resolved)
+    group.create_dataset("keys", data=np.array(keys, dtype=h5py.string_dtype()))
+    group.create_dataset("units", data=np.array([PHASE_UNITS.get(k, "m3/s") for k in keys],
+                                                dtype=h5py.string_dtype()))
+    for column in ("value", "stderr"):
+        group.create_dataset(column, data=np.array([getattr(result.phase_resolved[k], column) for k in keys],
+                                                   dtype=float).reshape(len(keys), -1))
+    for name, value in result.regime.items():
+        group.attrs[name] = value
+    group.attrs["regime_json"] = _json(result.regime)
+    if result.phase_tallies is not None:
+        tallies = group.create_group("tallies")
+        for name in ("sums", "counts", "process"):
+            tallies.create_dataset(name, data=getattr(result.phase_tallies, name))
+
+
+def _read_phase(group: h5py.Group) -> dict:
+    from .ac import PhaseTallies
+
+    keys = [k.decode() if isinstance(k, bytes) else str(k) for k in group["keys"][()]]
+    value, stderr = group["value"][()], group["stderr"][()]
+    out = {"phase": group["phase_rad"][()], "regime": json.loads(group.attrs["regime_json"]),
+           "phase_resolved": {k: PhaseResolved(value[i], stderr[i]) for i, k in enumerate(keys)}}
+    if "tallies" in group:
+        t = group["tallies"]
+        out["phase_tallies"] = PhaseTallies(t["sums"][()], t["counts"][()], t["process"][()])
+    return out
 
 
 def _where(group: h5py.Group) -> str:
@@ -136,6 +176,7 @@ def read_result(group: h5py.Group) -> SwarmResult:
         scalars = {name: attrs[name] for name in _SCALARS}
         stop_reason = str(attrs["stop_reason"])
         reduced_field_Td = float(attrs["reduced_field_Td"])
+        phase = _read_phase(group["phase"]) if "phase" in group else {}
     except KeyError as exc:
         raise AvalancheError(f"{where}: incomplete swarm point, missing {exc}; the file is damaged or was not "
                              "written by avalanche.io.write_result") from None
@@ -147,7 +188,7 @@ def read_result(group: h5py.Group) -> SwarmResult:
                        relaxation_time_s=float(scalars["relaxation_time_s"]),
                        sampled_time_s=float(scalars["sampled_time_s"]),
                        extrapolated_fraction=float(scalars["extrapolated_fraction"]), anomalies=anomalies,
-                       inputs=inputs, time_series=time_series, tallies=tallies)
+                       inputs=inputs, time_series=time_series, tallies=tallies, **phase)
 
 
 def save_result(path: str | Path, result: SwarmResult) -> Path:

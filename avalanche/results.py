@@ -71,6 +71,19 @@ class EnergyDistribution:
                 "overflow_fraction": float(self.overflow_fraction), "units": "eV^-3/2"}
 
 
+@dataclass(frozen=True, eq=False)
+class PhaseResolved:
+    """A phase-resolved quantity of an AC run: ``value[i]`` and its standard error ``stderr[i]`` in phase bin i of
+    ωt mod 2π (bin centres in :attr:`SwarmResult.phase`), both ndarrays in the units of the DC quantity of the same
+    name."""
+
+    value: np.ndarray
+    stderr: np.ndarray
+
+    def to_dict(self) -> dict:
+        return {"value": [_json_float(v) for v in self.value], "stderr": [_json_float(v) for v in self.stderr]}
+
+
 ESTIMATES: tuple[tuple[str, str, str], ...] = (
     ("mean_energy_eV", "eV", "mean energy"),
     ("drift_velocity_flux", "m/s", "flux drift velocity <v_z>"),
@@ -130,6 +143,16 @@ class SwarmResult:
         Per-chunk series (time, electrons, mean energy, rates) used for relaxation and diagnostics.
     tallies : SwarmTallies or None
         The raw per-replica sums the estimates derive from.
+    phase : ndarray or None
+        AC runs: centres of the phase bins of ωt mod 2π [rad]; None for DC.
+    phase_resolved : dict of str to PhaseResolved, or None
+        AC runs: per phase bin, the quantities of the same names as :attr:`estimates` (mean energy, flux drift
+        velocity, rate coefficients, frequencies, see :mod:`avalanche.ac`), each process's rate coefficient under
+        its key in :attr:`rate_coefficients`, plus ``reduced_field_Td`` (the bin average of E(t)/N) and
+        ``power_absorbed_eV_s``. In AC the scalar estimates of those names are their cycle (time) averages.
+    regime : dict or None
+        AC runs: ``omega_over_nu_m``, ``omega_over_nu_energy``, ``verdict``, ``statement``, ``effective_field_Td``
+        and the frequencies they derive from (see :func:`avalanche.ac.regime`).
     """
 
     reduced_field_Td: float
@@ -147,6 +170,10 @@ class SwarmResult:
     inputs: dict
     time_series: dict = field(default_factory=dict)
     tallies: SwarmTallies | None = None
+    phase: np.ndarray | None = None
+    phase_resolved: dict | None = None
+    regime: dict | None = None
+    phase_tallies: object | None = None
 
     def __getattr__(self, name: str):
         estimates = self.__dict__.get("estimates")
@@ -174,6 +201,10 @@ class SwarmResult:
                     "extrapolated_fraction": float(self.extrapolated_fraction),
                     "anomalies": _plain(self.anomalies), "inputs": _plain(self.inputs),
                     "units": dict(ESTIMATE_UNITS, rate_coefficients="m3/s")})
+        if self.phase is not None:
+            out["phase"] = [float(v) for v in self.phase]
+            out["phase_resolved"] = {k: v.to_dict() for k, v in (self.phase_resolved or {}).items()}
+            out["regime"] = _plain(self.regime)
         if time_series:
             out["time_series"] = {k: [_json_float(v) for v in np.ravel(a)] for k, a in self.time_series.items()}
         return out
@@ -198,7 +229,29 @@ class SwarmResult:
                      f"{self.relaxation_time_s:.3g} s, sampled {self.sampled_time_s:.3g} s")
         if self.extrapolated_fraction > 0:
             lines.append(f"  {100 * self.extrapolated_fraction:.2g} % of collisions beyond a cross-section table")
+        if self.phase is not None:
+            lines += self._ac_lines()
         return "\n".join(lines)
+
+    def _ac_lines(self, rows: int = 8) -> list[str]:
+        """The AC section of :meth:`format_table`: the regime and a compact phase table (``rows`` bins)."""
+        reg = self.regime or {}
+        drive = self.inputs.get("drive", {})
+        lines = [f"AC drive: {drive.get('frequency_Hz', float('nan')):.4g} Hz, amplitude {self.reduced_field_Td:g} Td"
+                 f", DC offset {drive.get('dc_offset_Td', 0.0):g} Td, waveform {drive.get('waveform', 'sine')}",
+                 f"  regime: {reg.get('verdict', '?')} (omega/nu_m = {reg.get('omega_over_nu_m', float('nan')):.3g}, "
+                 f"omega/nu_energy = {reg.get('omega_over_nu_energy', float('nan')):.3g}, E_eff/N = "
+                 f"{reg.get('effective_field_Td', float('nan')):.4g} Td)", f"  {reg.get('statement', '')}"]
+        pr = self.phase_resolved or {}
+        columns = [(n, h) for n, h in (("reduced_field_Td", "E/N [Td]"), ("mean_energy_eV", "energy [eV]"),
+                                       ("drift_velocity_flux", "W flux [m/s]"),
+                                       ("ionization_rate_coefficient", "k_ion [m3/s]")) if n in pr]
+        lines.append("  " + f"{'phase [rad]':>11s}" + "".join(f" {h:>22s}" for _, h in columns))
+        step = max(1, len(self.phase) // rows)
+        for i in range(0, len(self.phase), step):
+            cells = "".join(f" {pr[n].value[i]:>12.4g} ± {pr[n].stderr[i]:<7.2g}" for n, _ in columns)
+            lines.append(f"  {self.phase[i]:11.3f}{cells}")
+        return lines
 
     def __repr__(self) -> str:
         return (f"SwarmResult(E/N={self.reduced_field_Td:g} Td, mean_energy_eV={self.mean_energy_eV}, "
