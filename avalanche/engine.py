@@ -444,7 +444,8 @@ def ensure_compiled() -> None:
                     np.zeros(1), np.ones(1), np.zeros(1), np.zeros(1, dtype=np.int64), np.zeros(1, dtype=np.int64),
                     np.zeros(1), np.full(1, np.inf), np.zeros((1, 3)), True, 1.0, np.zeros((1, K.N_SUMS)),
                     np.zeros((1, K.N_COUNTS), dtype=np.int64), i2.copy(), i2.copy(), i2.copy(), np.zeros(1),
-                    np.zeros(1), np.full(1, -1, dtype=np.int64), 0.0, *(np.zeros(0),) * 4, np.zeros((1, 0, K.N_PHASE_SUMS)),
+                    np.zeros(1), np.full(1, -1, dtype=np.int64), 0.0, *(np.zeros(0),) * 4,
+                    np.zeros((1, 0, K.N_PHASE_SUMS)),
                     np.zeros((1, 0, K.N_PHASE_COUNTS), dtype=np.int64), np.zeros((1, 0, 1), dtype=np.int64))
 
 
@@ -495,7 +496,8 @@ class _Run:
                             t.thermal_speed, t.scatter, t.sharing, t.w_eV, t.table_max_eV, reference, positions,
                             self.settings.eedf_bins / self.eedf_max_eV,
                             o.sums, o.counts, o.hist, o.process_counts, o.extrapolated, t.penning_probability,
-                            t.penning_energy_eV, t.penning_slot, self.period_s, *self.wave, self.phase_out.sums, self.phase_out.counts,
+                            t.penning_energy_eV, t.penning_slot, self.period_s, *self.wave, self.phase_out.sums,
+                            self.phase_out.counts,
                             self.phase_out.process)
             self.events += int(o.counts[:, K.COUNT_EVENTS].sum())
             self.anomalies["frequency_above_bound"] += int(o.counts[:, K.COUNT_ABOVE_BOUND].sum())
