@@ -43,7 +43,12 @@ def _json(value) -> str:
 
 
 def write_result(group: h5py.Group, result: SwarmResult) -> None:
-    """Write ``result`` into the (empty) HDF5 group ``group`` in the documented layout."""
+    """Write ``result`` into the (empty) HDF5 group ``group`` in the documented layout (a steady-state Townsend
+    result in :mod:`avalanche.townsend_io`'s layout)."""
+    if getattr(result, "inputs", {}).get("mode") == "steady-state-townsend":
+        from .townsend_io import write_townsend
+
+        return write_townsend(group, result)
     inputs = result.inputs
     mixture = inputs.get("mixture", {})
     attrs = group.attrs
@@ -101,7 +106,7 @@ def _where(group: h5py.Group) -> str:
 
 
 def read_result(group: h5py.Group) -> SwarmResult:
-    """Read a :class:`SwarmResult` written by :func:`write_result`.
+    """Read a :class:`SwarmResult` written by :func:`write_result` (or a ``TownsendResult``, by its ``mode``).
 
     Raises
     ------
@@ -110,6 +115,10 @@ def read_result(group: h5py.Group) -> SwarmResult:
     """
     where = _where(group)
     attrs = group.attrs
+    if attrs.get("mode") == "steady-state-townsend":
+        from .townsend_io import read_townsend
+
+        return read_townsend(group)
     if attrs.get("file_type") != FILE_TYPE:
         raise AvalancheError(f"{where}: not an avalanche swarm point (attribute file_type = "
                              f"{attrs.get('file_type')!r}, expected {FILE_TYPE!r})")
