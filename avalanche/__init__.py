@@ -1,6 +1,7 @@
 """avalanche: electron swarm parameters in gases by Monte Carlo simulation (null-collision method).
 
-Public entry points: :class:`Mixture`, :func:`get_set`, :func:`model_gas`, :func:`load_set`, :func:`swarm`.
+Public entry points: :class:`Mixture`, :func:`get_set`, :func:`model_gas`, :func:`load_set`, :func:`swarm`,
+:func:`townsend`.
 """
 
 from ._version import __version__
@@ -16,6 +17,10 @@ def __getattr__(name):
         from .engine import swarm
 
         return swarm
+    if name == "townsend":
+        from .sst import townsend
+
+        return townsend
     if name == "open_results":
         from .results_file import open_results
 
@@ -30,5 +35,6 @@ def __getattr__(name):
 __all__ = [
     "__version__", "AvalancheError", "ConfigError", "CrossSectionError", "PhysicsWarning",
     "CrossSectionSet", "Process", "load_set", "save_set", "make_set", "process_from_table",
-    "available_gases", "get_set", "model_gas", "named_mixture", "Mixture", "swarm", "open_results", "run_sweep",
+    "available_gases", "get_set", "model_gas", "named_mixture", "Mixture", "swarm", "townsend", "open_results",
+    "run_sweep",
 ]

@@ -115,7 +115,7 @@ def build_parser() -> argparse.ArgumentParser:
 
 def _load_commands() -> None:
     """Import the modules that register further subcommands."""
-    from . import cli_commands, outputs_cli, sweep_cli  # noqa: F401
+    from . import cli_commands, outputs_cli, sst_cli, sweep_cli  # noqa: F401
 
 
 def main(argv: Sequence[str] | None = None) -> int:

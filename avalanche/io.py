@@ -48,7 +48,12 @@ def _json(value) -> str:
 
 
 def write_result(group: h5py.Group, result: SwarmResult) -> None:
-    """Write ``result`` into the (empty) HDF5 group ``group`` in the documented layout."""
+    """Write ``result`` into the (empty) HDF5 group ``group`` in the documented layout (a steady-state Townsend
+    result in :mod:`avalanche.sst_io`'s layout)."""
+    if getattr(result, "inputs", {}).get("mode") == "steady-state-townsend":
+        from .sst_io import write_townsend
+
+        return write_townsend(group, result)
     inputs = result.inputs
     mixture = inputs.get("mixture", {})
     attrs = group.attrs
@@ -141,7 +146,7 @@ def _where(group: h5py.Group) -> str:
 
 
 def read_result(group: h5py.Group) -> SwarmResult:
-    """Read a :class:`SwarmResult` written by :func:`write_result`.
+    """Read a :class:`SwarmResult` written by :func:`write_result` (or a ``TownsendResult``, by its ``mode``).
 
     Raises
     ------
@@ -150,6 +155,10 @@ def read_result(group: h5py.Group) -> SwarmResult:
     """
     where = _where(group)
     attrs = group.attrs
+    if attrs.get("mode") == "steady-state-townsend":
+        from .sst_io import read_townsend
+
+        return read_townsend(group)
     if attrs.get("file_type") != FILE_TYPE:
         raise AvalancheError(f"{where}: not an avalanche swarm point (attribute file_type = "
                              f"{attrs.get('file_type')!r}, expected {FILE_TYPE!r})")

@@ -71,8 +71,9 @@ def engine_features() -> dict:
     dict
         ``available`` (the engine imports), ``parameters`` (the keywords ``swarm`` takes: its named parameters
         and, when it takes ``**more``, the fields of ``avalanche.engine.Settings``), ``modes`` (time-of-flight
-        always; steady-state Townsend when ``swarm`` takes a ``mode`` keyword) and ``ac`` (it takes
-        ``frequency_Hz``, i.e. time-varying fields).
+        always; steady-state Townsend when ``avalanche.townsend`` exists or ``swarm`` takes a ``mode`` keyword),
+        ``ac`` (it takes ``frequency_Hz``, i.e. time-varying fields) and ``townsend_parameters`` (the keywords of
+        ``avalanche.sst.townsend``, used for the [engine] table in steady-state-townsend mode).
     """
     try:
         from . import engine
@@ -83,8 +84,21 @@ def engine_features() -> dict:
     settings = getattr(engine, "Settings", None)
     if any(p.kind == p.VAR_KEYWORD for p in signature) and dataclasses.is_dataclass(settings):
         names += [f.name for f in dataclasses.fields(settings) if f.name not in names]
-    modes = MODES if "mode" in names else (DEFAULT_MODE,)
-    return {"available": True, "parameters": tuple(names), "modes": modes, "ac": "frequency_Hz" in names}
+    townsend = _townsend_parameters()
+    modes = MODES if "mode" in names or townsend else (DEFAULT_MODE,)
+    return {"available": True, "parameters": tuple(names), "modes": modes, "ac": "frequency_Hz" in names,
+            "townsend_parameters": townsend}
+
+
+def _townsend_parameters() -> tuple[str, ...]:
+    """The keywords :func:`avalanche.sst.townsend` takes (empty when that module does not exist)."""
+    try:
+        from . import sst as townsend
+    except ImportError:
+        return ()
+    signature = inspect.signature(townsend.townsend).parameters.values()
+    names = [p.name for p in signature if p.kind in (p.KEYWORD_ONLY, p.POSITIONAL_OR_KEYWORD)]
+    return tuple(names + [f.name for f in dataclasses.fields(townsend.TownsendSettings) if f.name not in names])
 
 
 def _engine_check(options: dict, source: str) -> None:
@@ -357,7 +371,7 @@ def parse_runfile(text: str, source: str = "<run file>", base: str | Path | None
                           "which this installation's engine does not provide yet (avalanche.engine.swarm takes no "
                           "frequency_Hz); remove frequencies_Hz or use [0.0] for a DC sweep")
 
-    engine = _engine_options(sections["engine"], features, source)
+    engine = _engine_options(sections["engine"], features, source, mode)
     cluster = _cluster(sections["cluster"], check) if "cluster" in data else None
 
     runfile = RunFile(text=text, source=source, name=name, description=description, mode=mode, seed=seed,
@@ -587,14 +601,19 @@ def _composition_grid(gas: dict, check: _Checker, base: Path) -> list[dict[str, 
     return out
 
 
-def _engine_options(table: dict, features: dict, source: str) -> dict:
-    """The [engine] table: keywords passed to :func:`avalanche.engine.swarm`, checked before the run.
+def _engine_options(table: dict, features: dict, source: str, mode: str = DEFAULT_MODE) -> dict:
+    """The [engine] table: keywords passed to :func:`avalanche.engine.swarm` (to :func:`avalanche.townsend` in
+    steady-state-townsend mode), checked before the run.
 
     Names are checked against the engine's signature (or, where the engine cannot be imported, against the
     documented contract :data:`ENGINE_CONTRACT_OPTIONS`); the documented options are also checked for type and
     range.
     """
-    known = set(features["parameters"]) if features["available"] else set(ENGINE_CONTRACT_OPTIONS)
+    townsend = mode != DEFAULT_MODE and bool(features.get("townsend_parameters"))
+    if townsend:
+        known = set(features["townsend_parameters"]) - {"compare", "threads"}
+    else:
+        known = set(features["parameters"]) if features["available"] else set(ENGINE_CONTRACT_OPTIONS)
     known -= _ENGINE_RESERVED
     options = {}
     for key, value in table.items():
@@ -618,9 +637,22 @@ def _engine_options(table: dict, features: dict, source: str) -> dict:
             raise ConfigError(f"{source}: [engine] {key} = {_show(value)}: must be one of "
                               f"{list(_ENGINE_CHOICES[key])}{_did_you_mean(str(value), _ENGINE_CHOICES[key])}")
         options[key] = value
-    if features["available"]:
+    if townsend:
+        _townsend_check(options, source)
+    elif features["available"]:
         _engine_check(options, source)
     return options
+
+
+def _townsend_check(options: dict, source: str) -> None:
+    """Let :func:`avalanche.sst.make_townsend_settings` validate the option values."""
+    from .sst import make_townsend_settings
+
+    accepted = {k: v for k, v in options.items() if k in inspect.signature(make_townsend_settings).parameters}
+    try:
+        make_townsend_settings(**accepted)
+    except ConfigError as exc:
+        raise ConfigError(f"{source}: [engine]: {exc}") from None
 
 
 def _cluster(table: dict, check: _Checker) -> dict:

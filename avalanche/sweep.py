@@ -68,7 +68,8 @@ def point_task(runfile: RunFile, point, threads: int | None = 1) -> dict:
 
 
 def compute_point(task: dict) -> dict:
-    """Compute one grid point with :func:`avalanche.engine.swarm` (runs on a worker).
+    """Compute one grid point with :func:`avalanche.engine.swarm`, or :func:`avalanche.sst.townsend` in
+    steady-state-townsend mode (runs on a worker).
 
     Parameters
     ----------
@@ -78,7 +79,8 @@ def compute_point(task: dict) -> dict:
     Returns
     -------
     dict
-        ``result`` (the ``SwarmResult``) and ``warnings`` (the distinct warning messages the run raised).
+        ``result`` (the ``SwarmResult`` or ``TownsendResult``) and ``warnings`` (the distinct warning messages
+        the run raised).
 
     Raises
     ------
@@ -87,6 +89,7 @@ def compute_point(task: dict) -> dict:
     """
     from .engine import swarm
 
+    run = swarm
     if task.get("threads"):
         _set_numba_threads(task["threads"])
     spec = MixtureSpec(**task["mixture"])
@@ -98,11 +101,13 @@ def compute_point(task: dict) -> dict:
     options = dict(task["engine"])
     if task["frequency_Hz"]:
         options["frequency_Hz"] = task["frequency_Hz"]
-    if task["mode"] != DEFAULT_MODE:
+    if task["mode"] == "steady-state-townsend":
+        from .sst import townsend as run
+    elif task["mode"] != DEFAULT_MODE:
         options["mode"] = task["mode"]
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always")
-        result = swarm(mixture, task["reduced_field_Td"], seed=task["seed"], **options)
+        result = run(mixture, task["reduced_field_Td"], seed=task["seed"], **options)
     messages = list(dict.fromkeys(f"{w.category.__name__}: {w.message}" for w in caught))
     return {"result": result, "warnings": messages}
 

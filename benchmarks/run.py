@@ -9,7 +9,8 @@ Figures (see ``benchmarks/README.md``): collision events (real + null) per CPU s
 ramp model at 12 Td and argon at 300 Td; the same figure for a plain C null-collision loop (``null_collision.c``,
 compiled here with ``gcc -O2``) and the ratio of the two; the speed-up from 1 to 2 numba threads; the peak memory
 of a run with 10⁶ electrons; and, once the features exist, the AC/DC kernel ratio, air/argon ratio, the 8-point
-sweep speed-up with 2 local workers and the Dask overhead per point. A figure whose feature does not exist yet is
+sweep speed-up with 2 local workers, the Dask overhead per point, and the steady-state Townsend events per
+second (argon, 300 Td) with their ratio to the time-of-flight figure. A figure whose feature does not exist yet is
 printed as "not available yet: <feature>"; nothing is ever estimated or filled in.
 
 Timing needs an otherwise idle machine: other processes on the same cores lower every figure (the load average is
@@ -389,6 +390,35 @@ def figure_air(state: dict, budget: Budget) -> list[Row]:
             Row("air / argon events per second", f"{ratio:.3g}", target, verdict)]
 
 
+def figure_townsend(state: dict, budget: Budget) -> list[Row]:
+    """Steady-state Townsend events per core-second, argon at 300 Td, one thread, and the ratio to time-of-flight.
+
+    A first short run (not timed) fixes the distances from its pilot, so the timed run has no pilot."""
+    if importlib.util.find_spec("avalanche.sst") is None:
+        raise NotAvailable("avalanche.townsend (steady-state Townsend mode)")
+    from avalanche.sst import townsend
+
+    mixture = argon_mixture()
+    log("steady-state Townsend: argon, 300 Td ...")
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        first = townsend(mixture, ARGON_FIELD_Td, seed=1, precision=PRECISION_FLOOR, max_events=1e6, threads=1)
+        layout = first.inputs["layout"]
+        cpu = time.process_time()
+        result = townsend(mixture, ARGON_FIELD_Td, seed=2, precision=PRECISION_FLOOR, threads=1,
+                          max_events=budget.argon_events / 4, distance_m=layout["distance_m"],
+                          margin_m=layout["margin_m"])
+        cpu = time.process_time() - cpu
+    rate = result.events / cpu
+    rows = [Row("SST events/s per core, argon 300 Td", f"{rate:.3g}"),
+            Row("  (its alpha/N [m2], effective alpha/N [m2])",
+                f"{estimate_text(result.alpha_N)}, {estimate_text(result.effective_alpha_N)}")]
+    if "argon_rate" in state:
+        rows.append(Row("SST / time-of-flight events per second, argon 300 Td", f"{rate / state['argon_rate']:.3g}",
+                        "report", ""))
+    return rows
+
+
 SWEEP_POINT_SECONDS = 10.0
 SWEEP_RUN_FILE = """\
 # The 8-point argon sweep of benchmarks/run.py (written into a temporary folder, never into the tree).
@@ -502,6 +532,7 @@ FIGURES: list[tuple[str, Callable[[dict, Budget], list[Row]]]] = [
     ("peak memory, 1e6 electrons", figure_memory),
     ("AC / DC kernel", figure_ac),
     ("air / argon", figure_air),
+    ("steady-state Townsend, argon 300 Td", figure_townsend),
     ("8-point sweep, 2 workers / 1", figure_sweep),
     ("Dask overhead per point", figure_dask),
 ]
