@@ -31,8 +31,11 @@ DEFAULT_BREAKDOWN_GRID = "50:5000:12"
 EXTENSION_LIMITS_Td = (1.0, 3.0e4)
 """The on-demand grid is extended (×2 per point) towards these fields when the breakdown field lies beyond it."""
 MAX_EXTENSIONS = 6
-COEFFICIENTS = {"corrected": ("alpha_N", "eta_N"), "simple": ("alpha_N_simple", "eta_N_simple")}
-"""``--coefficients`` choices: the engine's diffusion-corrected α/N, η/N, or the simple ν/(N W) estimates."""
+COEFFICIENTS = {"corrected": ("alpha_N", "eta_N"), "simple": ("alpha_N_simple", "eta_N_simple"),
+                "sst": ("alpha_N", "eta_N")}
+"""``--coefficients`` choices: the time-of-flight engine's diffusion-corrected α/N, η/N, its simple ν/(N W)
+estimates, or the steady-state Townsend α/N, η/N (:func:`avalanche.townsend`: the spatial growth a gap sees)."""
+SST_MODE = "steady-state-townsend"
 _LENGTH_UNITS_m = {"m": 1.0, "cm": 1e-2, "mm": 1e-3, "um": 1e-6}
 
 
@@ -372,8 +375,9 @@ def _breakdown_configure(p) -> None:
     p.add_argument("--extend", action="store_true",
                    help="with --results: compute extra points with the engine where the file's E/N range is short")
     p.add_argument("--coefficients", default="corrected", choices=list(COEFFICIENTS),
-                   help="corrected: the engine's alpha_N, eta_N (diffusion-corrected; default); simple: "
-                        "alpha_N_simple, eta_N_simple (nu/(N W))")
+                   help="corrected: the time-of-flight alpha_N, eta_N (diffusion-corrected; default); simple: "
+                        "alpha_N_simple, eta_N_simple (nu/(N W)); sst: steady-state Townsend alpha_N, eta_N (the "
+                        "spatial growth of a gap; computed with avalanche.townsend, or from an SST sweep file)")
     p.add_argument("--precision", type=float, default=0.03, help="target relative error per point (0.03)")
     p.add_argument("--max-events", type=float, default=2e7, help="event budget per computed point (2e7)")
     p.add_argument("--electrons", type=int, default=None, help="electrons per computed point (engine default)")
@@ -396,6 +400,8 @@ def _compute(mixture, fields_Td, args, first_index: int) -> SwarmTable:
     """Engine runs at ``fields_Td`` (progress and time estimate on stderr)."""
     from .engine import swarm
 
+    if args.coefficients == "sst":
+        from .sst import townsend as swarm
     results, started = [], time.perf_counter()
     for k, field_Td in enumerate(fields_Td):
         t0 = time.perf_counter()
@@ -407,7 +413,8 @@ def _compute(mixture, fields_Td, args, first_index: int) -> SwarmTable:
             _note(f"  {field_Td:g} Td took {per_point:.1f} s; the other {len(fields_Td) - 1} point(s) may take "
                   f"about {per_point * (len(fields_Td) - 1):.0f} s (higher E/N costs more)")
     _note(f"  {len(fields_Td)} point(s) in {time.perf_counter() - started:.1f} s")
-    return SwarmTable.from_swarm_results(results, source="computed with avalanche.engine")
+    engine = "avalanche.townsend (steady-state Townsend)" if args.coefficients == "sst" else "avalanche.engine"
+    return SwarmTable.from_swarm_results(results, source=f"computed with {engine}")
 
 
 def _beyond(table: SwarmTable, names, pd_Pa_m: np.ndarray, gamma: float, temperature_K: float) -> str | None:
@@ -427,7 +434,14 @@ def _coefficients(args, pd: np.ndarray, pressure: float) -> tuple[SwarmTable, st
     from .mixture import Mixture
 
     if args.results:
-        table = _load_table(_open(args.results), args, "breakdown")
+        opened = _open(args.results)
+        sst_file = opened.attrs.get("mode") == SST_MODE
+        if sst_file != (args.coefficients == "sst"):
+            raise ConfigError(f"--coefficients {args.coefficients} does not fit {args.results}, a "
+                              f"{'steady-state Townsend' if sst_file else 'time-of-flight'} sweep: use "
+                              f"{'--coefficients sst' if sst_file else 'corrected or simple'} with it, or leave "
+                              "--results out to compute the coefficients")
+        table = _load_table(opened, args, "breakdown")
         if args.gas and args.gas != table.gas_label:
             raise ConfigError(f"--gas {args.gas!r} differs from the gas {table.gas_label!r} of {args.results}; "
                               "leave --gas out or use the file of that gas")
@@ -443,7 +457,7 @@ def _coefficients(args, pd: np.ndarray, pressure: float) -> tuple[SwarmTable, st
               f"{fields[0]:g}–{fields[-1]:g} Td with the Monte Carlo engine (precision {args.precision:g}, at most "
               f"{args.max_events:.3g} events per point); this takes from seconds to a few minutes")
         table = _compute(mixture, fields, args, 0)
-        source, computed = "computed with avalanche.engine", [table]
+        source, computed = table.source, [table]
     names = COEFFICIENTS[args.coefficients]
     temperature = args.temperature or table.temperature_K or 300.0
     for extension in range(MAX_EXTENSIONS if mixture is not None else 0):

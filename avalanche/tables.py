@@ -277,11 +277,12 @@ class SwarmTable:
         if not results:
             raise ConfigError("SwarmTable.from_swarm_results: no results given")
         names = list(dict.fromkeys(name for r in results for name in r.estimates))
-        names += list(dict.fromkeys(rate_quantity(key) for r in results for key in r.rate_coefficients))
+        names += list(dict.fromkeys(rate_quantity(key) for r in results
+                                    for key in getattr(r, "rate_coefficients", {})))
 
         def estimate(result, name):
             if name.startswith(RATE_PREFIX):
-                return result.rate_coefficients.get(name[len(RATE_PREFIX):])
+                return getattr(result, "rate_coefficients", {}).get(name[len(RATE_PREFIX):])
             return result.estimates.get(name)
 
         quantities = {}

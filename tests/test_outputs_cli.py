@@ -16,6 +16,7 @@ import scipy.constants as sc
 import avalanche.outputs_cli  # noqa: F401  (registers the subcommands)
 from avalanche.breakdown import CAUTION, paschen_curve
 from avalanche.cli import main
+from avalanche.coefficients import CoefficientTable
 from avalanche.emission import APPROXIMATION_NOTE
 from avalanche.errors import ConfigError
 from avalanche.geometry import CoaxialGap, IsolatedSphere
@@ -192,6 +193,29 @@ def test_breakdown_computes_on_demand(tmp_path, capsys):
     data = json.loads(out)
     assert data["source"].startswith("computed") and data["caution"] == CAUTION
     assert (tmp_path / "paschen_Ar_coefficients.csv").stat().st_size > 0
+
+
+def test_breakdown_with_steady_state_townsend_coefficients(tmp_path, capsys):
+    # --coefficients sst computes α/N with avalanche.townsend; the curve is the Townsend criterion applied to them
+    # (Raizer 1991, Gas Discharge Physics, sec. 7.2 — from memory), checked here against the written table.
+    code, out, err = run(capsys, "breakdown", "--gas", "Ar", "--gamma", 0.01, "--en", "300:1200:3",
+                         "--coefficients", "sst", "--pd", "1:3", "--max-events", 2e6, "--electrons", 512,
+                         "--precision", 0.2, "--json", "--out", tmp_path)
+    assert code == 0, err
+    data = json.loads(out)
+    assert data["coefficients_used"] == "sst" and "avalanche.townsend" in data["source"]
+    fields = np.array(data["coefficients"]["reduced_field_Td"])
+    alpha = np.array(data["coefficients"]["alpha_N_m2"])
+    expected = paschen_curve(CoefficientTable(fields, alpha, np.zeros_like(alpha), temperature_K=300.0), 0.01,
+                             parse_pd("1:3"))
+    got = np.array([math.nan if v is None else v for v in data["breakdown_voltage_V"]])
+    np.testing.assert_allclose(got, expected.breakdown_voltage_V, rtol=1e-12, equal_nan=True)
+
+
+def test_breakdown_refuses_coefficients_that_do_not_fit_the_file(outputs_results, tmp_path, capsys):
+    code, _, err = run(capsys, "breakdown", "--results", outputs_results, "--mixture", "Ar", "--gamma", 0.01,
+                       "--coefficients", "sst", "--out", tmp_path)
+    assert code == 1 and "time-of-flight sweep" in err and "leave --results out" in err
 
 
 def test_breakdown_argument_errors(capsys, tmp_path):
