@@ -9,7 +9,10 @@ Scenario (our own): the fill gas of an argon lamp cell, 300 K and 1 kPa. The dem
 3. draws the swarm parameters with the empirical Townsend formula overlaid (inside its validity range) and the
    energy distributions;
 4. writes a fluid-model rate table (CSV);
-5. computes the Paschen curve of a uniform argon gap from the swarm's α/N (γ = :data:`DEMO_GAMMA`), with its caution;
+5. runs one AC point — the same gas in a 13.56 MHz RF field of amplitude :data:`DEMO_AC_AMPLITUDE_Td` — and prints
+   its regime verdict and phase-resolved table (``<out>/demo_ac.h5``);
+6. computes the Paschen curve of a uniform argon gap from steady-state Townsend α/N (γ = :data:`DEMO_GAMMA`), with
+   its caution;
 
 and prints where each output went. It takes about a minute on 2 cores.
 """
@@ -28,6 +31,9 @@ DEMO_GAMMA = 0.01
 practice)."""
 DEMO_PD_TORR_CM = "0.3:20:25"
 """p d range of the demo's Paschen curve [Torr cm]."""
+DEMO_AC_FREQUENCY_Hz = 13.56e6
+DEMO_AC_AMPLITUDE_Td = 300.0
+"""The demo's AC point: the 13.56 MHz industrial band, field amplitude E_0/N [Td]."""
 
 DEMO_RUNFILE = f"""\
 # The demo of avalanche: the fill gas of an argon lamp cell, written by `avalanche demo`.
@@ -77,7 +83,7 @@ def run_demo(out_dir: str | Path = "runs", workers: int | None = None) -> dict[s
     runfile.write_text(DEMO_RUNFILE, encoding="utf-8")
     results = out / "demo.h5"
     workers = workers or max(1, min(2, os.cpu_count() or 1))
-    print(f"\n[1/4] argon swarm at {len(DEMO_FIELDS_Td)} reduced fields, {workers} worker(s) -> {results}")
+    print(f"\n[1/5] argon swarm at {len(DEMO_FIELDS_Td)} reduced fields, {workers} worker(s) -> {results}")
     sweep = ["sweep", str(runfile), "--out", str(results), "--workers", str(workers), "--quiet"]
     if results.exists():
         print(f"      {results} exists: finished points are kept (delete it to start afresh)")
@@ -89,20 +95,49 @@ def run_demo(out_dir: str | Path = "runs", workers: int | None = None) -> dict[s
     table = SwarmTable.from_results(open_results(results))
     print(table_summary(table))
 
-    print(f"\n[2/4] plots with the handbook Townsend formula -> {out / 'demo_plots'}")
+    print(f"\n[2/5] plots with the handbook Townsend formula -> {out / 'demo_plots'}")
     _step(main, ["plot", str(results), "--out", str(out / "demo_plots"), "--format", "png"])
-    print(f"\n[3/4] fluid-model rate table -> {out / 'demo_rates.csv'}")
+    print(f"\n[3/5] fluid-model rate table -> {out / 'demo_rates.csv'}")
     _step(main, ["table", str(results), "--out", str(out / "demo_rates.csv")])
-    print(f"\n[4/4] Paschen curve of a uniform argon gap, gamma = {DEMO_GAMMA:g} -> {out / 'demo_paschen'}")
-    _step(main, ["breakdown", "--results", str(results), "--gamma", f"{DEMO_GAMMA:g}", "--pd", DEMO_PD_TORR_CM,
+    print(f"\n[4/5] one RF point: {DEMO_AC_AMPLITUDE_Td:g} Td amplitude at {DEMO_AC_FREQUENCY_Hz / 1e6:g} MHz -> "
+          f"{out / 'demo_ac.h5'}")
+    ac_file = run_ac_point(out / "demo_ac.h5")
+    print(f"\n[5/5] Paschen curve of a uniform argon gap, gamma = {DEMO_GAMMA:g}, from steady-state Townsend alpha/N "
+          f"-> {out / 'demo_paschen'}")
+    fields = f"{DEMO_FIELDS_Td[2]:g}:{DEMO_FIELDS_Td[-1]:g}:5"
+    _step(main, ["breakdown", "--gas", "Ar", "--pressure", "1000", "--temperature", "300", "--coefficients", "sst",
+                 "--en", fields, "--gamma", f"{DEMO_GAMMA:g}", "--pd", DEMO_PD_TORR_CM, "--precision", "0.03",
                  "--out", str(out / "demo_paschen"), "--format", "png"])
     written = {"sweep": [runfile, results], "plots": sorted((out / "demo_plots").glob("demo_*")),
-               "table": [out / "demo_rates.csv"], "paschen": sorted((out / "demo_paschen").glob("paschen_*"))}
+               "table": [out / "demo_rates.csv"], "ac": [ac_file],
+               "paschen": sorted((out / "demo_paschen").glob("paschen_*"))}
     print("\noutputs:")
     for step, paths in written.items():
         for path in paths:
             print(f"  {step:8s} {path}")
     return written
+
+
+def run_ac_point(path: Path) -> Path:
+    """The demo's RF point (argon lamp-cell gas at 13.56 MHz): prints its result with the regime verdict and writes
+    it to ``path`` (HDF5)."""
+    from .engine import swarm
+    from .io import save_result
+    from .mixture import Mixture
+
+    mixture = Mixture("Ar", temperature_K=300.0, pressure_Pa=1000.0)
+    result = swarm(mixture, DEMO_AC_AMPLITUDE_Td, frequency_Hz=DEMO_AC_FREQUENCY_Hz, phase_bins=16, seed=3,
+                   precision=0.03, electrons=2048, max_events=100_000_000)
+    regime = result.regime
+    print(f"      regime: {regime['verdict']} (omega/nu_m = {regime['omega_over_nu_m']:.3g}, omega/nu_energy = "
+          f"{regime['omega_over_nu_energy']:.3g}, E_eff/N = {regime['effective_field_Td']:.4g} Td)")
+    print(f"      {regime['statement']}")
+    print("      cycle average: mean energy " f"{result.mean_energy_eV}" " eV, ionization rate coefficient "
+          f"{result.ionization_rate_coefficient} m3/s")
+    if path.exists():
+        path.unlink()
+    save_result(path, result)
+    return path
 
 
 def _step(main, argv: list[str]) -> None:

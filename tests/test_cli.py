@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import re
+
 import numpy as np
 import pytest
 
@@ -68,7 +70,7 @@ def test_demo_runs_the_whole_job_and_says_where_each_output_went(capsys, tmp_pat
     assert main(["demo", "--out", str(tmp_path)]) == 0
     out = capsys.readouterr().out
     for name in ("demo.toml", "demo.h5", "demo_rates.csv", "demo_plots/demo_swarm.png", "demo_plots/demo_eedf.png",
-                 "demo_paschen/paschen_Ar.csv", "demo_paschen/paschen_Ar.png"):
+                 "demo_ac.h5", "demo_paschen/paschen_Ar.csv", "demo_paschen/paschen_Ar.png"):
         path = tmp_path / name
         assert path.stat().st_size > 0 and str(path) in out, name
     with h5py.File(tmp_path / "demo.h5", "r") as f:
@@ -80,6 +82,9 @@ def test_demo_runs_the_whole_job_and_says_where_each_output_went(capsys, tmp_pat
     alpha = rows[:, names.index("alpha_N")]
     assert np.all(alpha > 0) and np.all(np.diff(alpha) > 0)
     assert "Caution" in out and "local electrical codes" in out
+    assert re.search(r"regime: (quasi-static|effective-field|neither) \(omega/nu_m = ", out)
+    # the Paschen minimum is found inside the computed range (steady-state Townsend alpha/N of argon)
+    assert re.search(r"minimum: [0-9.]+ V at p d", out)
     # a second demo resumes the finished file instead of recomputing it
     assert main(["demo", "--out", str(tmp_path)]) == 0
     assert "exists: finished points are kept" in capsys.readouterr().out
