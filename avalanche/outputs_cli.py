@@ -171,6 +171,23 @@ def phase_curves(results, mixture_index: int, field_Td: float) -> list:
     return curves
 
 
+def sst_profile(result):
+    """The :class:`~avalanche.plots.SSTProfile` of a steady-state Townsend result: the flux and its mean energy on
+    the tally planes, the fitted growth exp((α − η) z) and the relaxation length."""
+    from .plots import SSTProfile
+
+    p = result.profiles
+    quantities = {name: (np.asarray(p[name]), np.asarray(p[f"{name}_stderr"])) for name in ("flux", "mean_energy_eV")
+                  if name in p and f"{name}_stderr" in p}
+    density = result.inputs.get("mixture", {}).get("number_density_m3")
+    alpha_N = result.effective_alpha_N.value
+    growth = float(alpha_N * density) if density and math.isfinite(alpha_N) else None
+    length = result.relaxation_length_m.value
+    return SSTProfile(position_m=np.asarray(p["z_m"]), quantities=quantities,
+                      reduced_field_Td=float(result.reduced_field_Td), effective_alpha_per_m=growth,
+                      relaxation_length_m=float(length) if math.isfinite(length) else None)
+
+
 def _value_error(entry):
     if hasattr(entry, "value") and hasattr(entry, "stderr"):
         return np.asarray(entry.value, dtype=float), np.asarray(entry.stderr, dtype=float)
@@ -197,7 +214,14 @@ def _handbook_note(figure, table: SwarmTable, handbook: str | None) -> None:
 @command("plot", "plot swarm parameters against E/N (and EEDFs, AC phase panels) from a results file",
          configure=_plot_configure)
 def _plot(args) -> int:
-    from .plots import plot_eedf, plot_phase_resolved, plot_swarm_parameters, read_reference, save_figure
+    from .plots import (
+        plot_eedf,
+        plot_phase_resolved,
+        plot_sst_profiles,
+        plot_swarm_parameters,
+        read_reference,
+        save_figure,
+    )
 
     formats = _formats(args.format)
     results = _open(args.results)
@@ -222,6 +246,10 @@ def _plot(args) -> int:
                     distributions[float(table.reduced_field_Td[k])] = (eedf.energy_edges_eV, eedf.value, eedf.stderr)
             if distributions:
                 written += save_figure(plot_eedf(distributions, title=table.gas_label), out / f"{stem}_eedf", formats)
+        if results.attrs.get("mode") == SST_MODE:
+            profiles = [sst_profile(results.point(int(table.point_index[k])))
+                        for k in _spread(4, table.reduced_field_Td.size)]
+            written += save_figure(plot_sst_profiles(profiles), out / f"{stem}_sst_profiles", formats)
         curves = phase_curves(results, _mixture_index(results, args.mixture),
                               float(np.exp(np.mean(np.log(table.reduced_field_Td)))))
         if curves:

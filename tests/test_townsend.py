@@ -390,6 +390,32 @@ def test_a_steady_state_townsend_sweep(tmp_path):
         parse_runfile(SST_SWEEP.replace("planes = 30", "diffusion_skip = 2.0"))
 
 
+def test_plot_of_a_steady_state_townsend_sweep_draws_the_spatial_profiles(tmp_path):
+    # The profile panels carry the file's own numbers (no pixel comparison); the flux of each point is drawn
+    # against the plane positions of its result.
+    from matplotlib.figure import Figure
+
+    from avalanche import open_results, run_sweep
+    from avalanche.cli import main
+    from avalanche.outputs_cli import sst_profile
+    from avalanche.plots import plot_sst_profiles
+
+    path = tmp_path / "sst.toml"
+    path.write_text(SST_SWEEP)
+    run_sweep(path, workers=1, out=tmp_path / "sst.h5", quiet=True)
+    assert main(["plot", str(tmp_path / "sst.h5"), "--out", str(tmp_path), "--format", "png", "--eedf", "none"]) == 0
+    assert (tmp_path / "sst_sst_profiles.png").stat().st_size > 0
+    point = open_results(tmp_path / "sst.h5").point(1)
+    profile = sst_profile(point)
+    figure = plot_sst_profiles([profile])
+    assert isinstance(figure, Figure)
+    lines = [line for ax in figure.axes for line in ax.get_lines() if line.get_gid() == "sst:flux:70.0"]
+    assert lines, "the flux profile of the 70 Td point"
+    np.testing.assert_array_equal(lines[0].get_xdata(), point.profiles["z_m"])
+    np.testing.assert_array_equal(lines[0].get_ydata(), point.profiles["flux"])
+    assert profile.effective_alpha_per_m == pytest.approx(point.effective_alpha_N.value * 1e24, rel=1e-12, abs=0)
+
+
 @pytest.mark.slow
 def test_penning_transfer_raises_the_steady_state_alpha_like_the_time_of_flight_one():
     # Penning transfer in the SST kernel: Ne + 0.5 % Ar at 20 Td with r = 0.5 (an illustrative value). The
