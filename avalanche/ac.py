@@ -598,7 +598,7 @@ def finish(result, drive: Drive, est: PhaseEstimates, tallies: PhaseTallies, tar
     steady state P̄ is the rate of energy loss in collisions, so ν_ε is the rate at which the swarm loses its
     excess energy).
     """
-    from .engine import momentum_transfer_fraction
+    from .swarm_tables import momentum_transfer_fraction
 
     result.estimates.update(est.cycle)
     result.rate_coefficients = est.cycle_rates

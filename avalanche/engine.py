@@ -60,21 +60,23 @@ from . import ac
 from ._version import __version__
 from .constants import BOLTZMANN_J_K, ELEMENTARY_CHARGE_C, EV_J, ATOMIC_MASS_UNIT_kg, ELECTRON_MASS_kg, TOWNSEND_V_m2
 from .crosssections import _did_you_mean
+from .ensemble import Ensemble
 from .errors import AvalancheError, ConfigError, PhysicsWarning
 from .estimators import EstimatorContext, energy_distribution, extrapolated_fraction, rate_coefficients, swarm_estimates
 from .mixture import Mixture
-from .penning import kernel_arrays
 from .results import ESTIMATE_UNITS, SwarmResult
+from .swarm_tables import (  # noqa: F401  (re-exported: the engine's tables are part of its interface)
+    ACTIONS,
+    SCATTERING_MODELS,
+    SHARING_RULES,
+    TRIAL_MARGIN,
+    ENERGY_FLOOR_eV,
+    EnergyGrid,
+    ProcessTable,
+    momentum_transfer_fraction,
+)
 from .tallies import SwarmTallies
 
-SHARING_RULES = {"equal": K.SHARING_EQUAL, "uniform": K.SHARING_UNIFORM, "opb": K.SHARING_OPB}
-SCATTERING_MODELS = {"isotropic": K.SCATTER_ISOTROPIC, "screened-coulomb": K.SCATTER_SCREENED_COULOMB}
-ACTIONS = {"elastic": K.ACTION_ELASTIC, "excitation": K.ACTION_EXCITATION, "ionization": K.ACTION_IONIZATION,
-           "attachment": K.ACTION_ATTACHMENT, "penning": K.ACTION_PENNING}
-ENERGY_FLOOR_eV = 1e-9
-"""Cross sections are evaluated at ε ≥ this, so σ ∝ ε^-1/2 gives a finite σ v."""
-TRIAL_MARGIN = 1e-3
-"""ν* = (1 + TRIAL_MARGIN) max ν(ε) over the nodes: a bound also between nodes for smooth data."""
 IONIZING_KINDS = ("ionization", "penning")
 """Process kinds that create electrons (a "penning" row is the pseudo-process counting Penning transfers)."""
 RELAXATION_MIN_CHUNKS = 8
@@ -173,254 +175,6 @@ def make_settings(*, seed=0, precision=0.01, electrons=16384, max_events=1_000_0
         eedf_bins=_positive("eedf_bins", eedf_bins, integer=True),
         diffusion_skip=_positive("diffusion_skip", diffusion_skip),
         diffusion_segment=_positive("diffusion_segment", diffusion_segment))
-
-
-# ------------------------------------------------------------------------------------------- process tables
-
-def momentum_transfer_fraction(energy_eV) -> np.ndarray:
-    """⟨1 − cos χ⟩ = σ_m/σ_T of the screened-Coulomb distribution at ``energy_eV`` [eV].
-
-    With ξ = 4ε/(1 + 4ε): σ_m/σ_T = (1 − ξ)[(1 + ξ) ln((1 + ξ)/(1 − ξ)) − 2ξ]/(2ξ²) (Okhrimovskyy, Bogaerts &
-    Gijbels 2002, Phys. Rev. E 65 037402, eq. (11), from memory; it is also the integral of 1 − cos χ over the
-    sampling formula of :func:`avalanche._kernels.scattering_cosine`). Series 1 − 2ξ/3 for ξ < 1e-4.
-    """
-    energy = np.asarray(energy_eV, dtype=float)
-    xi = 4.0 * energy / (1.0 + 4.0 * energy)
-    small = xi < 1e-4
-    xs = np.where(small, 0.5, xi)
-    exact = (1 - xs) * ((1 + xs) * (np.log1p(xs) - np.log1p(-xs)) - 2 * xs) / (2 * xs * xs)
-    return np.where(small, 1.0 - 2.0 * xi / 3.0, exact)
-
-
-@dataclass(frozen=True, eq=False)
-class ProcessTable:
-    """The enabled processes of a mixture as kernel arrays (one entry per process), followed by one pseudo-process
-    row of kind "penning" per Penning channel of the mixture (zero collision frequency, never selected; its count
-    is the channel's Penning ionizations, its target density the receiver's, see :mod:`avalanche.penning`)."""
-
-    processes: tuple
-    keys: tuple[str, ...]
-    kinds: tuple[str, ...]
-    species: tuple[str, ...]
-    target_density_m3: np.ndarray
-    density_factor: np.ndarray
-    action: np.ndarray
-    loss_eV: np.ndarray
-    electron_fraction: np.ndarray
-    target_fraction: np.ndarray
-    thermal_speed: np.ndarray
-    scatter: np.ndarray
-    sharing: np.ndarray
-    w_eV: np.ndarray
-    table_max_eV: np.ndarray
-    penning_probability: np.ndarray
-    penning_energy_eV: np.ndarray
-    penning_slot: np.ndarray
-
-    @classmethod
-    def build(cls, mixture: Mixture, sharing: str, scattering: str) -> ProcessTable:
-        rows = []
-        single = len(mixture.components) == 1
-        for comp in mixture.components:
-            xs = comp.cross_sections
-            density = comp.fraction * mixture.number_density_m3
-            mass = xs.mass_amu * ATOMIC_MASS_UNIT_kg
-            for proc in xs.processes:
-                if not proc.enabled:
-                    continue
-                factor = density / proc.reference_density_m3 if proc.three_body else 1.0
-                rule = SHARING_RULES[sharing]
-                w = proc.opb_w_eV or 0.0
-                if proc.kind == "ionization" and sharing == "opb" and not w:
-                    warnings.warn(f"{xs.name}: ionization process '{proc.label}' has no opb_w_eV; its energy is "
-                                  "shared equally (give opb_w_eV in the set, or choose sharing='uniform' or "
-                                  "'equal')", PhysicsWarning, stacklevel=4)
-                    rule = K.SHARING_EQUAL
-                model = "screened-coulomb" if "screened-coulomb" in (scattering, proc.scattering) else "isotropic"
-                rows.append(dict(
-                    process=proc, key=proc.label if single else f"{comp.name}:{proc.label}", kind=proc.kind,
-                    species=comp.name, density=density, factor=factor, action=ACTIONS[proc.kind],
-                    loss=proc.threshold_eV if proc.kind in ("excitation", "ionization") else 0.0,
-                    electron_fraction=ELECTRON_MASS_kg / (ELECTRON_MASS_kg + mass),
-                    target_fraction=mass / (ELECTRON_MASS_kg + mass),
-                    thermal=math.sqrt(BOLTZMANN_J_K * mixture.temperature_K / mass),
-                    scatter=SCATTERING_MODELS[model], sharing=rule, w=w, table_max=proc.max_energy_eV))
-        if not rows:
-            raise ConfigError(f"mixture {mixture.label}: every process is disabled; enable at least the elastic one")
-        penning = kernel_arrays(mixture.penning_channels, [r["species"] for r in rows],
-                                [r["process"].label for r in rows])
-        fractions = {c.name: c.fraction for c in mixture.components}
-        for channel in mixture.penning_channels:
-            rows.append(dict(process=channel, key=channel.key, kind="penning", species=channel.receiver,
-                             density=fractions[channel.receiver] * mixture.number_density_m3, factor=1.0,
-                             action=K.ACTION_PENNING, loss=0.0, electron_fraction=0.0, target_fraction=0.0,
-                             thermal=0.0, scatter=K.SCATTER_ISOTROPIC, sharing=K.SHARING_EQUAL, w=0.0,
-                             table_max=math.inf))
-
-        def col(name, dtype=float):
-            return np.array([r[name] for r in rows], dtype=dtype)
-
-        return cls(processes=tuple(r["process"] for r in rows), keys=tuple(r["key"] for r in rows),
-                   kinds=tuple(r["kind"] for r in rows), species=tuple(r["species"] for r in rows),
-                   target_density_m3=col("density"), density_factor=col("factor"), action=col("action", np.int64),
-                   loss_eV=col("loss"), electron_fraction=col("electron_fraction"),
-                   target_fraction=col("target_fraction"), thermal_speed=col("thermal"),
-                   scatter=col("scatter", np.int64), sharing=col("sharing", np.int64), w_eV=col("w"),
-                   table_max_eV=col("table_max"), penning_probability=penning[0], penning_energy_eV=penning[1],
-                   penning_slot=penning[2])
-
-    def frequencies(self, energy_eV: np.ndarray) -> np.ndarray:
-        """Collision frequency of each process [s⁻¹] at ``energy_eV`` (shape (P, len(energy_eV)))."""
-        energy = np.maximum(np.asarray(energy_eV, dtype=float), ENERGY_FLOOR_eV)
-        speed = np.sqrt(2.0 * energy * EV_J / ELECTRON_MASS_kg)
-        out = np.empty((len(self.processes), energy.size))
-        for k, proc in enumerate(self.processes):
-            if self.kinds[k] == "penning":
-                out[k] = 0.0
-                continue
-            sigma = np.asarray(proc.sigma_m2(energy), dtype=float)
-            if proc.kind == "elastic" and self.scatter[k] == K.SCATTER_SCREENED_COULOMB:
-                sigma = sigma / momentum_transfer_fraction(energy)
-            out[k] = self.target_density_m3[k] * self.density_factor[k] * sigma * speed
-        return out
-
-
-@dataclass(frozen=True, eq=False)
-class EnergyGrid:
-    """The kernel's collision-frequency tables on nodes i Δε, i = 0 … n_cells, and the trial frequency."""
-
-    energy_max_eV: float
-    n_cells: int
-    nu_star: float
-    nu_total: np.ndarray
-    nu_cumulative: np.ndarray
-
-    @classmethod
-    def build(cls, table: ProcessTable, energy_max_eV: float, n_cells: int) -> EnergyGrid:
-        nodes = np.linspace(0.0, energy_max_eV, n_cells + 1)
-        nu = table.frequencies(nodes)
-        cumulative = np.ascontiguousarray(np.cumsum(nu, axis=0).T)
-        total = np.ascontiguousarray(cumulative[:, -1])
-        peak = float(total.max())
-        if not peak > 0:
-            raise ConfigError("the mixture's collision frequency is zero on the whole energy grid; check the "
-                              "cross sections (every process zero?)")
-        return cls(energy_max_eV=float(energy_max_eV), n_cells=int(n_cells), nu_star=peak * (1.0 + TRIAL_MARGIN),
-                   nu_total=total, nu_cumulative=cumulative)
-
-    @property
-    def inv_cell_eV(self) -> float:
-        return self.n_cells / self.energy_max_eV
-
-
-# ------------------------------------------------------------------------------------------------ ensemble
-
-class Ensemble:
-    """The electrons of R replicas in arrays of shape (R, capacity), with their generators and weights."""
-
-    def __init__(self, settings: Settings, growing: bool = True):
-        self.replicas = settings.replicas
-        self.target = settings.electrons // settings.replicas
-        lower, upper = settings.population_bounds
-        self.lower = max(1, int(math.floor(lower * self.target)))
-        self.upper = max(self.target + 1, int(math.ceil(upper * self.target)))
-        children = np.random.SeedSequence(settings.seed).spawn(self.replicas)
-        streams = [child.spawn(2) for child in children]
-        self.rng = np.array([s[0].generate_state(4, np.uint64) for s in streams], dtype=np.uint64)
-        self.rng[np.all(self.rng == 0, axis=1), 0] = np.uint64(1)  # xoshiro's one forbidden state
-        self.control_rng = [np.random.Generator(np.random.PCG64(s[1])) for s in streams]
-        # Without ionization no replica ever exceeds its target (cloning stops there); with it, room for growth
-        # above the upper bound (the store is enlarged, and the chunk redone, if that is not enough).
-        self.capacity = int(math.ceil(1.4 * self.upper)) if growing else self.target
-        self._allocate(self.capacity)
-        self.count = np.full(self.replicas, self.target, dtype=np.int64)
-        self.log_weight = np.zeros(self.replicas)
-        kT_eV = 2.0 / 3.0 * settings.initial_energy_eV
-        for r, gen in enumerate(self.control_rng):
-            energy = kT_eV * gen.standard_gamma(1.5, self.target)
-            speed = np.sqrt(energy / K.ENERGY_PER_SPEED2_eV)
-            cos_t = 1.0 - 2.0 * gen.random(self.target)
-            phi = 2.0 * np.pi * gen.random(self.target)
-            sin_t = np.sqrt(1.0 - cos_t ** 2)
-            self.vx[r, :self.target] = speed * sin_t * np.cos(phi)
-            self.vy[r, :self.target] = speed * sin_t * np.sin(phi)
-            self.vz[r, :self.target] = speed * cos_t
-
-    _STATE = ("x", "y", "z", "vx", "vy", "vz")
-
-    def _allocate(self, capacity: int) -> None:
-        for name in self._STATE + ("birth",):
-            setattr(self, name, np.zeros((self.replicas, capacity)))
-
-    def enlarge(self) -> None:
-        """Enlarge the capacity 1.5 times (keeping the live electrons)."""
-        old = {name: getattr(self, name) for name in self._STATE}
-        self.capacity = int(math.ceil(1.5 * self.capacity))
-        self._allocate(self.capacity)
-        for name, arr in old.items():
-            getattr(self, name)[:, :arr.shape[1]] = arr
-
-    def save(self) -> tuple:
-        """A copy of the live state (for redoing a chunk)."""
-        top = int(self.count.max())
-        return (self.count.copy(), self.rng.copy(), {n: getattr(self, n)[:, :top].copy() for n in self._STATE})
-
-    def restore(self, saved: tuple) -> None:
-        count, rng, arrays = saved
-        self.count[:] = count
-        self.rng[:] = rng
-        for name, arr in arrays.items():
-            getattr(self, name)[:, :arr.shape[1]] = arr
-
-    def moments(self) -> np.ndarray:
-        """Per replica (R, 6): x̄, ȳ, z̄, var(z), var(x) + var(y), n (variances with n − 1; NaN for n < 2)."""
-        n = self.count.astype(float)
-        top = int(self.count.max())
-        live = np.arange(top)[None, :] < self.count[:, None]
-        out = np.empty((self.replicas, 6))
-        out[:, 5] = n
-        with np.errstate(invalid="ignore", divide="ignore"):
-            for column, name in enumerate(("x", "y", "z")):
-                values = np.where(live, getattr(self, name)[:, :top], 0.0)
-                mean = values.sum(axis=1) / n
-                deviation = np.where(live, values - mean[:, None], 0.0)
-                out[:, column] = mean
-                var = np.einsum("ij,ij->i", deviation, deviation) / (n - 1)
-                if name == "z":
-                    out[:, 3] = var
-                else:
-                    out[:, 4] = var if name == "x" else out[:, 4] + var
-        out[n < 2, :5] = np.nan
-        return out
-
-    def reset_positions(self) -> None:
-        """Move every live electron to the origin (only live entries are touched: memory stays ∝ electrons)."""
-        for name in ("x", "y", "z"):
-            arr = getattr(self, name)
-            for r in range(self.replicas):
-                arr[r, :self.count[r]] = 0.0
-
-    def control(self) -> int:
-        """Population control of every replica; returns how many replicas were resampled."""
-        changed = 0
-        for r, gen in enumerate(self.control_rng):
-            n = int(self.count[r])
-            if n == 0:
-                raise AvalancheError("a replica lost all its electrons (attachment faster than the chunk "
-                                     "schedule); raise electrons or lower events_per_chunk")
-            if self.lower <= n <= self.upper:
-                continue
-            if n > self.upper:
-                index = np.sort(gen.choice(n, self.target, replace=False))
-            else:
-                index = np.concatenate((np.arange(n), gen.integers(0, n, self.target - n)))
-            for name in self._STATE:
-                arr = getattr(self, name)
-                arr[r, :self.target] = arr[r, index]
-            self.count[r] = self.target
-            self.log_weight[r] += math.log(n / self.target)
-            changed += 1
-        return changed
 
 
 # ------------------------------------------------------------------------------------------------ the run

@@ -57,11 +57,11 @@ from . import _sst_kernels as S
 from ._version import __version__
 from .constants import BOLTZMANN_J_K, ELEMENTARY_CHARGE_C, EV_J, ELECTRON_MASS_kg, TOWNSEND_V_m2
 from .crosssections import _did_you_mean
-from .engine import EnergyGrid, ProcessTable
 from .errors import AvalancheError, ConfigError, PhysicsWarning
 from .mixture import Mixture
 from .results import _json_float, _plain
 from .sst_estimators import TALLY_FIELDS, townsend_estimates
+from .swarm_tables import EnergyGrid, ProcessTable
 
 TOWNSEND_ESTIMATES: tuple[tuple[str, str, str], ...] = (
     ("alpha_N", "m2", "SST ionization coefficient alpha/N (ionizations per flux path)"),
@@ -156,7 +156,7 @@ def make_townsend_settings(*, seed=0, precision=0.02, electrons=4096, max_events
                            energy_cells=8192, energy_limit_eV=1e5, pilot_events=20_000_000,
                            precision_on="auto") -> TownsendSettings:
     """Validate the keyword arguments of :func:`townsend`; raise :class:`ConfigError` naming the bad one."""
-    from .engine import SCATTERING_MODELS, SHARING_RULES
+    from .swarm_tables import SCATTERING_MODELS, SHARING_RULES
 
     replicas = _number("replicas", replicas, integer=True, minimum=2)
     electrons = _number("electrons", electrons, integer=True)
