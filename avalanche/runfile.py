@@ -370,6 +370,10 @@ def parse_runfile(text: str, source: str = "<run file>", base: str | Path | None
         raise ConfigError(f"{source}: [grid] frequencies_Hz = {list(frequencies)} needs time-varying (AC) fields, "
                           "which this installation's engine does not provide yet (avalanche.engine.swarm takes no "
                           "frequency_Hz); remove frequencies_Hz or use [0.0] for a DC sweep")
+    if any(f > 0 for f in frequencies) and mode != DEFAULT_MODE:
+        raise ConfigError(f"{source}: [grid] frequencies_Hz = {list(frequencies)} with [sweep] mode = \"{mode}\": the "
+                          "steady-state Townsend mode follows electrons in a DC field only; remove frequencies_Hz "
+                          f"(or use [0.0]), or use mode = \"{DEFAULT_MODE}\" for AC points")
 
     engine = _engine_options(sections["engine"], features, source, mode)
     cluster = _cluster(sections["cluster"], check) if "cluster" in data else None

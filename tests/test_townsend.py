@@ -388,6 +388,10 @@ def test_a_steady_state_townsend_sweep(tmp_path):
     # an option only the time-of-flight engine has is refused before anything runs, naming it
     with pytest.raises(ConfigError, match="diffusion_skip"):
         parse_runfile(SST_SWEEP.replace("planes = 30", "diffusion_skip = 2.0"))
+    # AC frequencies are refused in SST mode before anything runs
+    with pytest.raises(ConfigError, match=r"frequencies_Hz = \[0.0, 1000000.0\] with \[sweep\] mode"):
+        parse_runfile(SST_SWEEP.replace("reduced_field_Td = [50, 70]",
+                                        "reduced_field_Td = [50, 70]\nfrequencies_Hz = [0, 1e6]"))
 
 
 def test_plot_of_a_steady_state_townsend_sweep_draws_the_spatial_profiles(tmp_path):
