@@ -373,6 +373,56 @@ def speed_from_energy(energy_eV):
     return math.sqrt(energy_eV / ENERGY_PER_SPEED2_eV)
 
 
+@jit
+def target_velocity(thermal_speed, s0, s1, s2, s3):
+    """A target velocity from the Maxwellian of thermal speed √(kT/M) (Box–Muller), and the new generator state."""
+    a1, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
+    a2, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
+    a3, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
+    a4, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
+    radius = thermal_speed * math.sqrt(-2.0 * math.log(1.0 - a1))
+    tz = thermal_speed * math.sqrt(-2.0 * math.log(1.0 - a3)) * math.cos(TWO_PI * a4)
+    return radius * math.cos(TWO_PI * a2), radius * math.sin(TWO_PI * a2), tz, s0, s1, s2, s3
+
+
+@jit
+def select_process(level, c, f, nu_cumulative, n_proc):
+    """Index of the process whose cumulative-frequency interval holds ``level`` [s⁻¹] at grid cell c, fraction f
+    (linear interpolation inside the cell); the last process when ``level`` lies above all but it."""
+    k = 0
+    while k < n_proc - 1:
+        low = nu_cumulative[c, k]
+        if level < low + f * (nu_cumulative[c + 1, k] - low):
+            break
+        k += 1
+    return k
+
+
+@jit
+def ionization_velocities(ux, uy, uz, energy_eV, loss_eV, sharing, w_eV, scatter, u, phi, s0, s1, s2, s3):
+    """Velocities of the scattered and of the ejected electron of an ionization at ``energy_eV`` [eV] (the excess
+    ε − I shared by :func:`secondary_energy_eV`), and the new generator state."""
+    excess = energy_eV - loss_eV
+    a1, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
+    a2, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
+    a3, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
+    ejected = secondary_energy_eV(excess, sharing, w_eV, a1)
+    kept = excess - ejected
+    wx, wy, wz = turned_velocity(ux, uy, uz, speed_from_energy(ejected), scatter, ejected, a2, TWO_PI * a3)
+    ux, uy, uz = turned_velocity(ux, uy, uz, speed_from_energy(kept), scatter, kept, u, phi)
+    return ux, uy, uz, wx, wy, wz, s0, s1, s2, s3
+
+
+@jit
+def penning_velocity(energy_eV, s0, s1, s2, s3):
+    """Velocity of the electron a Penning transfer creates: energy ε_level − I_B [eV], isotropic direction."""
+    a2, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
+    a3, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
+    speed = speed_from_energy(energy_eV)
+    wx, wy, wz = new_direction(SCATTER_ISOTROPIC, 0.0, 0.0, 1.0, 0.0, a2, TWO_PI * a3)
+    return speed * wx, speed * wy, speed * wz, s0, s1, s2, s3
+
+
 # ---------------------------------------------------------------------------------------------- one chunk
 
 @jit
@@ -524,12 +574,7 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
                 above_bound += 1
             if level >= nu:
                 continue  # null collision
-            k = 0
-            while k < n_proc - 1:
-                low = nu_cumulative[c, k]
-                if level < low + f * (nu_cumulative[c + 1, k] - low):
-                    break
-                k += 1
+            k = select_process(level, c, f, nu_cumulative, n_proc)
             if energy < loss_eV[k]:
                 continue  # inside the threshold's grid cell but below the threshold: rejected like a null event
             real += 1
@@ -553,14 +598,7 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
                 ty = 0.0
                 tz = 0.0
                 if thermal_speed[k] > 0.0:
-                    a1, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
-                    a2, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
-                    a3, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
-                    a4, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
-                    radius = thermal_speed[k] * math.sqrt(-2.0 * math.log(1.0 - a1))
-                    tx = radius * math.cos(TWO_PI * a2)
-                    ty = radius * math.sin(TWO_PI * a2)
-                    tz = thermal_speed[k] * math.sqrt(-2.0 * math.log(1.0 - a3)) * math.cos(TWO_PI * a4)
+                    tx, ty, tz, s0, s1, s2, s3 = target_velocity(thermal_speed[k], s0, s1, s2, s3)
                 ux, uy, uz = elastic_velocity(ux, uy, uz, tx, ty, tz, electron_fraction[k], target_fraction[k],
                                               scatter[k], energy, u, phi)
             elif kind == ACTION_EXCITATION:
@@ -575,11 +613,8 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
                         if n >= capacity:
                             status = 2
                             break
-                        a2, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
-                        a3, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
-                        speed = speed_from_energy(penning_energy_eV[k])
-                        wx, wy, wz = new_direction(SCATTER_ISOTROPIC, 0.0, 0.0, 1.0, 0.0, a2, TWO_PI * a3)
-                        _store(x, y, z, vx, vy, vz, r, n, px, py, pz, speed * wx, speed * wy, speed * wz)
+                        wx, wy, wz, s0, s1, s2, s3 = penning_velocity(penning_energy_eV[k], s0, s1, s2, s3)
+                        _store(x, y, z, vx, vy, vz, r, n, px, py, pz, wx, wy, wz)
                         birth[r, n] = t
                         n += 1
                         created += 1
@@ -592,15 +627,8 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
                 if n >= capacity:
                     status = 2
                     break
-                excess = energy - loss_eV[k]
-                a1, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
-                a2, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
-                a3, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
-                ejected = secondary_energy_eV(excess, sharing[k], w_eV[k], a1)
-                kept = excess - ejected
-                wx, wy, wz = turned_velocity(ux, uy, uz, speed_from_energy(ejected), scatter[k], ejected, a2,
-                                             TWO_PI * a3)
-                ux, uy, uz = turned_velocity(ux, uy, uz, speed_from_energy(kept), scatter[k], kept, u, phi)
+                ux, uy, uz, wx, wy, wz, s0, s1, s2, s3 = ionization_velocities(
+                    ux, uy, uz, energy, loss_eV[k], sharing[k], w_eV[k], scatter[k], u, phi, s0, s1, s2, s3)
                 _store(x, y, z, vx, vy, vz, r, n, px, py, pz, wx, wy, wz)
                 birth[r, n] = t
                 n += 1

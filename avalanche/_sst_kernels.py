@@ -38,16 +38,17 @@ from ._kernels import (
     ACTION_ELASTIC,
     ACTION_EXCITATION,
     ACTION_IONIZATION,
-    SCATTER_ISOTROPIC,
     TWO_PI,
     ENERGY_PER_SPEED2_eV,
     elastic_velocity,
+    ionization_velocities,
     jit,
     jit_parallel,
-    new_direction,
     next_uniform,
-    secondary_energy_eV,
+    penning_velocity,
+    select_process,
     speed_from_energy,
+    target_velocity,
     turned_velocity,
 )
 
@@ -130,18 +131,6 @@ def absorption_time(z_m, vz, accel):
 
 
 @jit
-def _target_velocity(thermal_speed, s0, s1, s2, s3):
-    """A target velocity from the Maxwellian of thermal speed √(kT/M) (Box–Muller), and the new generator state."""
-    a1, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
-    a2, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
-    a3, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
-    a4, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
-    radius = thermal_speed * math.sqrt(-2.0 * math.log(1.0 - a1))
-    tz = thermal_speed * math.sqrt(-2.0 * math.log(1.0 - a3)) * math.cos(TWO_PI * a4)
-    return radius * math.cos(TWO_PI * a2), radius * math.sin(TWO_PI * a2), tz, s0, s1, s2, s3
-
-
-@jit
 def _pass_replica(r, z, vx, vy, vz, count, bank_vx, bank_vy, bank_vz, bank_count, rng, z_next, spacing_m,
                   accel, field_V_m, inv_cell_eV, n_cells, nu_star, nu_total, nu_cumulative, action, loss_eV,
                   electron_fraction, target_fraction, thermal_speed, scatter, sharing, w_eV, table_max_eV,
@@ -219,12 +208,7 @@ def _pass_replica(r, z, vx, vy, vz, count, bank_vx, bank_vy, bank_vz, bank_count
                 counts[r, COUNT_ABOVE_BOUND] += 1
             if level >= nu:
                 continue  # null collision
-            k = 0
-            while k < n_proc - 1:
-                low = nu_cumulative[c, k]
-                if level < low + f * (nu_cumulative[c + 1, k] - low):
-                    break
-                k += 1
+            k = select_process(level, c, f, nu_cumulative, n_proc)
             if energy < loss_eV[k]:
                 continue  # below the threshold inside its grid cell: rejected like a null event
             counts[r, COUNT_REAL] += 1
@@ -246,7 +230,7 @@ def _pass_replica(r, z, vx, vy, vz, count, bank_vx, bank_vy, bank_vz, bank_count
                 ty = 0.0
                 tz = 0.0
                 if thermal_speed[k] > 0.0:
-                    tx, ty, tz, s0, s1, s2, s3 = _target_velocity(thermal_speed[k], s0, s1, s2, s3)
+                    tx, ty, tz, s0, s1, s2, s3 = target_velocity(thermal_speed[k], s0, s1, s2, s3)
                 ux, uy, uz = elastic_velocity(ux, uy, uz, tx, ty, tz, electron_fraction[k], target_fraction[k],
                                               scatter[k], energy, u, phi)
             elif kind == ACTION_EXCITATION:
@@ -261,14 +245,11 @@ def _pass_replica(r, z, vx, vy, vz, count, bank_vx, bank_vy, bank_vz, bank_count
                         if n >= capacity:
                             status = 2
                             break
-                        a2, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
-                        a3, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
-                        speed = speed_from_energy(penning_energy_eV[k])
-                        wx, wy, wz = new_direction(SCATTER_ISOTROPIC, 0.0, 0.0, 1.0, 0.0, a2, TWO_PI * a3)
+                        wx, wy, wz, s0, s1, s2, s3 = penning_velocity(penning_energy_eV[k], s0, s1, s2, s3)
                         z[r, n] = pz
-                        vx[r, n] = speed * wx
-                        vy[r, n] = speed * wy
-                        vz[r, n] = speed * wz
+                        vx[r, n] = wx
+                        vy[r, n] = wy
+                        vz[r, n] = wz
                         n += 1
                         counts[r, COUNT_CREATED] += 1
                         process_counts[r, penning_slot[k]] += 1
@@ -279,15 +260,8 @@ def _pass_replica(r, z, vx, vy, vz, count, bank_vx, bank_vy, bank_vz, bank_count
                 if n >= capacity:
                     status = 2
                     break
-                excess = energy - loss_eV[k]
-                a1, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
-                a2, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
-                a3, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
-                ejected = secondary_energy_eV(excess, sharing[k], w_eV[k], a1)
-                kept = excess - ejected
-                wx, wy, wz = turned_velocity(ux, uy, uz, speed_from_energy(ejected), scatter[k], ejected, a2,
-                                             TWO_PI * a3)
-                ux, uy, uz = turned_velocity(ux, uy, uz, speed_from_energy(kept), scatter[k], kept, u, phi)
+                ux, uy, uz, wx, wy, wz, s0, s1, s2, s3 = ionization_velocities(
+                    ux, uy, uz, energy, loss_eV[k], sharing[k], w_eV[k], scatter[k], u, phi, s0, s1, s2, s3)
                 z[r, n] = pz
                 vx[r, n] = wx
                 vy[r, n] = wy
