@@ -36,15 +36,22 @@ def mixture_from_args(args):
                    number_density_m3=args.density, penning=penning)
 
 
-def _swarm_configure(p) -> None:
+def point_arguments(p, precision: float, electrons_help: str) -> None:
+    """The arguments of one simulated point shared by ``swarm`` and ``townsend``: gas, E/N, precision, budget,
+    electrons, seed, sharing and scattering rules."""
     _mixture_arguments(p)
     p.add_argument("--en", type=float, required=True, metavar="TD", help="reduced field E/N [Td]")
-    p.add_argument("--precision", type=float, default=0.01, help="target relative standard error (0.01)")
+    p.add_argument("--precision", type=float, default=precision,
+                   help=f"target relative standard error ({precision:g})")
     p.add_argument("--max-events", type=float, default=None, help="collision-event budget (null events included)")
-    p.add_argument("--electrons", type=int, default=None, help="electrons per ensemble")
+    p.add_argument("--electrons", type=int, default=None, help=electrons_help)
     p.add_argument("--seed", type=int, default=0, help="master random seed (0)")
     p.add_argument("--sharing", default=None, help="ionization energy sharing: equal, uniform or opb")
     p.add_argument("--scattering", default=None, help="angular scattering: isotropic or screened-coulomb")
+
+
+def _swarm_configure(p) -> None:
+    point_arguments(p, 0.01, "electrons per ensemble")
     p.add_argument("--frequency", type=float, default=None, metavar="HZ",
                    help="AC drive frequency [Hz] (--en is then the amplitude); omit for DC")
     p.add_argument("--waveform", default=None, metavar="FILE.csv",

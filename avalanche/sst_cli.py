@@ -3,18 +3,11 @@
 from __future__ import annotations
 
 from .cli import SAFETY_NOTE, command, print_json
-from .cli_commands import _mixture_arguments, mixture_from_args
+from .cli_commands import mixture_from_args, point_arguments
 
 
 def _configure(p) -> None:
-    _mixture_arguments(p)
-    p.add_argument("--en", type=float, required=True, metavar="TD", help="reduced field E/N [Td]")
-    p.add_argument("--precision", type=float, default=0.02, help="target relative standard error (0.02)")
-    p.add_argument("--max-events", type=float, default=None, help="collision-event budget (null events included)")
-    p.add_argument("--electrons", type=int, default=None, help="electrons followed per pass (4096)")
-    p.add_argument("--seed", type=int, default=0, help="master random seed (0)")
-    p.add_argument("--sharing", default=None, help="ionization energy sharing: equal, uniform or opb")
-    p.add_argument("--scattering", default=None, help="angular scattering: isotropic or screened-coulomb")
+    point_arguments(p, 0.02, "electrons followed per pass (4096)")
     p.add_argument("--distance", type=float, default=None, metavar="M",
                    help="distance of the last tally plane from the electrode [m] (adaptive by default)")
     p.add_argument("--margin", type=float, default=None, metavar="M",
