@@ -423,6 +423,52 @@ def penning_velocity(energy_eV, s0, s1, s2, s3):
     return speed * wx, speed * wy, speed * wz, s0, s1, s2, s3
 
 
+CHILD_NONE = 0
+CHILD_IONIZATION = 1
+CHILD_PENNING = 2
+
+
+@jit
+def scatter_electron(kind, k, ux, uy, uz, energy_eV, action_args, s0, s1, s2, s3):
+    """A real, non-attaching collision with process k: the electron's new velocity and the electron it creates.
+
+    ``action_args`` = (loss_eV, electron_fraction, target_fraction, thermal_speed, scatter, sharing, w_eV,
+    penning_probability, penning_energy_eV), the per-process tables. Elastic: two-body kinematics with a
+    Maxwellian target (:func:`target_velocity`); excitation: the threshold is lost, then with probability r_k a
+    Penning transfer creates an electron of ε_level − I_B (:func:`penning_velocity`); ionization: the excess is
+    shared (:func:`ionization_velocities`). Returns (ux, uy, uz, child, wx, wy, wz, s0, s1, s2, s3) with child one
+    of CHILD_NONE, CHILD_IONIZATION, CHILD_PENNING and (wx, wy, wz) the created electron's velocity. The caller
+    stores the child (or aborts its chunk when its store is full: the chunk is then redone from its saved state).
+    """
+    (loss, electron_fraction, target_fraction, thermal_speed, scatter, sharing, w_eV, penning_probability,
+     penning_energy_eV) = action_args
+    u, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
+    u_phi, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
+    phi = TWO_PI * u_phi
+    if kind == ACTION_ELASTIC:
+        tx = 0.0
+        ty = 0.0
+        tz = 0.0
+        if thermal_speed[k] > 0.0:
+            tx, ty, tz, s0, s1, s2, s3 = target_velocity(thermal_speed[k], s0, s1, s2, s3)
+        ux, uy, uz = elastic_velocity(ux, uy, uz, tx, ty, tz, electron_fraction[k], target_fraction[k], scatter[k],
+                                      energy_eV, u, phi)
+        return ux, uy, uz, CHILD_NONE, 0.0, 0.0, 0.0, s0, s1, s2, s3
+    if kind == ACTION_EXCITATION:
+        new_energy = energy_eV - loss[k]
+        ux, uy, uz = turned_velocity(ux, uy, uz, speed_from_energy(new_energy), scatter[k], new_energy, u, phi)
+        # Penning transfer (avalanche.penning): the excited atom ionizes the receiver with probability r_k.
+        if penning_probability[k] > 0.0:
+            a1, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
+            if a1 < penning_probability[k]:
+                wx, wy, wz, s0, s1, s2, s3 = penning_velocity(penning_energy_eV[k], s0, s1, s2, s3)
+                return ux, uy, uz, CHILD_PENNING, wx, wy, wz, s0, s1, s2, s3
+        return ux, uy, uz, CHILD_NONE, 0.0, 0.0, 0.0, s0, s1, s2, s3
+    ux, uy, uz, wx, wy, wz, s0, s1, s2, s3 = ionization_velocities(
+        ux, uy, uz, energy_eV, loss[k], sharing[k], w_eV[k], scatter[k], u, phi, s0, s1, s2, s3)
+    return ux, uy, uz, CHILD_IONIZATION, wx, wy, wz, s0, s1, s2, s3
+
+
 # ---------------------------------------------------------------------------------------------- one chunk
 
 @jit
@@ -492,6 +538,8 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
     above_bound = 0
     status = 0  # 0: fine, 1: above the energy grid, 2: particle store full
     inv_nu_star = 1.0 / nu_star
+    action_args = (loss_eV, electron_fraction, target_fraction, thermal_speed, scatter, sharing, w_eV,
+                   penning_probability, penning_energy_eV)
     n = count[r]
     n_initial = n
     write = 0
@@ -590,51 +638,22 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
                 if ac:
                     phase_counts[r, pb, PHASE_REMOVED] += 1
                 break
-            u, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
-            u_phi, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
-            phi = TWO_PI * u_phi
-            if kind == ACTION_ELASTIC:
-                tx = 0.0
-                ty = 0.0
-                tz = 0.0
-                if thermal_speed[k] > 0.0:
-                    tx, ty, tz, s0, s1, s2, s3 = target_velocity(thermal_speed[k], s0, s1, s2, s3)
-                ux, uy, uz = elastic_velocity(ux, uy, uz, tx, ty, tz, electron_fraction[k], target_fraction[k],
-                                              scatter[k], energy, u, phi)
-            elif kind == ACTION_EXCITATION:
-                new_energy = energy - loss_eV[k]
-                ux, uy, uz = turned_velocity(ux, uy, uz, speed_from_energy(new_energy), scatter[k], new_energy, u,
-                                             phi)
-                # ---- Penning transfer (avalanche.penning): with probability r_k the excited atom ionizes the
-                # receiver; the new electron gets ε_level − I_B, isotropic, here and now; slot penning_slot[k] counts.
-                if penning_probability[k] > 0.0:
-                    a1, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
-                    if a1 < penning_probability[k]:
-                        if n >= capacity:
-                            status = 2
-                            break
-                        wx, wy, wz, s0, s1, s2, s3 = penning_velocity(penning_energy_eV[k], s0, s1, s2, s3)
-                        _store(x, y, z, vx, vy, vz, r, n, px, py, pz, wx, wy, wz)
-                        birth[r, n] = t
-                        n += 1
-                        created += 1
-                        process_counts[r, penning_slot[k]] += 1
-                        if ac:
-                            phase_counts[r, pb, PHASE_CREATED] += 1
-                            phase_process[r, pb, penning_slot[k]] += 1
-                # ---- end of Penning transfer
-            else:  # ACTION_IONIZATION
+            ux, uy, uz, child, wx, wy, wz, s0, s1, s2, s3 = scatter_electron(kind, k, ux, uy, uz, energy, action_args,
+                                                                            s0, s1, s2, s3)
+            if child != CHILD_NONE:
                 if n >= capacity:
                     status = 2
                     break
-                ux, uy, uz, wx, wy, wz, s0, s1, s2, s3 = ionization_velocities(
-                    ux, uy, uz, energy, loss_eV[k], sharing[k], w_eV[k], scatter[k], u, phi, s0, s1, s2, s3)
                 _store(x, y, z, vx, vy, vz, r, n, px, py, pz, wx, wy, wz)
                 birth[r, n] = t
                 n += 1
                 created += 1
+                if child == CHILD_PENNING:
+                    process_counts[r, penning_slot[k]] += 1
                 if ac:
                     phase_counts[r, pb, PHASE_CREATED] += 1
+                    if child == CHILD_PENNING:
+                        phase_process[r, pb, penning_slot[k]] += 1
             vperp2 = ux * ux + uy * uy
         if status != 0:
             break

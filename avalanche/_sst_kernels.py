@@ -38,24 +38,20 @@ from ._kernels import (
     ACTION_ELASTIC,
     ACTION_EXCITATION,
     ACTION_IONIZATION,
-    TWO_PI,
+    CHILD_NONE,
+    CHILD_PENNING,
     ENERGY_PER_SPEED2_eV,
-    elastic_velocity,
-    ionization_velocities,
     jit,
     jit_parallel,
     next_uniform,
-    penning_velocity,
+    scatter_electron,
     select_process,
-    speed_from_energy,
-    target_velocity,
-    turned_velocity,
 )
 
 # Columns of the per-replica integer counters of one pass.
 COUNT_EVENTS = 0          # trial events (real and null)
 COUNT_REAL = 1            # real collisions
-COUNT_CREATED = 2         # electrons created (ionization)
+COUNT_CREATED = 2         # electrons created (ionization, Penning transfer)
 COUNT_ATTACHED = 3        # electrons removed by attachment
 COUNT_ABSORBED = 4        # electrons absorbed by the electrode (returned to z = 0)
 COUNT_BANKED = 5          # electrons that reached the forward plane
@@ -157,6 +153,8 @@ def _pass_replica(r, z, vx, vy, vz, count, bank_vx, bank_vy, bank_vz, bank_count
     for c in range(N_COUNTS):
         counts[r, c] = 0
     inv_nu_star = 1.0 / nu_star
+    action_args = (loss_eV, electron_fraction, target_fraction, thermal_speed, scatter, sharing, w_eV,
+                   penning_probability, penning_energy_eV)
     top_energy = 0.0
     status = 0  # 0 fine, 1 above the energy grid, 2 store or bank full, 3 unknown action code
     n = count[r]
@@ -222,57 +220,25 @@ def _pass_replica(r, z, vx, vy, vz, count, bank_vx, bank_vy, bank_vz, bank_count
                 if 0 <= slab < n_slabs:
                     attachments[r, slab] += 1
                 break
-            u, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
-            u_phi, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
-            phi = TWO_PI * u_phi
-            if kind == ACTION_ELASTIC:
-                tx = 0.0
-                ty = 0.0
-                tz = 0.0
-                if thermal_speed[k] > 0.0:
-                    tx, ty, tz, s0, s1, s2, s3 = target_velocity(thermal_speed[k], s0, s1, s2, s3)
-                ux, uy, uz = elastic_velocity(ux, uy, uz, tx, ty, tz, electron_fraction[k], target_fraction[k],
-                                              scatter[k], energy, u, phi)
-            elif kind == ACTION_EXCITATION:
-                new_energy = energy - loss_eV[k]
-                ux, uy, uz = turned_velocity(ux, uy, uz, speed_from_energy(new_energy), scatter[k], new_energy, u,
-                                             phi)
-                # ---- Penning transfer, as in _kernels._advance_replica (avalanche.penning): with probability r_k
-                # an electron of energy ε_level − I_B starts here, isotropic; it counts as an ionization of the slab.
-                if penning_probability[k] > 0.0:
-                    a1, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
-                    if a1 < penning_probability[k]:
-                        if n >= capacity:
-                            status = 2
-                            break
-                        wx, wy, wz, s0, s1, s2, s3 = penning_velocity(penning_energy_eV[k], s0, s1, s2, s3)
-                        z[r, n] = pz
-                        vx[r, n] = wx
-                        vy[r, n] = wy
-                        vz[r, n] = wz
-                        n += 1
-                        counts[r, COUNT_CREATED] += 1
-                        process_counts[r, penning_slot[k]] += 1
-                        if 0 <= slab < n_slabs:
-                            ionizations[r, slab] += 1
-                # ---- end of Penning transfer
-            elif kind == ACTION_IONIZATION:
+            if kind != ACTION_ELASTIC and kind != ACTION_EXCITATION and kind != ACTION_IONIZATION:
+                status = 3
+                break
+            ux, uy, uz, child, wx, wy, wz, s0, s1, s2, s3 = scatter_electron(kind, k, ux, uy, uz, energy, action_args,
+                                                                            s0, s1, s2, s3)
+            if child != CHILD_NONE:
                 if n >= capacity:
                     status = 2
                     break
-                ux, uy, uz, wx, wy, wz, s0, s1, s2, s3 = ionization_velocities(
-                    ux, uy, uz, energy, loss_eV[k], sharing[k], w_eV[k], scatter[k], u, phi, s0, s1, s2, s3)
                 z[r, n] = pz
                 vx[r, n] = wx
                 vy[r, n] = wy
                 vz[r, n] = wz
                 n += 1
                 counts[r, COUNT_CREATED] += 1
+                if child == CHILD_PENNING:
+                    process_counts[r, penning_slot[k]] += 1
                 if 0 <= slab < n_slabs:
                     ionizations[r, slab] += 1
-            else:
-                status = 3
-                break
             vperp2 = ux * ux + uy * uy
         i += 1
     bank_count[r] = banked
