@@ -50,30 +50,25 @@ def point_arguments(p, precision: float, electrons_help: str) -> None:
     p.add_argument("--scattering", default=None, help="angular scattering: isotropic or screened-coulomb")
 
 
-def _swarm_configure(p) -> None:
-    point_arguments(p, 0.01, "electrons per ensemble")
-    p.add_argument("--frequency", type=float, default=None, metavar="HZ",
-                   help="AC drive frequency [Hz] (--en is then the amplitude); omit for DC")
-    p.add_argument("--waveform", default=None, metavar="FILE.csv",
-                   help="AC: periodic waveform as a two-column CSV (phase fraction or time_s, value), peak = --en")
-    p.add_argument("--phase-bins", type=int, default=None, help="AC: phase bins per period (32)")
-    p.add_argument("--dc-offset", type=float, default=None, metavar="TD", help="AC: DC part E_dc/N [Td] (0)")
+def output_arguments(p) -> None:
+    """``--json`` and ``--out`` of a one-point command (see :func:`report_point`)."""
     p.add_argument("--json", action="store_true", help="print the result as JSON (value and stderr per quantity)")
     p.add_argument("--out", default=None, metavar="FILE.h5", help="also write the result to an HDF5 file")
 
 
-@command("swarm", "simulate one swarm point: transport, rate and Townsend coefficients with errors",
-         configure=_swarm_configure)
-def _swarm(args) -> int:
-    from .engine import swarm
-
-    options = {k: v for k, v in (("max_events", args.max_events), ("electrons", args.electrons),
-                                 ("sharing", args.sharing), ("scattering", args.scattering),
-                                 ("frequency_Hz", args.frequency), ("waveform", args.waveform),
-                                 ("phase_bins", args.phase_bins), ("dc_offset_Td", args.dc_offset)) if v is not None}
+def point_options(args, **more) -> dict:
+    """Keyword arguments of the simulation from the shared point arguments and ``more`` (those not given left out,
+    so the function's defaults apply)."""
+    pairs = {"max_events": args.max_events, "electrons": args.electrons, "sharing": args.sharing,
+             "scattering": args.scattering, **more}
+    options = {k: v for k, v in pairs.items() if v is not None}
     if "max_events" in options:
         options["max_events"] = int(options["max_events"])
-    result = swarm(mixture_from_args(args), args.en, seed=args.seed, precision=args.precision, **options)
+    return options
+
+
+def report_point(args, result) -> None:
+    """Write ``result`` to ``--out`` if given, and print it as JSON (``--json``) or as its table."""
     if args.out:
         from .io import save_result
 
@@ -84,4 +79,26 @@ def _swarm(args) -> int:
         print(result.format_table())
         if args.out:
             print(f"result written to {args.out}")
+
+
+def _swarm_configure(p) -> None:
+    point_arguments(p, 0.01, "electrons per ensemble")
+    p.add_argument("--frequency", type=float, default=None, metavar="HZ",
+                   help="AC drive frequency [Hz] (--en is then the amplitude); omit for DC")
+    p.add_argument("--waveform", default=None, metavar="FILE.csv",
+                   help="AC: periodic waveform as a two-column CSV (phase fraction or time_s, value), peak = --en")
+    p.add_argument("--phase-bins", type=int, default=None, help="AC: phase bins per period (32)")
+    p.add_argument("--dc-offset", type=float, default=None, metavar="TD", help="AC: DC part E_dc/N [Td] (0)")
+    output_arguments(p)
+
+
+@command("swarm", "simulate one swarm point: transport, rate and Townsend coefficients with errors",
+         configure=_swarm_configure)
+def _swarm(args) -> int:
+    from .engine import swarm
+
+    options = point_options(args, frequency_Hz=args.frequency, waveform=args.waveform,
+                            phase_bins=args.phase_bins, dc_offset_Td=args.dc_offset)
+    result = swarm(mixture_from_args(args), args.en, seed=args.seed, precision=args.precision, **options)
+    report_point(args, result)
     return 0
