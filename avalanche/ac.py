@@ -3,7 +3,8 @@ periodic-steady-state test, phase-resolved tallies and estimators, and the regim
 
 The field is E(t) = E_dc + E_0 w(t), repeated with period T = 1/f (f = ``frequency_Hz``, ω = 2πf):
 
-* sine (default): w = sin ωt; the kernel integrates each free flight exactly (:func:`avalanche._kernels.field_flight`).
+* sine (default): w = sin ωt; the kernel integrates each free flight exactly, turning cos ωt, sin ωt from one
+  flight to the next (:func:`avalanche._kernels.sine_flight`).
 * tabulated waveform: w piecewise linear through the table's nodes, periodically closed, scaled so that its peak
   |w| is 1, i.e. the peak |E_0 w|/N is ``reduced_field_Td``; flights are integrated exactly with node impulses
   F, G and whole-period sums (:func:`avalanche._kernels.table_flight`).
@@ -20,15 +21,18 @@ stops at one, so the sampled time is an integer number of periods and every phas
 Estimators
 ----------
 Phase bins are B equal intervals of ωt mod 2π; in bin b the kernel sums the energy, v_z and a(t)·v_z at trial
-events, the exposure ∫ n dt spent in the bin (split exactly between bins), real collisions per process and the
-electrons created and removed. Per bin: ⟨ε⟩_b = Σε/n_b, W_b = Σv_z/n_b, k_b = C_b/(N_k ∫_b n dt) and the growth
-frequencies from the counts over the exposure. Cycle averages are time averages (mean over the equal bins):
-the effective ionization frequency per period, (1/T) ∫ ν_eff dt = (1/T) ln(n(t+T)/n(t)), is exactly the mean of
-the bins' ν_eff, whatever the population's weight. Errors are leave-one-replica-out jackknife errors
-(:mod:`avalanche.estimators`).
+events, real collisions per process and the electrons created and removed; the exposure ∫ n dt spent in the bin
+is the bin's trial events over ν* (unbiased: trial events are a Poisson process of rate ν* in time, Skullerud
+1968; see :func:`avalanche._kernels.advance_chunk`). Per bin: ⟨ε⟩_b = Σε/n_b, W_b = Σv_z/n_b,
+k_b = C_b/(N_k ∫_b n dt) and the growth frequencies from the counts over the exposure. Cycle averages are time
+averages (mean over the equal bins): the effective ionization frequency per period,
+(1/T) ∫ ν_eff dt = (1/T) ln(n(t+T)/n(t)), is exactly the mean of the bins' ν_eff, whatever the population's
+weight. Errors are leave-one-replica-out jackknife errors (:mod:`avalanche.estimators`).
 
 References
 ----------
+Skullerud H R (1968) J. Phys. D 1 1567, doi:10.1088/0022-3727/1/11/423 (null-collision method: trial events at a
+constant rate ν*).
 Raizer Y P (1991) Gas Discharge Physics, Springer, ch. 2 and 14 (electrons in HF fields, the effective field
 E_eff = E_rms ν_m/√(ν_m² + ω²), the quasi-static and effective-field limits; from memory).
 Lieberman M A & Lichtenberg A J (2005) Principles of Plasma Discharges and Materials Processing, 2nd ed., Wiley,

@@ -186,6 +186,45 @@ def test_ac_flight_integrates_the_field():
     assert K.field_flight(t, tau, a_dc, a_ac, 0.0, phase)[0] == pytest.approx((a_dc + a_ac * math.sin(phase)) * tau)
 
 
+@pytest.mark.parametrize("delta", [1e-6, 0.01, 0.049, K.SINE_SERIES_LIMIT, 0.051, 0.7, 4.0])
+@pytest.mark.parametrize("theta0", [0.0, 0.5 * math.pi, 2.1, 1234.5])
+def test_sine_flight_integrates_the_field(delta, theta0):
+    # Δv = a_dc τ + a_ac τ ∫₀¹ sin(θ₀ + δu) du and Δz = a_dc τ²/2 + a_ac τ² ∫₀¹ (1 − u) sin(θ₀ + δu) du (the
+    # double integral by parts), δ = ωτ, on both sides of the series limit. Reference: 24-point Gauss–Legendre
+    # quadrature, exact to rounding for these entire integrands (error ~ δ⁴⁸/48! · 2⁻⁴⁸; Abramowitz & Stegun
+    # 1964, eq. 25.4.30). θ₀ = 0 and π/2 isolate the terms 1 − cos δ, δ − sin δ and sin δ of the closed form.
+    # Tolerance 1e-12 relative: the closed form's rounding is ≤ 3e-13 relative (q = δ − sin δ just above the
+    # series limit), the reference's ~1e-15.
+    a_dc, a_ac, omega = 0.3, 2.0, 7.0
+    tau = delta / omega
+    nodes, weights = np.polynomial.legendre.leggauss(24)
+    u, w = 0.5 * (nodes + 1.0), 0.5 * weights
+    mean_sin = float(w @ np.sin(theta0 + delta * u))
+    ramp_sin = float(w @ ((1.0 - u) * np.sin(theta0 + delta * u)))
+    dv, dz, cos1, sin1 = K.sine_flight(tau, a_dc, a_ac, omega, math.cos(theta0), math.sin(theta0))
+    assert dv == pytest.approx(a_dc * tau + a_ac * tau * mean_sin, rel=1e-12, abs=0)
+    assert dz == pytest.approx(0.5 * a_dc * tau * tau + a_ac * tau * tau * ramp_sin, rel=1e-12, abs=0)
+    # the AC part alone (a_dc = 0), where the series carries the whole result
+    dv, dz, _, _ = K.sine_flight(tau, 0.0, a_ac, omega, math.cos(theta0), math.sin(theta0))
+    assert dv == pytest.approx(a_ac * tau * mean_sin, rel=1e-12, abs=0)
+    assert dz == pytest.approx(a_ac * tau * tau * ramp_sin, rel=1e-12, abs=0)
+    # the phase at the flight's end (cos, sin of θ₀ + δ: absolute rounding of θ₀ + δ ≤ 2.3e-13 at θ₀ ~ 1e3)
+    assert (cos1, sin1) == pytest.approx((math.cos(theta0 + delta), math.sin(theta0 + delta)), rel=0, abs=1e-12)
+
+
+def test_sine_flight_phase_does_not_drift():
+    # 10⁵ short flights carried from one to the next (as the kernel does for an electron) keep cos θ, sin θ of
+    # the elapsed phase θ = φ + Σ ωτ (summed exactly with math.fsum): the rotation is exact to rounding, so its
+    # error grows like √n ulp, ~1e-14 here; tolerance 1e-12 (the rounding of θ ~ 1e3 itself is 1.1e-13).
+    omega, phase = 2 * math.pi * 5e9, 0.3
+    taus = np.random.default_rng(5).exponential(3e-13, 100_000)
+    cos_t, sin_t = math.cos(phase), math.sin(phase)
+    for tau in taus:
+        _, _, cos_t, sin_t = K.sine_flight(tau, 0.0, 1.0, omega, cos_t, sin_t)
+    theta = phase + math.fsum(omega * taus)
+    assert (cos_t, sin_t) == pytest.approx((math.cos(theta), math.sin(theta)), rel=0, abs=1e-12)
+
+
 @pytest.mark.parametrize("gas, params", [("reid-ramp", {}), ("lucas-saelee", {"F": 0.5}),
                                          ("ness-robson", {"p": 0.5})])
 def test_trial_frequency_bounds_the_collision_frequency(gas, params):
