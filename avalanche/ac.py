@@ -4,10 +4,10 @@ periodic-steady-state test, phase-resolved tallies and estimators, and the regim
 The field is E(t) = E_dc + E_0 w(t), repeated with period T = 1/f (f = ``frequency_Hz``, ω = 2πf):
 
 * sine (default): w = sin ωt; the kernel integrates each free flight exactly, turning cos ωt, sin ωt from one
-  flight to the next (:func:`avalanche._kernels.sine_flight`).
+  flight to the next (:func:`avalanche._flight_kernels.sine_flight`).
 * tabulated waveform: w piecewise linear through the table's nodes, periodically closed, scaled so that its peak
   |w| is 1, i.e. the peak |E_0 w|/N is ``reduced_field_Td``; flights are integrated exactly with node impulses
-  F, G and whole-period sums (:func:`avalanche._kernels.table_flight`).
+  F, G and whole-period sums (:func:`avalanche._flight_kernels.table_flight`).
 
 Scheduling and sampling
 -----------------------
