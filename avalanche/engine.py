@@ -67,12 +67,14 @@ from .mixture import Mixture
 from .results import ESTIMATE_UNITS, SwarmResult
 from .swarm_tables import (  # noqa: F401  (re-exported: the engine's tables are part of its interface)
     ACTIONS,
+    EXTRAPOLATION_WARNING,
     SCATTERING_MODELS,
     SHARING_RULES,
     TRIAL_MARGIN,
     ENERGY_FLOOR_eV,
     EnergyGrid,
     ProcessTable,
+    extrapolation_notice,
     momentum_transfer_fraction,
 )
 from .tallies import SwarmTallies
@@ -81,8 +83,6 @@ IONIZING_KINDS = ("ionization", "penning")
 """Process kinds that create electrons (a "penning" row is the pseudo-process counting Penning transfers)."""
 RELAXATION_MIN_CHUNKS = 8
 RELAXATION_MIN_ENERGY_TIMES = 3.0
-EXTRAPOLATION_WARNING = 0.01
-"""A PhysicsWarning is given when more than this fraction of the real collisions fall beyond their tables."""
 GROWTH_PER_CHUNK = 0.3
 """A chunk is at most GROWTH_PER_CHUNK / |ν_eff| long, so the population changes by < ~35 % per chunk."""
 
@@ -580,14 +580,10 @@ def _result(run: _Run, reduced_field_Td: float, tallies: SwarmTallies, series: _
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", RuntimeWarning)
         estimates = swarm_estimates(tallies, ctx)
-    beyond = tallies["extrapolated_counts"].sum(axis=0)
-    real = max(int(tallies["process_counts"].sum()), 1)
-    if beyond.sum() > EXTRAPOLATION_WARNING * real:
-        worst = sorted(range(beyond.size), key=lambda k: -beyond[k])[:3]
-        listing = ", ".join(f"'{run.table.keys[k]}' ({100 * beyond[k] / real:.2g} %)" for k in worst if beyond[k])
-        warnings.warn(f"E/N = {reduced_field_Td:g} Td: {100 * beyond.sum() / real:.2g} % of the collisions happened "
-                      f"beyond the end of their cross-section table, where it is extrapolated: {listing}; extend the "
-                      "tables to higher energy", PhysicsWarning, stacklevel=3)
+    notice = extrapolation_notice(f"E/N = {reduced_field_Td:g} Td", tallies["extrapolated_counts"],
+                                  tallies["process_counts"], run.table.keys)
+    if notice:
+        warnings.warn(notice, PhysicsWarning, stacklevel=3)
     if tallies["mature_events"].sum() == 0:
         warnings.warn(f"E/N = {reduced_field_Td:g} Td: no chunk was sampled for position moments (bulk drift, "
                       "diffusion, Townsend coefficients are NaN); raise max_events", PhysicsWarning, stacklevel=3)

@@ -61,7 +61,7 @@ from .errors import AvalancheError, ConfigError, PhysicsWarning
 from .mixture import Mixture
 from .results import _json_float, _plain
 from .sst_estimators import TALLY_FIELDS, townsend_estimates
-from .swarm_tables import EnergyGrid, ProcessTable
+from .swarm_tables import EnergyGrid, ProcessTable, extrapolation_notice
 
 TOWNSEND_ESTIMATES: tuple[tuple[str, str, str], ...] = (
     ("alpha_N", "m2", "SST ionization coefficient alpha/N (ionizations per flux path)"),
@@ -80,7 +80,6 @@ PROFILE_UNITS = {"z_m": "m", "slab_center_m": "m", "flux": "1", "mean_energy_eV"
 INITIAL_DISTRIBUTIONS = ("maxwellian", "beam")
 GROWTH_PER_PASS = 0.25
 """Target growth (e-folds) of the flux between bank planes."""
-EXTRAPOLATION_WARNING = 0.01
 
 
 @dataclass(frozen=True)
@@ -677,10 +676,6 @@ def _warn(est, layout: Layout, process_counts, extrapolated, keys, reduced_field
         warnings.warn(f"{where}: the flux mean energy relaxed only at z = {layout.z_m[est.region.first]:.3g} m of "
                       f"{layout.z_m[-1]:.3g} m, so the equilibrium region is short; raise distance_m",
                       PhysicsWarning, stacklevel=3)
-    beyond = extrapolated.sum(axis=0)
-    real = max(int(process_counts.sum()), 1)
-    if beyond.sum() > EXTRAPOLATION_WARNING * real:
-        worst = ", ".join(f"'{keys[k]}'" for k in np.argsort(-beyond)[:3] if beyond[k])
-        warnings.warn(f"{where}: {100 * beyond.sum() / real:.2g} % of the collisions happened beyond the end of their "
-                      f"cross-section table ({worst}); extend the tables to higher energy", PhysicsWarning,
-                      stacklevel=3)
+    notice = extrapolation_notice(where, extrapolated, process_counts, keys)
+    if notice:
+        warnings.warn(notice, PhysicsWarning, stacklevel=3)

@@ -29,6 +29,25 @@ ENERGY_FLOOR_eV = 1e-9
 """Cross sections are evaluated at ε ≥ this, so σ ∝ ε^-1/2 gives a finite σ v."""
 TRIAL_MARGIN = 1e-3
 """ν* = (1 + TRIAL_MARGIN) max ν(ε) over the nodes: a bound also between nodes for smooth data."""
+EXTRAPOLATION_WARNING = 0.01
+"""A PhysicsWarning is given when more than this fraction of the real collisions fall beyond their tables."""
+
+
+def extrapolation_notice(where: str, extrapolated, process_counts, keys) -> str | None:
+    """The PhysicsWarning text when more than EXTRAPOLATION_WARNING of the real collisions used extrapolated
+    cross sections (beyond the last point of their table), naming the three processes with most; else None.
+
+    ``extrapolated`` and ``process_counts`` are per-replica counts (R, P) of the kernels, ``keys`` the process
+    names, ``where`` the start of the message (the run and its E/N).
+    """
+    beyond = np.asarray(extrapolated).sum(axis=0)
+    real = max(int(np.asarray(process_counts).sum()), 1)
+    if beyond.sum() <= EXTRAPOLATION_WARNING * real:
+        return None
+    worst = sorted(range(beyond.size), key=lambda k: -beyond[k])[:3]
+    listing = ", ".join(f"'{keys[k]}' ({100 * beyond[k] / real:.2g} %)" for k in worst if beyond[k])
+    return (f"{where}: {100 * beyond.sum() / real:.2g} % of the collisions happened beyond the end of their "
+            f"cross-section table, where it is extrapolated: {listing}; extend the tables to higher energy")
 
 # ------------------------------------------------------------------------------------------- process tables
 

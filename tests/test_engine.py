@@ -227,3 +227,17 @@ def test_collisions_beyond_the_tables_are_warned_about():
     with pytest.warns(PhysicsWarning, match="beyond the end of their cross-section table"):
         result = swarm(mixture, 30.0, electrons=256, max_events=3e6)
     assert result.extrapolated_fraction > 0.5
+
+
+def test_extrapolation_notice_counts_the_share_beyond_the_tables():
+    # Arithmetic of the shared notice (time-of-flight and steady-state Townsend runs): 2 replicas, 3 processes;
+    # 30 of 1000 real collisions (3 %) beyond their tables is above the 1 % bar, 5 of 1000 is not.
+    from avalanche.swarm_tables import EXTRAPOLATION_WARNING, extrapolation_notice
+
+    counts = np.array([[400, 90, 10], [400, 90, 10]])
+    beyond = np.array([[0, 5, 10], [0, 5, 10]])
+    notice = extrapolation_notice("E/N = 50 Td", beyond, counts, ["elastic", "vib", "ion"])
+    assert EXTRAPOLATION_WARNING == 0.01
+    assert notice.startswith("E/N = 50 Td: 3 % of the collisions") and "'ion' (2 %), 'vib' (1 %)" in notice
+    assert "'elastic'" not in notice
+    assert extrapolation_notice("x", np.array([[0, 5, 0]]), np.array([[900, 90, 10]]), ["a", "b", "c"]) is None
