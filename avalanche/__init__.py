@@ -5,28 +5,28 @@ Public entry points: :class:`Mixture`, :func:`get_set`, :func:`model_gas`, :func
 """
 
 from ._version import __version__
-from .crosssections import CrossSectionSet, Process, load_set, make_set, process_from_table, save_set
 from .errors import AvalancheError, ConfigError, CrossSectionError, PhysicsWarning
-from .library import available_gases, get_set, model_gas, named_mixture
-from .mixture import Mixture
+from .gas.crosssections import CrossSectionSet, Process, load_set, make_set, process_from_table, save_set
+from .gas.library import available_gases, get_set, model_gas, named_mixture
+from .gas.mixture import Mixture
 
 
 def __getattr__(name):
     # heavy modules (numba kernels, h5py) load on first use
     if name == "swarm":
-        from .engine import swarm
+        from .engine.time_of_flight import swarm
 
         return swarm
     if name == "townsend":
-        from .sst import townsend
+        from .engine.townsend import townsend
 
         return townsend
     if name == "open_results":
-        from .results_file import open_results
+        from .store.sweep_file import open_results
 
         return open_results
     if name == "run_sweep":
-        from .sweep import run_sweep
+        from .sweep.execution import run_sweep
 
         return run_sweep
     raise AttributeError(f"module 'avalanche' has no attribute '{name}'")

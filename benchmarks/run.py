@@ -157,10 +157,10 @@ def run_c_loop(exe: Path, **settings: float) -> dict[str, float | tuple[float, f
 # ------------------------------------------------------------------------------------------------ the engine
 
 def engine_swarm() -> Callable:
-    """``avalanche.engine.swarm``, or :class:`NotAvailable` when the engine module does not exist yet."""
-    if importlib.util.find_spec("avalanche.engine") is None:
-        raise NotAvailable("avalanche.engine")
-    from avalanche.engine import swarm
+    """``avalanche.engine.time_of_flight.swarm``, or :class:`NotAvailable` when the engine module does not exist yet."""
+    if importlib.util.find_spec("avalanche.engine.time_of_flight") is None:
+        raise NotAvailable("avalanche.engine.time_of_flight")
+    from avalanche.engine.time_of_flight import swarm
 
     return swarm
 
@@ -318,7 +318,7 @@ def figure_threads(state: dict, budget: Budget) -> list[Row]:
 MEMORY_PROBE = """
 import json, resource, sys
 from avalanche import Mixture
-from avalanche.engine import swarm
+from avalanche.engine.time_of_flight import swarm
 electrons = int(sys.argv[1])
 mixture = Mixture("reid-ramp", temperature_K=0.0, number_density_m3={density!r})
 result = swarm(mixture, {field!r}, seed=1, precision={precision!r}, electrons=electrons,
@@ -394,9 +394,9 @@ def figure_townsend(state: dict, budget: Budget) -> list[Row]:
     """Steady-state Townsend events per core-second, argon at 300 Td, one thread, and the ratio to time-of-flight.
 
     A first short run (not timed) fixes the distances from its pilot, so the timed run has no pilot."""
-    if importlib.util.find_spec("avalanche.sst") is None:
+    if importlib.util.find_spec("avalanche.engine.townsend") is None:
         raise NotAvailable("avalanche.townsend (steady-state Townsend mode)")
-    from avalanche.sst import townsend
+    from avalanche.engine.townsend import townsend
 
     mixture = argon_mixture()
     log("steady-state Townsend: argon, 300 Td ...")
@@ -443,7 +443,7 @@ reduced_field_Td = {{ start = 50, stop = 400, count = 8, spacing = "log" }}
 precision = 1e-9                      # never reached: every point spends its event budget
 max_events = {max_events}
 """
-CLI = "import sys; from avalanche.cli import main; sys.exit(main(sys.argv[1:]))"
+CLI = "import sys; from avalanche.cli.main import main; sys.exit(main(sys.argv[1:]))"
 
 
 def _source_environment() -> dict:
@@ -476,7 +476,7 @@ def _sweep_file(state: dict, folder: Path) -> Path:
 
 
 def _sweep_available(state: dict, budget: Budget) -> None:
-    for module in ("avalanche.sweep", "avalanche.io"):
+    for module in ("avalanche.sweep.execution", "avalanche.store.point"):
         if importlib.util.find_spec(module) is None:
             raise NotAvailable(f"batch sweeps ({module})")
     if _command("sweep", "--help").returncode != 0:

@@ -61,3 +61,40 @@ def write_set(tmp_path):
         return path
 
     return write
+
+
+OUTPUTS_SWEEP = '''
+[sweep]
+name = "outputs-test"
+seed = 11
+
+[gas]
+mixtures = ["Ar", "Ar:0.5,N2:0.5"]
+temperature_K = 300
+
+[grid]
+reduced_field_Td = [60, 120, 240, 480]
+
+[engine]
+precision = 0.05
+max_events = 2e6
+electrons = 1000
+'''
+"""Argon and an argon-nitrogen mixture at four fields, tiny budgets (a fraction of a second per point)."""
+
+
+def make_results(folder):
+    """Run the tiny sweep into ``folder/outputs.h5`` and return its path."""
+    from avalanche.sweep.execution import run_sweep
+
+    runfile = folder / "outputs.toml"
+    runfile.write_text(OUTPUTS_SWEEP)
+    report = run_sweep(runfile, workers=1, out=folder / "outputs.h5", quiet=True)
+    assert report.complete
+    return report.path
+
+
+@pytest.fixture(scope="session")
+def outputs_results(tmp_path_factory):
+    """A finished results file with two mixtures (shared by the output, table, plot and emission tests)."""
+    return make_results(tmp_path_factory.mktemp("outputs"))

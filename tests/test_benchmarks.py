@@ -81,7 +81,7 @@ def test_c_loop_agrees_with_the_engine(c_reid):
     try:
         bench.engine_swarm()
     except bench.NotAvailable:
-        pytest.skip("avalanche.engine does not exist yet")
+        pytest.skip("avalanche.engine.time_of_flight does not exist yet")
     # 2048 electrons: few enough that 2e7 events pass the engine's relaxation test.
     result = bench.engine_swarm()(bench.reid_mixture(), 12.0, seed=5, precision=bench.PRECISION_FLOOR,
                                   electrons=2048, max_events=int(C_EVENTS))

@@ -21,7 +21,7 @@ def test_installed_copy_finds_the_shipped_library(tmp_path):
         capture_output=True, text=True, cwd=tmp_path)
     assert build.returncode == 0, build.stderr
     env = dict(os.environ, PYTHONPATH=str(target))
-    code = ("import avalanche.library as L; from pathlib import Path; d = L.shipped_dir(); "
+    code = ("import avalanche.gas.library as L; from pathlib import Path; d = L.shipped_dir(); "
             "print(d); print(sorted(p.name for p in d.glob('*.toml')))")
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, env=env, cwd=tmp_path)
     assert out.returncode == 0, out.stderr

@@ -1,0 +1,591 @@
+"""Swarm parameters against E/N as plain arrays, and fluid-model tables written from them.
+
+:class:`SwarmTable` is the common input of the output layer (tables, plots, breakdown, emission): a sorted grid of
+reduced fields E/N [Td] and, for every quantity, its values and standard errors in SI units (electron energies in
+eV), as the engine reports them. Build it from plain arrays, from a sweep's results file
+(:meth:`SwarmTable.from_results`) or from engine results (:meth:`SwarmTable.from_swarm_results`).
+
+:class:`FluidTable` is what a fluid or hybrid plasma model reads: one column per coefficient and one per standard
+error, sorted and strictly increasing in the chosen coordinate (E/N or mean energy), with a line of units. It is
+written as CSV (:meth:`FluidTable.to_csv`) or as whitespace-separated text (:meth:`FluidTable.to_text`), read back
+by :func:`read_table`, and evaluated between its points by log-log interpolation (:meth:`FluidTable.interpolate`).
+"""
+
+from __future__ import annotations
+
+import csv
+import io
+import math
+import warnings
+from collections.abc import Sequence
+from dataclasses import dataclass, field
+from pathlib import Path
+
+import numpy as np
+
+from .._version import __version__
+from ..errors import ConfigError, PhysicsWarning
+from ..gas.crosssections import _did_you_mean as did_you_mean
+from .coefficients import CoefficientTable, loglog_interpolate, sorted_reduced_fields
+
+__all__ = [
+    "QUANTITY_UNITS", "RATE_PREFIX", "COORDINATES", "quantity_unit", "rate_quantity", "SwarmTable", "FluidTable",
+    "fluid_table", "read_table",
+]
+
+QUANTITY_UNITS: dict[str, str] = {
+    "reduced_field_Td": "Td",
+    "mean_energy_eV": "eV",
+    "characteristic_energy_eV": "eV",
+    "drift_velocity_flux": "m/s",
+    "drift_velocity_bulk": "m/s",
+    "mobility_N": "1/(V m s)",
+    "long_diffusion_N_flux": "1/(m s)",
+    "long_diffusion_N_bulk": "1/(m s)",
+    "trans_diffusion_N_flux": "1/(m s)",
+    "trans_diffusion_N_bulk": "1/(m s)",
+    "alpha_N": "m2",
+    "eta_N": "m2",
+    "effective_alpha_N": "m2",
+    "alpha_N_simple": "m2",
+    "eta_N_simple": "m2",
+    "ionization_rate_coefficient": "m3/s",
+    "attachment_rate_coefficient": "m3/s",
+    "excitation_rate_coefficient": "m3/s",
+    "penning_ionization_rate_coefficient": "m3/s",
+    "penning_fraction": "1",
+    "effective_ionization_frequency": "1/s",
+    "collision_frequency": "1/s",
+}
+"""Units of the swarm quantities, by the engine's names (SI, electron energy in eV; plain ASCII as in files)."""
+
+RATE_PREFIX = "rate_coefficient:"
+"""Prefix of per-process rate coefficients [m³/s]: ``rate_coefficient:<key>`` with the engine's process key
+(the process label, or ``<species>:<label>`` in a mixture)."""
+
+COORDINATES = {"reduced-field": "reduced_field_Td", "mean-energy": "mean_energy_eV"}
+"""Table coordinates (command-line spelling → column name)."""
+
+_TABLE_FORMAT = 1
+
+
+def rate_quantity(key: str) -> str:
+    """Quantity name of the rate coefficient of process ``key``."""
+    return f"{RATE_PREFIX}{key}"
+
+
+def quantity_unit(name: str) -> str:
+    """Unit of quantity ``name`` (``''`` when unknown), e.g. ``'m2'`` for ``alpha_N``."""
+    if name.startswith(RATE_PREFIX):
+        return "m3/s"
+    return QUANTITY_UNITS.get(name, "")
+
+
+def _array(name: str, value, owner: str, size: int | None = None) -> np.ndarray:
+    try:
+        array = np.array(value, dtype=float)
+    except (TypeError, ValueError):
+        raise ConfigError(f"{owner}: {name} must be an array of numbers, got {value!r}") from None
+    if array.ndim != 1 or (size is not None and array.size != size):
+        expected = f"{size} values (one per reduced field)" if size is not None else "a 1-D array"
+        raise ConfigError(f"{owner}: {name} has shape {array.shape}; give {expected}")
+    return array
+
+
+@dataclass
+class SwarmTable:
+    """Swarm quantities with standard errors on a grid of reduced fields.
+
+    Parameters
+    ----------
+    reduced_field_Td : array_like
+        E/N [Td] (> 0, distinct); the table is sorted by it on construction.
+    quantities : mapping
+        Quantity name → ``(values, stderr)``, one value per field, in the units of :func:`quantity_unit`
+        (SI, energies in eV). Per-process rate coefficients are named ``rate_coefficient:<key>``.
+    gas_label : str
+        The mixture, e.g. ``"Ar"`` or ``"Ne:0.99,Ar:0.01"``.
+    temperature_K, number_density_m3 : float, optional
+        Gas temperature [K] and number density [m⁻³] of the runs.
+    composition : mapping, optional
+        Species → mole fraction (used by the emission estimate).
+    source : str
+        Where the data came from (a file name, or ``"computed"``), quoted in outputs.
+    units : mapping, optional
+        Units overriding :func:`quantity_unit` (e.g. the ``units`` attributes of a results file).
+    eedf : mapping, optional
+        E/N [Td] → ``(energy_edges_eV, values, stderr)`` of the energy distribution [eV^-3/2].
+    parameters : mapping, optional
+        Model-gas parameters per species (as in a run file), to rebuild the mixture.
+    checksums : mapping, optional
+        Species → cross-section checksum of the runs.
+    point_index : array_like, optional
+        Index of each point in its results file (for reading full results later).
+    notes : list of str
+        Remarks for the reader (points left out, ...), printed by the command line.
+
+    Raises
+    ------
+    ConfigError
+        For E/N ≤ 0, repeated E/N, arrays of the wrong length, or non-finite or negative standard errors.
+    """
+
+    reduced_field_Td: np.ndarray
+    quantities: dict[str, tuple[np.ndarray, np.ndarray]]
+    gas_label: str = ""
+    temperature_K: float | None = None
+    number_density_m3: float | None = None
+    composition: dict[str, float] | None = None
+    source: str = ""
+    units: dict[str, str] = field(default_factory=dict)
+    eedf: dict[float, tuple[np.ndarray, np.ndarray, np.ndarray]] = field(default_factory=dict)
+    parameters: dict = field(default_factory=dict)
+    checksums: dict = field(default_factory=dict)
+    point_index: np.ndarray | None = None
+    notes: list[str] = field(default_factory=list)
+
+    def __post_init__(self):
+        owner = f"SwarmTable({self.source or self.gas_label or 'data'})"
+        fields = _array("reduced_field_Td", self.reduced_field_Td, owner)
+        if fields.size == 0:
+            raise ConfigError(f"{owner}: no reduced fields; give at least one point")
+        bad = ~np.isfinite(fields)
+        if np.any(bad):
+            raise ConfigError(f"{owner}: reduced_field_Td={float(fields[bad][0])!r} must be positive and finite")
+        fields, order = sorted_reduced_fields(
+            fields, owner, repeat_hint="select one frequency/composition, or average repeats")
+        quantities = {}
+        for name, pair in dict(self.quantities).items():
+            try:
+                values, errors = pair
+            except (TypeError, ValueError):
+                raise ConfigError(f"{owner}: quantity {name!r} must be a pair (values, stderr)") from None
+            values = _array(f"{name} values", values, owner, fields.size)[order]
+            errors = _array(f"{name} stderr", errors, owner, fields.size)[order]
+            if np.any(errors[np.isfinite(errors)] < 0.0):
+                raise ConfigError(f"{owner}: {name} has a negative standard error; errors must be ≥ 0")
+            quantities[str(name)] = (values, errors)
+        if self.point_index is not None:
+            self.point_index = np.asarray(self.point_index, dtype=np.int64).reshape(-1)[order]
+        self.reduced_field_Td = fields
+        self.quantities = quantities
+        self.units = {str(k): str(v) for k, v in dict(self.units).items()}
+        self.eedf = {float(k): v for k, v in dict(self.eedf).items()}
+
+    @property
+    def names(self) -> list[str]:
+        """Quantity names, in insertion order."""
+        return list(self.quantities)
+
+    def unit(self, name: str) -> str:
+        """Unit of quantity ``name`` (file attribute first, then :func:`quantity_unit`)."""
+        return self.units.get(name) or quantity_unit(name)
+
+    def get(self, name: str) -> tuple[np.ndarray, np.ndarray]:
+        """``(values, stderr)`` of ``name``; a :class:`ConfigError` with a did-you-mean if it is absent."""
+        if name not in self.quantities:
+            raise ConfigError(f"{self.source or 'swarm table'}: no quantity {name!r}{did_you_mean(name, self.names)};"
+                              f" available: {', '.join(self.names)}")
+        return self.quantities[name]
+
+    @property
+    def rate_keys(self) -> list[str]:
+        """Process keys of the per-process rate coefficients present."""
+        return [name[len(RATE_PREFIX):] for name in self.quantities if name.startswith(RATE_PREFIX)]
+
+    def coefficient_table(self, alpha: str = "alpha_N", eta: str = "eta_N",
+                          temperature_K: float | None = None) -> CoefficientTable:
+        """α/N and η/N as a :class:`~avalanche.analysis.coefficients.CoefficientTable` for the breakdown functions.
+
+        Parameters
+        ----------
+        alpha, eta : str
+            Quantities to use: ``alpha_N``/``eta_N`` (the engine's diffusion-corrected values, default) or
+            ``alpha_N_simple``/``eta_N_simple`` (ν/(N W)).
+        temperature_K : float, optional
+            Gas temperature [K] relating p to N; default the runs' (300 K if unknown).
+
+        Points where α/N or η/N is not finite (failed points, or a diffusion correction without a real solution)
+        are left out (see :meth:`undefined_fields_Td`); η/N is zero when the table has none (a gas without
+        attachment).
+
+        Raises
+        ------
+        ConfigError
+            If α/N is missing, or fewer than two points remain.
+        """
+        alpha_values, alpha_err = self.get(alpha)
+        eta_values, eta_err = self.quantities.get(eta, (np.zeros_like(alpha_values), np.zeros_like(alpha_values)))
+        keep = np.isfinite(alpha_values) & np.isfinite(eta_values)
+        if np.count_nonzero(keep) < 2:
+            raise ConfigError(f"{self.source or 'swarm table'}: {alpha} is finite at {np.count_nonzero(keep)} "
+                              "reduced field(s); a breakdown curve needs at least two — add points to the sweep")
+        return CoefficientTable(self.reduced_field_Td[keep], np.maximum(alpha_values[keep], 0.0),
+                                np.maximum(eta_values[keep], 0.0), np.nan_to_num(alpha_err[keep]),
+                                np.nan_to_num(eta_err[keep]), gas_label=self.gas_label,
+                                temperature_K=temperature_K or self.temperature_K or 300.0)
+
+    def undefined_fields_Td(self, *names: str) -> np.ndarray:
+        """Reduced fields [Td] where any of the quantities ``names`` present in the table is not finite."""
+        bad = np.zeros(self.reduced_field_Td.size, dtype=bool)
+        for name in names:
+            if name in self.quantities:
+                bad |= ~np.isfinite(self.quantities[name][0])
+        return self.reduced_field_Td[bad]
+
+    def merged(self, other: SwarmTable) -> SwarmTable:
+        """This table with the points of ``other`` added (quantities both have; metadata of this one)."""
+        names = [name for name in self.quantities if name in other.quantities]
+        quantities = {name: tuple(np.concatenate((a, b)) for a, b in zip(self.quantities[name],
+                                                                         other.quantities[name], strict=True))
+                      for name in names}
+        return SwarmTable(np.concatenate((self.reduced_field_Td, other.reduced_field_Td)), quantities,
+                          gas_label=self.gas_label, temperature_K=self.temperature_K,
+                          number_density_m3=self.number_density_m3, composition=self.composition,
+                          source=self.source, units=self.units, parameters=self.parameters,
+                          checksums=self.checksums)
+
+    def build_mixture(self):
+        """The :class:`~avalanche.gas.mixture.Mixture` of the runs (composition, model-gas parameters, T, N).
+
+        Warns with a :class:`~avalanche.errors.PhysicsWarning` when a species' cross sections now differ from
+        the ones the runs used (their checksums).
+        """
+        from ..gas.spec import MixtureSpec
+
+        if not self.composition:
+            raise ConfigError(f"{self.source or 'swarm table'}: the composition of the gas is unknown")
+        mixture = MixtureSpec(dict(self.composition), dict(self.parameters)).build(
+            self.temperature_K if self.temperature_K is not None else 300.0,
+            number_density_m3=self.number_density_m3)
+        changed = [name for name, checksum in mixture.checksums().items()
+                   if self.checksums.get(name) not in (None, checksum)]
+        if changed:
+            warnings.warn(f"{self.source}: the cross sections of {', '.join(changed)} changed since the runs (checksum "
+                          "differs); the metadata read now may not match the computed rates", PhysicsWarning,
+                          stacklevel=2)
+        return mixture
+
+    @classmethod
+    def from_swarm_results(cls, results: Sequence, source: str = "computed") -> SwarmTable:
+        """Table of engine results (:class:`avalanche.engine.results.SwarmResult`), one per reduced field.
+
+        Every estimate becomes a quantity, each process rate coefficient ``rate_coefficient:<key>``, and the
+        EEDFs are kept. The gas, temperature and density are those of the first result.
+        """
+        results = list(results)
+        if not results:
+            raise ConfigError("SwarmTable.from_swarm_results: no results given")
+        names = list(dict.fromkeys(name for r in results for name in r.estimates))
+        names += list(dict.fromkeys(rate_quantity(key) for r in results
+                                    for key in getattr(r, "rate_coefficients", {})))
+
+        def estimate(result, name):
+            if name.startswith(RATE_PREFIX):
+                return getattr(result, "rate_coefficients", {}).get(name[len(RATE_PREFIX):])
+            return result.estimates.get(name)
+
+        quantities = {}
+        for name in names:
+            pairs = [estimate(r, name) for r in results]
+            quantities[name] = (np.array([math.nan if e is None else e.value for e in pairs]),
+                                np.array([math.nan if e is None else e.stderr for e in pairs]))
+        described = results[0].inputs.get("mixture", {})
+        eedf = {float(r.reduced_field_Td): (r.eedf.energy_edges_eV, r.eedf.value, r.eedf.stderr) for r in results
+                if getattr(r, "eedf", None) is not None}
+        return cls(np.array([r.reduced_field_Td for r in results], dtype=float), quantities,
+                   gas_label=str(results[0].inputs.get("label", "")), temperature_K=described.get("temperature_K"),
+                   number_density_m3=described.get("number_density_m3"),
+                   composition=dict(described.get("composition", {})) or None, source=source, eedf=eedf,
+                   checksums=dict(described.get("checksums", {})))
+
+    @classmethod
+    def from_results(cls, results, mixture: str | int | None = None, frequency_Hz: float | None = None
+                     ) -> SwarmTable:
+        """Table of one mixture and frequency of a sweep's results file.
+
+        Parameters
+        ----------
+        results : str, Path or avalanche.store.sweep_file.SweepResults
+            The results file (opened with :func:`avalanche.store.sweep_file.open_results`) or the opened results.
+        mixture : str or int, optional
+            Mixture label or index; needed when the sweep has several.
+        frequency_Hz : float, optional
+            Drive frequency [Hz] (0 for DC); needed when the sweep has several.
+
+        Only finished points enter; missing and failed ones are listed in :attr:`notes`. The points' full results
+        (EEDFs, phase-resolved data) are not read here; :attr:`point_index` locates them for
+        :meth:`avalanche.store.sweep_file.SweepResults.point`.
+
+        Raises
+        ------
+        ConfigError
+            For an unknown mixture or frequency (naming the choices), or when no point has finished.
+        """
+        from ..constants import STANDARD_ATMOSPHERE_Pa, number_density_m3
+        from ..store.sweep_file import STATUS_OK, SweepResults, open_results
+
+        if not isinstance(results, SweepResults):
+            results = open_results(results)
+        grid, source = results.grid, str(results.path)
+        index = _choose_mixture(results.mixtures, mixture, source)
+        rows = grid["mixture_index"] == index
+        frequencies = sorted(set(grid["frequency_Hz"][rows].tolist()))
+        if frequency_Hz is None:
+            if len(frequencies) > 1:
+                raise ConfigError(f"{source}: the sweep has several frequencies {frequencies} Hz; choose one "
+                                  "(--frequency)")
+            frequency_Hz = frequencies[0]
+        if float(frequency_Hz) not in frequencies:
+            raise ConfigError(f"{source}: no points at frequency {frequency_Hz!r} Hz; the sweep has {frequencies} Hz")
+        rows &= grid["frequency_Hz"] == float(frequency_Hz)
+        done = rows & (grid["status"] == STATUS_OK)
+        notes = [f"{np.count_nonzero(rows & (grid['status'] == status))} point(s) {status}, left out"
+                 for status in ("failed", "missing") if np.any(rows & (grid["status"] == status))]
+        if not np.any(done):
+            raise ConfigError(f"{source}: no finished point for mixture {results.mixtures[index]!r} at "
+                              f"{frequency_Hz:g} Hz; finish the sweep first (avalanche sweep ... --resume)")
+        config = results.config
+        temperature = config.get("temperature_K")
+        density = config.get("number_density_m3")
+        if density is None and temperature:
+            density = number_density_m3(config.get("pressure_Pa") or STANDARD_ATMOSPHERE_Pa, temperature)
+        spec = (config.get("mixtures") or [{}])[index]
+        quantities = {name: (results.value(name)[done], results.stderr(name)[done]) for name in results.quantities
+                      if np.any(np.isfinite(results.value(name)[done]))}  # not the other mixtures' processes
+        return cls(grid["reduced_field_Td"][done], quantities, gas_label=results.mixtures[index],
+                   temperature_K=temperature, number_density_m3=density,
+                   composition=dict(spec.get("composition", {})) or None, source=source,
+                   units=dict(results.units), parameters=dict(spec.get("parameters", {})),
+                   checksums=dict(results.checksums), point_index=grid["index"][done], notes=notes)
+
+
+def _choose_mixture(labels: Sequence[str], mixture, source: str) -> int:
+    if mixture is None:
+        if len(labels) > 1:
+            raise ConfigError(f"{source}: the sweep has {len(labels)} mixtures {list(labels)}; choose one (--mixture)")
+        return 0
+    if isinstance(mixture, int) or str(mixture).isdigit():
+        if not 0 <= int(mixture) < len(labels):
+            raise ConfigError(f"{source}: mixture index {mixture} out of range 0..{len(labels) - 1}")
+        return int(mixture)
+    if mixture not in labels:
+        raise ConfigError(f"{source}: no mixture {mixture!r}{did_you_mean(mixture, labels)}; the sweep has "
+                          f"{list(labels)}")
+    return list(labels).index(mixture)
+
+
+def _rate_sort_key(name: str) -> tuple[int, str]:
+    return (1, name) if name.startswith(RATE_PREFIX) else (0, "")
+
+
+@dataclass
+class FluidTable:
+    """A fluid-model table: columns sorted and strictly increasing in the coordinate, with units.
+
+    Attributes
+    ----------
+    coordinate : str
+        ``'reduced_field_Td'`` or ``'mean_energy_eV'``: the first column.
+    columns : dict
+        Column name → values; every quantity ``q`` is followed by ``q_stderr``.
+    units : dict
+        Column name → unit.
+    metadata : dict
+        Gas, temperature, density, source: written as comment lines.
+    """
+
+    coordinate: str
+    columns: dict[str, np.ndarray]
+    units: dict[str, str]
+    metadata: dict[str, str] = field(default_factory=dict)
+
+    @property
+    def names(self) -> list[str]:
+        return list(self.columns)
+
+    def __getitem__(self, name: str) -> np.ndarray:
+        if name not in self.columns:
+            raise ConfigError(f"fluid table: no column {name!r}{did_you_mean(name, self.columns)}")
+        return self.columns[name]
+
+    def interpolate(self, quantity: str, x):
+        """``quantity`` at coordinate values ``x`` (units of the coordinate), log-log between table points.
+
+        Uses :func:`avalanche.analysis.coefficients.loglog_interpolate`: a power law between neighbouring positive
+        points,
+        linear in ln x next to a zero, a :class:`~avalanche.errors.PhysicsWarning` outside the table. Negative
+        values (e.g. an effective coefficient below the critical field) are rejected with a :class:`ConfigError`.
+        """
+        return loglog_interpolate(x, self.columns[self.coordinate], self[quantity], quantity=quantity)
+
+    def _header_comments(self) -> list[str]:
+        lines = [f"avalanche fluid-model table (format {_TABLE_FORMAT}), avalanche {__version__}"]
+        lines += [f"{key}: {value}" for key, value in self.metadata.items()]
+        lines.append(f"coordinate: {self.coordinate}, sorted and strictly increasing; every quantity q is followed "
+                     "by its standard error q_stderr")
+        return lines
+
+    def format_csv(self) -> str:
+        """The table as CSV: ``#`` comment lines, a line of column names, a line of units, one row per point.
+
+        Values are written with Python's shortest round-trip representation, so reading gives the same floats.
+        """
+        buffer = io.StringIO()
+        for line in self._header_comments():
+            buffer.write(f"# {line}\n")
+        buffer.write("# next line: column names; the line after it: units\n")
+        writer = csv.writer(buffer, lineterminator="\n")
+        writer.writerow(self.names)
+        writer.writerow([self.units[name] for name in self.names])
+        for row in zip(*self.columns.values(), strict=True):
+            writer.writerow([repr(float(v)) for v in row])
+        return buffer.getvalue()
+
+    def format_text(self) -> str:
+        """The table as whitespace-separated text readable by ``numpy.loadtxt``: every header line is a ``#``
+        comment, the last two being the column names and the units; whitespace inside a name or unit becomes ``_``
+        (``1/(m_s)``), which :func:`read_table` turns back into a space for units."""
+        names = ["_".join(name.split()) for name in self.names]
+        units = ["_".join(self.units[name].split()) or "-" for name in self.names]
+        cells = [[repr(float(v)) for v in values] for values in self.columns.values()]
+        widths = [max(len(n), len(u), *(len(c) for c in column))
+                  for n, u, column in zip(names, units, cells, strict=True)]
+        lines = [f"# {line}" for line in self._header_comments()]
+        lines.append("# last two comment lines: column names, then units")
+        lines.append("# " + " ".join(n.rjust(w) for n, w in zip(names, widths, strict=True)))
+        lines.append("# " + " ".join(u.rjust(w) for u, w in zip(units, widths, strict=True)))
+        for row in zip(*cells, strict=True):
+            lines.append("  " + " ".join(c.rjust(w) for c, w in zip(row, widths, strict=True)))
+        return "\n".join(lines) + "\n"
+
+    def to_csv(self, path) -> Path:
+        """Write :meth:`format_csv` to ``path``; returns the path."""
+        return _write(path, self.format_csv())
+
+    def to_text(self, path) -> Path:
+        """Write :meth:`format_text` to ``path``; returns the path."""
+        return _write(path, self.format_text())
+
+
+def _write(path, text: str) -> Path:
+    path = Path(path)
+    path.parent.mkdir(parents=True, exist_ok=True)
+    path.write_text(text, encoding="utf-8")
+    return path
+
+
+def _check_monotone_energy(table: SwarmTable) -> None:
+    energy, error = table.get("mean_energy_eV")
+    fields = table.reduced_field_Td
+    bad = np.flatnonzero(~(np.diff(energy) > 0.0))
+    if bad.size == 0:
+        return
+    i = int(bad[0])
+    combined = math.hypot(error[i], error[i + 1])
+    sigmas = abs(energy[i + 1] - energy[i]) / combined if combined > 0 else math.inf
+    verdict = (f"the step is {sigmas:.2g} combined standard errors, likely statistical noise: rerun these points "
+               "with a smaller precision target" if sigmas <= 2.0 else
+               f"the step is {sigmas:.2g} combined standard errors, beyond the statistics: check the data")
+    raise ConfigError(
+        f"{table.source or 'swarm table'}: mean energy is not strictly increasing with E/N — "
+        f"{energy[i]:.6g} ± {error[i]:.2g} eV at {fields[i]:g} Td, then {energy[i + 1]:.6g} ± {error[i + 1]:.2g} eV "
+        f"at {fields[i + 1]:g} Td ({bad.size} such step(s)); a table against mean energy would not be single-valued. "
+        f"{verdict[0].upper()}{verdict[1:]}, drop one of the points, or tabulate against reduced-field")
+
+
+def fluid_table(table: SwarmTable, against: str = "reduced-field", quantities: Sequence[str] | None = None
+                ) -> FluidTable:
+    """Fluid-model table of ``table``: the coordinate, the other coordinate, then each quantity and its error.
+
+    Parameters
+    ----------
+    table : SwarmTable
+    against : {'reduced-field', 'mean-energy'}
+        Coordinate of the first column. Against mean energy the mean energy must rise strictly with E/N.
+    quantities : sequence of str, optional
+        Quantities to include (default: all, per-process rate coefficients last).
+
+    Returns
+    -------
+    FluidTable
+        Arrays sorted and strictly increasing in the coordinate.
+
+    Raises
+    ------
+    ConfigError
+        For an unknown coordinate or quantity (with a did-you-mean), a missing mean energy, or a mean energy
+        that is not strictly increasing with E/N (naming the two points and whether the step is within errors).
+    """
+    if against not in COORDINATES:
+        raise ConfigError(f"fluid table: against={against!r}{did_you_mean(against, COORDINATES)}; choose "
+                          f"{' or '.join(COORDINATES)}")
+    coordinate = COORDINATES[against]
+    if coordinate == "mean_energy_eV":
+        _check_monotone_energy(table)
+    names = sorted(table.names, key=_rate_sort_key) if quantities is None else list(quantities)
+    for name in names:
+        table.get(name)
+    columns: dict[str, np.ndarray] = {"reduced_field_Td": table.reduced_field_Td}
+    if coordinate == "mean_energy_eV":
+        # mean energy and its error first, then E/N
+        names = [name for name in names if name != "mean_energy_eV"]
+        energy, energy_error = table.get("mean_energy_eV")
+        columns = {"mean_energy_eV": energy, "mean_energy_eV_stderr": energy_error, **columns}
+    for name in names:
+        values, errors = table.get(name)
+        columns[name], columns[f"{name}_stderr"] = values, errors
+    units = {name: table.unit(name.removesuffix("_stderr")) for name in columns}
+    metadata = {"gas": table.gas_label or "unknown"}
+    if table.temperature_K is not None:
+        metadata["temperature_K"] = f"{table.temperature_K:g}"
+    if table.number_density_m3 is not None:
+        metadata["number_density_m3"] = f"{table.number_density_m3:.6g}"
+    if table.source:
+        metadata["source"] = table.source
+    return FluidTable(coordinate, {k: np.array(v, dtype=float) for k, v in columns.items()}, units, metadata)
+
+
+def _parse_header(comments: list[str], path) -> dict[str, str]:
+    metadata = {}
+    for line in comments[1:]:
+        key, sep, value = line.partition(": ")
+        if sep and " " not in key:
+            metadata[key] = value
+    if not comments or not comments[0].startswith("avalanche fluid-model table"):
+        raise ConfigError(f"{path}: not an avalanche fluid-model table (first line should start with "
+                          "'# avalanche fluid-model table'); write one with `avalanche table`")
+    return metadata
+
+
+def read_table(path) -> FluidTable:
+    """Read a table written by :meth:`FluidTable.to_csv` or :meth:`FluidTable.to_text` (detected from the file).
+
+    Raises
+    ------
+    ConfigError
+        If the file is missing, is not such a table, or has rows of the wrong length.
+    """
+    path = Path(path)
+    if not path.is_file():
+        raise ConfigError(f"{path}: no such file; give the path of a table written by `avalanche table`")
+    lines = path.read_text(encoding="utf-8").splitlines()
+    comments = [line[1:].strip() for line in lines if line.startswith("#")]
+    body = [line for line in lines if line.strip() and not line.startswith("#")]
+    metadata = _parse_header(comments, path)
+    if any("last two comment lines" in line for line in comments):
+        names = comments[-2].split()
+        units = [("" if u == "-" else u.replace("_", " ")) for u in comments[-1].split()]
+        rows = [line.split() for line in body]
+    else:
+        parsed = list(csv.reader(body))
+        names, units, rows = parsed[0], parsed[1], parsed[2:]
+    if len(names) != len(units):
+        raise ConfigError(f"{path}: {len(names)} column names but {len(units)} units; the header is damaged")
+    for number, row in enumerate(rows, start=1):
+        if len(row) != len(names):
+            raise ConfigError(f"{path}: data row {number} has {len(row)} values for {len(names)} columns")
+    values = np.array(rows, dtype=float).reshape(len(rows), len(names))
+    coordinate = metadata.pop("coordinate", names[0]).split(",")[0]
+    return FluidTable(coordinate, {name: values[:, j] for j, name in enumerate(names)},
+                      dict(zip(names, units, strict=True)), metadata)

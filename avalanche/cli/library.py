@@ -1,0 +1,72 @@
+"""The ``gases`` and ``check`` commands: the gas library and the validation of cross-section files."""
+
+from __future__ import annotations
+
+import numpy as np
+
+from ..gas.crosssections import CrossSectionSet, load_set
+from ..gas.library import available_gases, get_set, named_mixtures
+from .registry import command
+
+
+def _summary_rows(xs: CrossSectionSet) -> list[str]:
+    rows = []
+    for p in xs.processes:
+        extra = []
+        if p.wavelength_nm:
+            extra.append(f"λ={p.wavelength_nm:g} nm")
+        if p.opb_w_eV:
+            extra.append(f"w={p.opb_w_eV:g} eV")
+        if p.three_body:
+            extra.append("three-body")
+        if not p.enabled:
+            extra.append("disabled")
+        hi = "analytic" if p.formula is not None else f"{p.energy_eV[0]:g}–{p.energy_eV[-1]:g} eV"
+        peak = float(np.max(p.cross_section_m2))
+        rows.append(f"    {p.kind:<11s} {p.label:<32s} threshold {p.threshold_eV:8.4f} eV  table {hi:<18s}"
+                    f" peak {peak:9.3e} m2  {' '.join(extra)}")
+    return rows
+
+
+def describe_set(xs: CrossSectionSet, provenance: bool = True) -> str:
+    """A readable summary of a set: header, processes, energy range and provenance."""
+    lo, hi = xs.energy_range_eV
+    ion = f"{xs.ionization_energy_eV:g} eV" if xs.ionization_energy_eV else "-"
+    lines = [f"{xs.name}  ({xs.formula}, {xs.mass_amu:g} amu, ionization energy {ion}, "
+             f"{len(xs.processes)} processes, {lo:g}–{hi:g} eV)"]
+    if xs.description:
+        lines.append(f"  {xs.description}")
+    lines += _summary_rows(xs)
+    if provenance:
+        for src in xs.provenance.get("sources", []):
+            lines.append(f"  source: {src}")
+        if xs.provenance.get("date"):
+            lines.append(f"  date: {xs.provenance['date']}")
+    lines.append(f"  checksum: {xs.checksum()[:16]}")
+    return "\n".join(lines)
+
+
+@command("gases", "list the gas library: species, processes, energy range, provenance",
+         configure=lambda p: p.add_argument("--brief", action="store_true", help="omit provenance lines"))
+def _gases(args) -> int:
+    for name in available_gases():
+        print(describe_set(get_set(name), provenance=not args.brief))
+        print()
+    mixtures = named_mixtures()
+    if mixtures:
+        print("Named mixtures:")
+        for name, entry in sorted(mixtures.items()):
+            comp = ", ".join(f"{k}:{v}" for k, v in entry["composition"].items())
+            print(f"  {name:<8s} {comp}   ({entry.get('source', '')})")
+    return 0
+
+
+@command("check", "validate a cross-section file and print a summary",
+         configure=lambda p: p.add_argument("files", nargs="+", metavar="FILE",
+                                            help="cross-section file(s) (.toml) to validate"))
+def _check(args) -> int:
+    for path in args.files:
+        xs = load_set(path)
+        print(f"OK {path}")
+        print(describe_set(xs))
+    return 0

@@ -1,0 +1,119 @@
+"""The one-point commands ``swarm`` (time of flight, DC or AC) and ``townsend`` (steady-state Townsend), and
+the gas and point arguments they share."""
+
+from __future__ import annotations
+
+from .registry import SAFETY_NOTE, command, print_json
+
+
+def _mixture_arguments(p) -> None:
+    p.add_argument("--gas", default="Ar", help='gas or mixture, e.g. "Ar", "Ne:0.99,Ar:0.01", "air" (default Ar)')
+    p.add_argument("--temperature", type=float, default=300.0, metavar="K", help="gas temperature [K] (300)")
+    density = p.add_mutually_exclusive_group()
+    density.add_argument("--pressure", type=float, metavar="PA", help="gas pressure [Pa] (default 1 atm)")
+    density.add_argument("--density", type=float, metavar="M3", help="gas number density [m^-3]")
+    p.add_argument("--penning", default=None, metavar="GROUP:R",
+                   help='Penning transfer probabilities, e.g. "Ne:0.3" or "Ne:1s:0.2,Ne:2p->Ar:0.5" (default none)')
+
+
+def mixture_from_args(args):
+    """The :class:`~avalanche.gas.mixture.Mixture` described by the common gas arguments."""
+    from ..gas.mixture import Mixture
+    from ..gas.penning import parse_penning
+
+    penning = parse_penning(args.penning) if args.penning else None
+    return Mixture(args.gas, temperature_K=args.temperature, pressure_Pa=args.pressure,
+                   number_density_m3=args.density, penning=penning)
+
+
+def point_arguments(p, precision: float, electrons_help: str) -> None:
+    """The arguments of one simulated point shared by ``swarm`` and ``townsend``: gas, E/N, precision, budget,
+    electrons, seed, sharing and scattering rules."""
+    _mixture_arguments(p)
+    p.add_argument("--en", type=float, required=True, metavar="TD", help="reduced field E/N [Td]")
+    p.add_argument("--precision", type=float, default=precision,
+                   help=f"target relative standard error ({precision:g})")
+    p.add_argument("--max-events", type=float, default=None, help="collision-event budget (null events included)")
+    p.add_argument("--electrons", type=int, default=None, help=electrons_help)
+    p.add_argument("--seed", type=int, default=0, help="master random seed (0)")
+    p.add_argument("--sharing", default=None, help="ionization energy sharing: equal, uniform or opb")
+    p.add_argument("--scattering", default=None, help="angular scattering: isotropic or screened-coulomb")
+
+
+def output_arguments(p) -> None:
+    """``--json`` and ``--out`` of a one-point command (see :func:`report_point`)."""
+    p.add_argument("--json", action="store_true", help="print the result as JSON (value and stderr per quantity)")
+    p.add_argument("--out", default=None, metavar="FILE.h5", help="also write the result to an HDF5 file")
+
+
+def point_options(args, **more) -> dict:
+    """Keyword arguments of the simulation from the shared point arguments and ``more`` (those not given left out,
+    so the function's defaults apply)."""
+    pairs = {"max_events": args.max_events, "electrons": args.electrons, "sharing": args.sharing,
+             "scattering": args.scattering, **more}
+    options = {k: v for k, v in pairs.items() if v is not None}
+    if "max_events" in options:
+        options["max_events"] = int(options["max_events"])
+    return options
+
+
+def report_point(args, result) -> None:
+    """Write ``result`` to ``--out`` if given, and print it as JSON (``--json``) or as its table."""
+    if args.out:
+        from ..store.point import save_result
+
+        save_result(args.out, result)
+    if args.json:
+        print_json(result.to_dict())
+    else:
+        print(result.format_table())
+        if args.out:
+            print(f"result written to {args.out}")
+
+
+def _swarm_configure(p) -> None:
+    point_arguments(p, 0.01, "electrons per ensemble")
+    p.add_argument("--frequency", type=float, default=None, metavar="HZ",
+                   help="AC drive frequency [Hz] (--en is then the amplitude); omit for DC")
+    p.add_argument("--waveform", default=None, metavar="FILE.csv",
+                   help="AC: periodic waveform as a two-column CSV (phase fraction or time_s, value), peak = --en")
+    p.add_argument("--phase-bins", type=int, default=None, help="AC: phase bins per period (32)")
+    p.add_argument("--dc-offset", type=float, default=None, metavar="TD", help="AC: DC part E_dc/N [Td] (0)")
+    output_arguments(p)
+
+
+@command("swarm", "simulate one swarm point: transport, rate and Townsend coefficients with errors",
+         configure=_swarm_configure)
+def _swarm(args) -> int:
+    from ..engine.time_of_flight import swarm
+
+    options = point_options(args, frequency_Hz=args.frequency, waveform=args.waveform,
+                            phase_bins=args.phase_bins, dc_offset_Td=args.dc_offset)
+    result = swarm(mixture_from_args(args), args.en, seed=args.seed, precision=args.precision, **options)
+    report_point(args, result)
+    return 0
+
+
+def _townsend_configure(p) -> None:
+    point_arguments(p, 0.02, "electrons followed per pass (4096)")
+    p.add_argument("--distance", type=float, default=None, metavar="M",
+                   help="distance of the last tally plane from the electrode [m] (adaptive by default)")
+    p.add_argument("--margin", type=float, default=None, metavar="M",
+                   help="distance followed beyond the last tally plane [m] (adaptive by default)")
+    p.add_argument("--compare", action="store_true",
+                   help="also run the time-of-flight simulation and show its alpha/N beside the SST values")
+    output_arguments(p)
+
+
+@command("townsend", "simulate a steady-state Townsend experiment: alpha/N, eta/N from the spatial growth",
+         configure=_townsend_configure)
+def _townsend(args) -> int:
+    from ..engine.townsend import townsend
+
+    options = point_options(args, distance_m=args.distance, margin_m=args.margin)
+    result = townsend(mixture_from_args(args), args.en, seed=args.seed, precision=args.precision,
+                      compare=args.compare, **options)
+    report_point(args, result)
+    if not args.json:
+        print(SAFETY_NOTE)
+    return 0

@@ -1,0 +1,223 @@
+"""Swarm parameters from the raw tallies of independent replicas (plain numpy).
+
+Every quantity is a function of sums over the R independent replicas (the replicas are independent
+simulations). Its value is the function of the sums pooled over all replicas, and its standard error the
+leave-one-replica-out jackknife error (Efron B & Tibshirani R J 1993, An Introduction to the Bootstrap, ch. 11):
+σ² = (R − 1)/R Σ_i (θ_(i) − θ̄)², θ_(i) computed without replica i. For a plain mean of equal replicas this is
+exactly std/√R; for the ratios and nonlinear functions here (drift and diffusion, α from the steady-state relation
+near its limit 4 D_L ν → W²) it avoids the bias and the NaN that a mean of noisy per-replica values would give.
+
+Definitions (field along −z, so the electrons drift along +z and W > 0; sums over trial events are time
+averages of the swarm because the trial events are Poisson in time)
+
+* mean energy ⟨ε⟩ = Σε / n_events; flux drift velocity W_flux = ⟨v_z⟩ = Σv_z / n_events.
+* bulk drift velocity W_bulk = d⟨z⟩/dt and bulk diffusion N D_L = N ½ d var(z)/dt, N D_T = N ¼ d[var(x) +
+  var(y)]/dt, from the changes of the ensemble's moments during each sampled chunk (between population-control
+  steps) summed over the chunks and divided by their total time.
+* flux diffusion N D_L = N (⟨z v_z⟩ − ⟨z⟩⟨v_z⟩), N D_T = N ½ ⟨x v_x + y v_y⟩ (⟨v_x⟩ = ⟨v_y⟩ = 0 by symmetry).
+  Positions are taken relative to the replica's mean at the chunk start, which leaves these covariances
+  unchanged and keeps the sums small.
+* rate coefficient of process k: k_k = C_k / (N_k ∫ n dt) [m³ s⁻¹], C_k its real collisions and N_k the density
+  of its target species (per target molecule); totals are frequencies divided by the total density N.
+* ν_ion, ν_att: ionization and attachment frequencies per electron [s⁻¹]; ν_eff = ν_ion − ν_att. ν_ion counts
+  direct ionization and Penning transfer (the "penning" pseudo-processes, :mod:`avalanche.gas.penning`):
+  ν_ion = ν_direct + ν_Penning. penning_ionization_rate_coefficient = ν_Penning / N, penning_fraction =
+  ν_Penning / ν_ion; the per-channel rate coefficient of a "penning" row is per receiver molecule,
+  C / (N_B ∫ n dt), like that of any process of B.
+* Townsend coefficients (steady-state, with the longitudinal-diffusion correction; e.g. Robson R E 1991, Aust.
+  J. Phys. 44 685, eq. for α from the time-of-flight coefficients, from memory):
+  α(ν) = [W − √(W² − 4 D_L ν)] / (2 D_L) = 2ν / (W + √(W² − 4 D_L ν)), with W = W_bulk and D_L the bulk value.
+  alpha_N = α(ν_ion)/N, eta_N = −α(−ν_att)/N (so η ≥ 0), effective_alpha_N = α(ν_eff)/N; because α(ν) is
+  nonlinear, alpha_N − eta_N differs slightly from effective_alpha_N. The simple estimates beside them are
+  alpha_N_simple = ν_ion/(N W_bulk) and eta_N_simple = ν_att/(N W_bulk).
+* mobility N μ = N W_bulk / E [V⁻¹ m⁻¹ s⁻¹]; characteristic energy D_T/μ (bulk values) [eV].
+* EEDF f(ε) per bin: the fraction of trial events in the bin divided by ∫_bin ε^½ dε, so that ∫ f ε^½ dε = 1
+  over the histogram plus the overflow [eV^-3/2].
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from .results import EnergyDistribution, Estimate
+from .tallies import SwarmTallies
+
+
+@dataclass(frozen=True)
+class EstimatorContext:
+    """What the estimators need besides the tallies.
+
+    Parameters
+    ----------
+    number_density_m3 : float
+        Total gas density N [m⁻³].
+    field_V_m : float
+        Electric field strength E [V/m].
+    process_keys : tuple of str
+        Result key of each process (label, or "<species>:<label>").
+    process_kinds : tuple of str
+        Kind of each process ('elastic', 'excitation', 'ionization', 'attachment', or 'penning' for a Penning
+        transfer pseudo-process).
+    target_density_m3 : ndarray, shape (P,)
+        Density of each process's target species [m⁻³].
+    energy_edges_eV : ndarray, shape (B + 1,)
+        Edges of the energy histogram [eV].
+    """
+
+    number_density_m3: float
+    field_V_m: float
+    process_keys: tuple[str, ...]
+    process_kinds: tuple[str, ...]
+    target_density_m3: np.ndarray
+    energy_edges_eV: np.ndarray
+
+
+def estimate(per_replica: np.ndarray) -> Estimate:
+    """Mean and standard error (std with ddof = 1 over √R) of independent per-replica values."""
+    values = np.asarray(per_replica, dtype=float)
+    if values.size == 0 or not np.all(np.isfinite(values)):
+        return Estimate(float("nan"), float("nan"))
+    if values.size == 1:
+        return Estimate(float(values[0]), float("nan"))
+    return Estimate(float(values.mean()), float(values.std(ddof=1) / np.sqrt(values.size)))
+
+
+def townsend_coefficient(drift_velocity: np.ndarray, long_diffusion: np.ndarray, frequency: np.ndarray):
+    """Spatial growth rate α [m⁻¹] of a steady-state swarm with net production frequency ``frequency``.
+
+    α = 2ν / (W + √(W² − 4 D_L ν)) — the root of D_L α² − W α + ν = 0 that tends to ν/W as D_L → 0, written so
+    that it is exact at D_L = 0 and ν = 0. NaN where W² < 4 D_L ν (no steady-state solution).
+
+    Parameters
+    ----------
+    drift_velocity : array_like
+        Bulk drift velocity W [m/s].
+    long_diffusion : array_like
+        Bulk longitudinal diffusion coefficient D_L [m²/s].
+    frequency : array_like
+        ν [s⁻¹] (ν_ion for α, −ν_att for the attachment coefficient, ν_eff for α_eff).
+    """
+    w = np.asarray(drift_velocity, dtype=float)
+    d = np.asarray(long_diffusion, dtype=float)
+    nu = np.asarray(frequency, dtype=float)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        disc = w * w - 4.0 * d * nu
+        root = np.sqrt(np.where(disc >= 0, disc, np.nan))
+        return 2.0 * nu / (w + root)
+
+
+def _ratio(numerator, denominator):
+    with np.errstate(invalid="ignore", divide="ignore"):
+        return np.asarray(numerator, dtype=float) / np.asarray(denominator, dtype=float)
+
+
+def pooled(t: SwarmTallies) -> SwarmTallies:
+    """The sums of all replicas as one replica (arrays of shape (1, ...))."""
+    return SwarmTallies({k: v.sum(axis=0, keepdims=True) for k, v in t.arrays.items()})
+
+
+def leave_one_out(t: SwarmTallies) -> SwarmTallies:
+    """R sets of sums, set i without replica i (arrays of shape (R, ...))."""
+    return SwarmTallies({k: v.sum(axis=0, keepdims=True) - v for k, v in t.arrays.items()})
+
+
+def jackknife(values_pooled: np.ndarray, values_loo: np.ndarray):
+    """Value and jackknife standard error from the pooled value (shape (1, ...)) and the leave-one-out values
+    (shape (R, ...)); NaN errors where fewer than two replicas exist."""
+    value = np.asarray(values_pooled, dtype=float)[0]
+    loo = np.asarray(values_loo, dtype=float)
+    replicas = loo.shape[0]
+    if replicas < 2:
+        return value, np.full_like(value, np.nan)
+    spread = np.sum((loo - loo.mean(axis=0)) ** 2, axis=0)
+    return value, np.sqrt((replicas - 1) / replicas * spread)
+
+
+def per_replica_quantities(t: SwarmTallies, ctx: EstimatorContext) -> dict[str, np.ndarray]:
+    """Every scalar quantity of :data:`avalanche.engine.results.ESTIMATES` for each set of sums in ``t`` (each replica,
+    or pooled / leave-one-out sets; arrays of shape (R,))."""
+    N = ctx.number_density_m3
+    kinds = np.asarray(ctx.process_kinds)
+    counts = t["process_counts"].astype(float)
+    exposure = t["exposure_s"]
+    penning = counts[:, kinds == "penning"].sum(axis=1)
+    ionization = counts[:, kinds == "ionization"].sum(axis=1) + penning
+    attachment = counts[:, kinds == "attachment"].sum(axis=1)
+    excitation = counts[:, kinds == "excitation"].sum(axis=1)
+    nu_ion = _ratio(ionization, exposure)
+    nu_att = _ratio(attachment, exposure)
+    nu_eff = nu_ion - nu_att
+    w_bulk = _ratio(t["z_mean_increment_m"], t["mature_time_s"])
+    dl_bulk = 0.5 * _ratio(t["z_var_increment_m2"], t["mature_time_s"])
+    dt_bulk = 0.25 * _ratio(t["xy_var_increment_m2"], t["mature_time_s"])
+    w_mature = _ratio(t["mature_vz_sum"], t["mature_events"])
+    dl_flux = _ratio(t["mature_zvz_sum"] - w_mature * t["mature_z_sum"], t["mature_events"])
+    dt_flux = 0.5 * _ratio(t["mature_xyv_sum"], t["mature_events"])
+    mobility_N = w_bulk * N / ctx.field_V_m
+    q = {
+        "mean_energy_eV": _ratio(t["energy_sum_eV"], t["events"]),
+        "drift_velocity_flux": _ratio(t["vz_sum"], t["events"]),
+        "drift_velocity_bulk": w_bulk,
+        "long_diffusion_N_flux": N * dl_flux,
+        "long_diffusion_N_bulk": N * dl_bulk,
+        "trans_diffusion_N_flux": N * dt_flux,
+        "trans_diffusion_N_bulk": N * dt_bulk,
+        "mobility_N": mobility_N,
+        "characteristic_energy_eV": _ratio(N * dt_bulk, mobility_N),
+        "alpha_N": townsend_coefficient(w_bulk, dl_bulk, nu_ion) / N,
+        "eta_N": -townsend_coefficient(w_bulk, dl_bulk, -nu_att) / N,
+        "effective_alpha_N": townsend_coefficient(w_bulk, dl_bulk, nu_eff) / N,
+        "alpha_N_simple": _ratio(nu_ion, N * w_bulk),
+        "eta_N_simple": _ratio(nu_att, N * w_bulk),
+        "ionization_rate_coefficient": nu_ion / N,
+        "attachment_rate_coefficient": nu_att / N,
+        "excitation_rate_coefficient": _ratio(excitation, exposure) / N,
+        "penning_ionization_rate_coefficient": _ratio(penning, exposure) / N,
+        "penning_fraction": _ratio(penning, ionization),
+        "effective_ionization_frequency": nu_eff,
+        "collision_frequency": _ratio(t["real_collisions"], exposure),
+    }
+    return q
+
+
+def _rates(t: SwarmTallies, ctx: EstimatorContext) -> np.ndarray:
+    return _ratio(t["process_counts"], t["exposure_s"][:, None] * np.asarray(ctx.target_density_m3)[None, :])
+
+
+def rate_coefficients(t: SwarmTallies, ctx: EstimatorContext) -> dict[str, Estimate]:
+    """Rate coefficient per target molecule of every process [m³/s], keyed by ``ctx.process_keys``."""
+    value, error = jackknife(_rates(pooled(t), ctx), _rates(leave_one_out(t), ctx))
+    return {key: Estimate(float(value[k]), float(error[k])) for k, key in enumerate(ctx.process_keys)}
+
+
+def _eedf(t: SwarmTallies, weight: np.ndarray) -> np.ndarray:
+    return _ratio(t["eedf_counts"], t["events"].astype(float)[:, None] * weight[None, :])
+
+
+def energy_distribution(t: SwarmTallies, ctx: EstimatorContext) -> EnergyDistribution:
+    """The EEDF (∫ f ε^½ dε = 1, [eV^-3/2]) with per-bin jackknife standard errors over replicas."""
+    edges = np.asarray(ctx.energy_edges_eV, dtype=float)
+    weight = (2.0 / 3.0) * (edges[1:] ** 1.5 - edges[:-1] ** 1.5)
+    value, error = jackknife(_eedf(pooled(t), weight), _eedf(leave_one_out(t), weight))
+    events = float(t["events"].sum())
+    overflow = float(t["eedf_overflow"].sum()) / events if events > 0 else 0.0
+    return EnergyDistribution(energy_edges_eV=edges, value=value, stderr=error, overflow_fraction=overflow)
+
+
+def swarm_estimates(t: SwarmTallies, ctx: EstimatorContext) -> dict[str, Estimate]:
+    """Every scalar estimate (see :data:`avalanche.engine.results.ESTIMATES`) from the tallies."""
+    full = per_replica_quantities(pooled(t), ctx)
+    loo = per_replica_quantities(leave_one_out(t), ctx)
+    out = {}
+    for name in full:
+        value, error = jackknife(full[name], loo[name])
+        out[name] = Estimate(float(value), float(error))
+    return out
+
+
+def extrapolated_fraction(t: SwarmTallies) -> float:
+    """Fraction of the sampled real collisions at energies beyond their process's table (pooled)."""
+    real = float(t["process_counts"].sum())
+    return float(t["extrapolated_counts"].sum()) / real if real > 0 else 0.0

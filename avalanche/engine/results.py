@@ -1,0 +1,281 @@
+"""Results of a swarm run: :class:`Estimate` (value and standard error), the energy distribution, and
+:class:`SwarmResult` with its JSON form and human-readable table.
+
+Every quantity is in SI units except electron energies (eV); the unit is part of the name where it is not SI.
+Standard errors are the spread of independent replicas (see :mod:`avalanche.engine.estimators`).
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from .tallies import SwarmTallies
+
+
+@dataclass(frozen=True)
+class Estimate:
+    """A Monte Carlo estimate: ``value`` and its standard error ``stderr`` (same units)."""
+
+    value: float
+    stderr: float
+
+    @property
+    def relative_stderr(self) -> float:
+        """stderr / |value| (infinite for a zero value with a nonzero error, 0 for 0 ± 0)."""
+        if self.value == 0.0:
+            return 0.0 if self.stderr == 0.0 else math.inf
+        return abs(self.stderr / self.value)
+
+    def to_dict(self) -> dict:
+        """``{"value": ..., "stderr": ...}`` with plain floats (NaN becomes None, valid JSON)."""
+        return {"value": _json_float(self.value), "stderr": _json_float(self.stderr)}
+
+    def __format__(self, spec: str) -> str:
+        spec = spec or ".5g"
+        return f"{format(self.value, spec)} ± {format(self.stderr, '.2g')}"
+
+    def __str__(self) -> str:
+        return format(self)
+
+
+@dataclass(frozen=True, eq=False)
+class EnergyDistribution:
+    """The electron energy distribution function f(ε), normalised so that ∫ f(ε) ε^½ dε = 1 [eV^-3/2].
+
+    It is the time-averaged distribution of the swarm during sampling (trial events are Poisson in time), as a
+    histogram: ``value[i]`` is the mean of f over bin i, ``[energy_edges_eV[i], energy_edges_eV[i + 1])``.
+    """
+
+    energy_edges_eV: np.ndarray
+    value: np.ndarray
+    stderr: np.ndarray
+    overflow_fraction: float = 0.0
+    """Fraction of the sampled time spent above the last edge (not in ``value``)."""
+
+    @property
+    def energy_eV(self) -> np.ndarray:
+        """Bin centres [eV]."""
+        return 0.5 * (self.energy_edges_eV[1:] + self.energy_edges_eV[:-1])
+
+    def moment_eV(self) -> float:
+        """Mean energy of the histogram ∫ ε^{3/2} f dε [eV] (bin-exact for a flat f inside each bin)."""
+        e0, e1 = self.energy_edges_eV[:-1], self.energy_edges_eV[1:]
+        return float(np.sum(self.value * 0.4 * (e1 ** 2.5 - e0 ** 2.5)))
+
+    def to_dict(self) -> dict:
+        return {"energy_edges_eV": [float(e) for e in self.energy_edges_eV],
+                "value": [_json_float(v) for v in self.value], "stderr": [_json_float(v) for v in self.stderr],
+                "overflow_fraction": float(self.overflow_fraction), "units": "eV^-3/2"}
+
+
+@dataclass(frozen=True, eq=False)
+class PhaseResolved:
+    """A phase-resolved quantity of an AC run: ``value[i]`` and its standard error ``stderr[i]`` in phase bin i of
+    ωt mod 2π (bin centres in :attr:`SwarmResult.phase`), both ndarrays in the units of the DC quantity of the same
+    name."""
+
+    value: np.ndarray
+    stderr: np.ndarray
+
+    def to_dict(self) -> dict:
+        return {"value": [_json_float(v) for v in self.value], "stderr": [_json_float(v) for v in self.stderr]}
+
+
+ESTIMATES: tuple[tuple[str, str, str], ...] = (
+    ("mean_energy_eV", "eV", "mean energy"),
+    ("drift_velocity_flux", "m/s", "flux drift velocity <v_z>"),
+    ("drift_velocity_bulk", "m/s", "bulk drift velocity d<z>/dt"),
+    ("long_diffusion_N_flux", "1/(m s)", "N D_L, flux"),
+    ("long_diffusion_N_bulk", "1/(m s)", "N D_L, bulk"),
+    ("trans_diffusion_N_flux", "1/(m s)", "N D_T, flux"),
+    ("trans_diffusion_N_bulk", "1/(m s)", "N D_T, bulk"),
+    ("mobility_N", "1/(V m s)", "N mu = N W_bulk / E"),
+    ("characteristic_energy_eV", "eV", "D_T / mu (bulk)"),
+    ("alpha_N", "m2", "Townsend ionization coefficient alpha/N"),
+    ("eta_N", "m2", "attachment coefficient eta/N"),
+    ("effective_alpha_N", "m2", "(alpha - eta)/N from nu_eff"),
+    ("alpha_N_simple", "m2", "nu_ion / (N W_bulk)"),
+    ("eta_N_simple", "m2", "nu_att / (N W_bulk)"),
+    ("ionization_rate_coefficient", "m3/s", "total ionization frequency / N (direct + Penning)"),
+    ("attachment_rate_coefficient", "m3/s", "total attachment frequency / N"),
+    ("excitation_rate_coefficient", "m3/s", "total excitation frequency / N"),
+    ("penning_ionization_rate_coefficient", "m3/s", "Penning ionization frequency / N"),
+    ("penning_fraction", "1", "Penning share of the ionization frequency"),
+    ("effective_ionization_frequency", "1/s", "nu_ion - nu_att"),
+    ("collision_frequency", "1/s", "real collision frequency per electron"),
+)
+"""(name, units, description) of every scalar estimate, in display order."""
+ESTIMATE_UNITS = {name: units for name, units, _ in ESTIMATES}
+
+
+@dataclass(eq=False)
+class SwarmResult:
+    """Swarm parameters of one point (mixture, E/N), each an :class:`Estimate` in SI units (energies in eV).
+
+    Attributes
+    ----------
+    reduced_field_Td : float
+        E/N [Td].
+    mean_energy_eV, drift_velocity_flux, drift_velocity_bulk, long_diffusion_N_flux, long_diffusion_N_bulk,
+    trans_diffusion_N_flux, trans_diffusion_N_bulk, alpha_N, eta_N, ... : Estimate
+        See :data:`ESTIMATES` for units and meaning, and :mod:`avalanche.engine.estimators` for the definitions.
+    rate_coefficients : dict of str to Estimate
+        Rate coefficient per target molecule of every process [m³/s]; keys are the process labels, or
+        "<species>:<label>" in a mixture of several species.
+    eedf : EnergyDistribution
+    events : int
+        Trial collision events simulated (real and null, including chunks that were redone).
+    cpu_seconds, wall_seconds : float
+        Process CPU time (all threads) and wall-clock time of the run [s].
+    stop_reason : {'precision', 'max_events'}
+    relaxation_time_s, sampled_time_s : float
+        Simulated time before sampling started, and the sampled time [s].
+    extrapolated_fraction : float
+        Fraction of the sampled real collisions at energies beyond their process's table.
+    anomalies : dict
+        Counters of the run (grid doublings, redone chunks, frequency above bound, ...).
+    inputs : dict
+        Every input of the run (mixture description, E/N, seed, settings, package version) as plain data.
+    time_series : dict of str to ndarray
+        Per-chunk series (time, electrons, mean energy, rates) used for relaxation and diagnostics.
+    tallies : SwarmTallies or None
+        The raw per-replica sums the estimates derive from.
+    phase : ndarray or None
+        AC runs: centres of the phase bins of ωt mod 2π [rad]; None for DC.
+    phase_resolved : dict of str to PhaseResolved, or None
+        AC runs: per phase bin, the quantities of the same names as :attr:`estimates` (mean energy, flux drift
+        velocity, rate coefficients, frequencies, see :mod:`avalanche.engine.ac`), each process's rate coefficient under
+        its key in :attr:`rate_coefficients`, plus ``reduced_field_Td`` (the bin average of E(t)/N) and
+        ``power_absorbed_eV_s``. In AC the scalar estimates of those names are their cycle (time) averages.
+    regime : dict or None
+        AC runs: ``omega_over_nu_m``, ``omega_over_nu_energy``, ``verdict``, ``statement``, ``effective_field_Td``
+        and the frequencies they derive from (see :func:`avalanche.engine.ac.regime`).
+    """
+
+    reduced_field_Td: float
+    estimates: dict[str, Estimate]
+    rate_coefficients: dict[str, Estimate]
+    eedf: EnergyDistribution
+    events: int
+    cpu_seconds: float
+    wall_seconds: float
+    stop_reason: str
+    relaxation_time_s: float
+    sampled_time_s: float
+    extrapolated_fraction: float
+    anomalies: dict
+    inputs: dict
+    time_series: dict = field(default_factory=dict)
+    tallies: SwarmTallies | None = None
+    phase: np.ndarray | None = None
+    phase_resolved: dict | None = None
+    regime: dict | None = None
+    phase_tallies: object | None = None
+
+    def __getattr__(self, name: str):
+        estimates = self.__dict__.get("estimates")
+        if estimates is not None and name in estimates:
+            return estimates[name]
+        raise AttributeError(f"SwarmResult has no attribute '{name}'")
+
+    def __dir__(self):
+        return sorted(set(super().__dir__()) | set(self.estimates))
+
+    @property
+    def precision_quantity(self) -> str:
+        """The quantity whose relative standard error the stop rule tested."""
+        return str(self.inputs.get("settings", {}).get("precision_on", ""))
+
+    def to_dict(self, time_series: bool = False) -> dict:
+        """JSON-ready data with the same names: each estimate as ``{"value": .., "stderr": ..}``."""
+        out: dict = {"reduced_field_Td": float(self.reduced_field_Td)}
+        out.update({name: self.estimates[name].to_dict() for name, _, _ in ESTIMATES if name in self.estimates})
+        out["rate_coefficients"] = {key: est.to_dict() for key, est in self.rate_coefficients.items()}
+        out["eedf"] = self.eedf.to_dict()
+        out.update({"events": int(self.events), "cpu_seconds": float(self.cpu_seconds),
+                    "wall_seconds": float(self.wall_seconds), "stop_reason": self.stop_reason,
+                    "relaxation_time_s": float(self.relaxation_time_s), "sampled_time_s": float(self.sampled_time_s),
+                    "extrapolated_fraction": float(self.extrapolated_fraction),
+                    "anomalies": _plain(self.anomalies), "inputs": _plain(self.inputs),
+                    "units": dict(ESTIMATE_UNITS, rate_coefficients="m3/s")})
+        if self.phase is not None:
+            out["phase"] = [float(v) for v in self.phase]
+            out["phase_resolved"] = {k: v.to_dict() for k, v in (self.phase_resolved or {}).items()}
+            out["regime"] = _plain(self.regime)
+        if time_series:
+            out["time_series"] = {k: [_json_float(v) for v in np.ravel(a)] for k, a in self.time_series.items()}
+        return out
+
+    def format_table(self) -> str:
+        """A readable table of every estimate with its standard error and unit, then the run's cost."""
+        mixture = self.inputs.get("mixture", {})
+        composition = ", ".join(f"{k} {v:g}" for k, v in mixture.get("composition", {}).items())
+        lines = [f"E/N = {self.reduced_field_Td:g} Td   gas: {composition or '?'}   "
+                 f"T = {mixture.get('temperature_K', float('nan')):g} K   "
+                 f"N = {mixture.get('number_density_m3', float('nan')):.4g} m^-3"]
+        width = max(len(d) for _, _, d in ESTIMATES)
+        rows = [(desc, self.estimates[name], units) for name, units, desc in ESTIMATES if name in self.estimates]
+        rows += [(f"k {key}", est, "m3/s") for key, est in self.rate_coefficients.items()]
+        width = max(width, *(len(r[0]) for r in rows))
+        for desc, est, units in rows:
+            rel = est.relative_stderr
+            rel_text = f"({100 * rel:.2g} %)" if math.isfinite(rel) and est.value != 0 else ""
+            lines.append(f"  {desc:<{width}}  {est.value:>12.5g} ± {est.stderr:<9.2g} {units:<10} {rel_text}")
+        lines.append(f"  events {self.events:.4g} (real + null), cpu {self.cpu_seconds:.3g} s, "
+                     f"wall {self.wall_seconds:.3g} s, stop: {self.stop_reason}, relaxation "
+                     f"{self.relaxation_time_s:.3g} s, sampled {self.sampled_time_s:.3g} s")
+        if self.extrapolated_fraction > 0:
+            lines.append(f"  {100 * self.extrapolated_fraction:.2g} % of collisions beyond a cross-section table")
+        if self.phase is not None:
+            lines += self._ac_lines()
+        return "\n".join(lines)
+
+    def _ac_lines(self, rows: int = 8) -> list[str]:
+        """The AC section of :meth:`format_table`: the regime and a compact phase table (``rows`` bins)."""
+        reg = self.regime or {}
+        drive = self.inputs.get("drive", {})
+        lines = [f"AC drive: {drive.get('frequency_Hz', float('nan')):.4g} Hz, amplitude {self.reduced_field_Td:g} Td"
+                 f", DC offset {drive.get('dc_offset_Td', 0.0):g} Td, waveform {drive.get('waveform', 'sine')}",
+                 f"  regime: {reg.get('verdict', '?')} (omega/nu_m = {reg.get('omega_over_nu_m', float('nan')):.3g}, "
+                 f"omega/nu_energy = {reg.get('omega_over_nu_energy', float('nan')):.3g}, E_eff/N = "
+                 f"{reg.get('effective_field_Td', float('nan')):.4g} Td)", f"  {reg.get('statement', '')}"]
+        pr = self.phase_resolved or {}
+        columns = [(n, h) for n, h in (("reduced_field_Td", "E/N [Td]"), ("mean_energy_eV", "energy [eV]"),
+                                       ("drift_velocity_flux", "W flux [m/s]"),
+                                       ("ionization_rate_coefficient", "k_ion [m3/s]")) if n in pr]
+        lines.append("  " + f"{'phase [rad]':>11s}" + "".join(f" {h:>22s}" for _, h in columns))
+        step = max(1, len(self.phase) // rows)
+        for i in range(0, len(self.phase), step):
+            cells = "".join(f" {pr[n].value[i]:>12.4g} ± {pr[n].stderr[i]:<7.2g}" for n, _ in columns)
+            lines.append(f"  {self.phase[i]:11.3f}{cells}")
+        return lines
+
+    def __repr__(self) -> str:
+        return (f"SwarmResult(E/N={self.reduced_field_Td:g} Td, mean_energy_eV={self.mean_energy_eV}, "
+                f"drift_velocity_bulk={self.drift_velocity_bulk}, alpha_N={self.alpha_N}, "
+                f"stop_reason={self.stop_reason!r})")
+
+
+def _json_float(value) -> float | None:
+    value = float(value)
+    return value if math.isfinite(value) else None
+
+
+def _plain(value):
+    """Nested data as JSON-ready plain Python types."""
+    if isinstance(value, dict):
+        return {str(k): _plain(v) for k, v in value.items()}
+    if isinstance(value, (list, tuple)):
+        return [_plain(v) for v in value]
+    if isinstance(value, np.ndarray):
+        return [_plain(v) for v in value.tolist()]
+    if isinstance(value, (bool, np.bool_)):
+        return bool(value)
+    if isinstance(value, (int, np.integer)):
+        return int(value)
+    if isinstance(value, (float, np.floating)):
+        return _json_float(value)
+    return value

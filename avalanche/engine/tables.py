@@ -1,0 +1,187 @@
+"""The gas as the kernel sees it: per-process arrays of a mixture and collision-frequency tables on an energy grid.
+
+:class:`ProcessTable` turns the enabled processes of a :class:`~avalanche.gas.mixture.Mixture` into one row per process
+(action code, energy loss, mass ratios, target thermal speed, angular and sharing rules, Penning transfer), and
+:class:`EnergyGrid` tabulates their collision frequencies N_k σ_k(ε) v on a uniform grid with the trial frequency
+ν* of the null-collision method (Skullerud H R 1968, J. Phys. D 1 1567). Used by the time-of-flight engine
+(:mod:`avalanche.engine.time_of_flight`) and the steady-state Townsend mode (:mod:`avalanche.engine.townsend`).
+"""
+
+from __future__ import annotations
+
+import math
+import warnings
+from dataclasses import dataclass
+
+import numpy as np
+
+from .. import kernels as K
+from ..constants import BOLTZMANN_J_K, EV_J, ATOMIC_MASS_UNIT_kg, ELECTRON_MASS_kg
+from ..errors import ConfigError, PhysicsWarning
+from ..gas.mixture import Mixture
+from ..gas.penning import kernel_arrays
+
+SHARING_RULES = {"equal": K.SHARING_EQUAL, "uniform": K.SHARING_UNIFORM, "opb": K.SHARING_OPB}
+SCATTERING_MODELS = {"isotropic": K.SCATTER_ISOTROPIC, "screened-coulomb": K.SCATTER_SCREENED_COULOMB}
+ACTIONS = {"elastic": K.ACTION_ELASTIC, "excitation": K.ACTION_EXCITATION, "ionization": K.ACTION_IONIZATION,
+           "attachment": K.ACTION_ATTACHMENT, "penning": K.ACTION_PENNING}
+ENERGY_FLOOR_eV = 1e-9
+"""Cross sections are evaluated at ε ≥ this, so σ ∝ ε^-1/2 gives a finite σ v."""
+TRIAL_MARGIN = 1e-3
+"""ν* = (1 + TRIAL_MARGIN) max ν(ε) over the nodes: a bound also between nodes for smooth data."""
+EXTRAPOLATION_WARNING = 0.01
+"""A PhysicsWarning is given when more than this fraction of the real collisions fall beyond their tables."""
+
+
+def extrapolation_notice(where: str, extrapolated, process_counts, keys) -> str | None:
+    """The PhysicsWarning text when more than EXTRAPOLATION_WARNING of the real collisions used extrapolated
+    cross sections (beyond the last point of their table), naming the three processes with most; else None.
+
+    ``extrapolated`` and ``process_counts`` are per-replica counts (R, P) of the kernels, ``keys`` the process
+    names, ``where`` the start of the message (the run and its E/N).
+    """
+    beyond = np.asarray(extrapolated).sum(axis=0)
+    real = max(int(np.asarray(process_counts).sum()), 1)
+    if beyond.sum() <= EXTRAPOLATION_WARNING * real:
+        return None
+    worst = sorted(range(beyond.size), key=lambda k: -beyond[k])[:3]
+    listing = ", ".join(f"'{keys[k]}' ({100 * beyond[k] / real:.2g} %)" for k in worst if beyond[k])
+    return (f"{where}: {100 * beyond.sum() / real:.2g} % of the collisions happened beyond the end of their "
+            f"cross-section table, where it is extrapolated: {listing}; extend the tables to higher energy")
+
+# ------------------------------------------------------------------------------------------- process tables
+
+def momentum_transfer_fraction(energy_eV) -> np.ndarray:
+    """⟨1 − cos χ⟩ = σ_m/σ_T of the screened-Coulomb distribution at ``energy_eV`` [eV].
+
+    With ξ = 4ε/(1 + 4ε): σ_m/σ_T = (1 − ξ)[(1 + ξ) ln((1 + ξ)/(1 − ξ)) − 2ξ]/(2ξ²) (Okhrimovskyy, Bogaerts &
+    Gijbels 2002, Phys. Rev. E 65 037402, eq. (11), from memory; it is also the integral of 1 − cos χ over the
+    sampling formula of :func:`avalanche.kernels.scattering_cosine`). Series 1 − 2ξ/3 for ξ < 1e-4.
+    """
+    energy = np.asarray(energy_eV, dtype=float)
+    xi = 4.0 * energy / (1.0 + 4.0 * energy)
+    small = xi < 1e-4
+    xs = np.where(small, 0.5, xi)
+    exact = (1 - xs) * ((1 + xs) * (np.log1p(xs) - np.log1p(-xs)) - 2 * xs) / (2 * xs * xs)
+    return np.where(small, 1.0 - 2.0 * xi / 3.0, exact)
+
+
+@dataclass(frozen=True, eq=False)
+class ProcessTable:
+    """The enabled processes of a mixture as kernel arrays (one entry per process), followed by one pseudo-process
+    row of kind "penning" per Penning channel of the mixture (zero collision frequency, never selected; its count
+    is the channel's Penning ionizations, its target density the receiver's, see :mod:`avalanche.gas.penning`)."""
+
+    processes: tuple
+    keys: tuple[str, ...]
+    kinds: tuple[str, ...]
+    species: tuple[str, ...]
+    target_density_m3: np.ndarray
+    density_factor: np.ndarray
+    action: np.ndarray
+    loss_eV: np.ndarray
+    electron_fraction: np.ndarray
+    target_fraction: np.ndarray
+    thermal_speed: np.ndarray
+    scatter: np.ndarray
+    sharing: np.ndarray
+    w_eV: np.ndarray
+    table_max_eV: np.ndarray
+    penning_probability: np.ndarray
+    penning_energy_eV: np.ndarray
+    penning_slot: np.ndarray
+
+    @classmethod
+    def build(cls, mixture: Mixture, sharing: str, scattering: str) -> ProcessTable:
+        rows = []
+        single = len(mixture.components) == 1
+        for comp in mixture.components:
+            xs = comp.cross_sections
+            density = comp.fraction * mixture.number_density_m3
+            mass = xs.mass_amu * ATOMIC_MASS_UNIT_kg
+            for proc in xs.processes:
+                if not proc.enabled:
+                    continue
+                factor = density / proc.reference_density_m3 if proc.three_body else 1.0
+                rule = SHARING_RULES[sharing]
+                w = proc.opb_w_eV or 0.0
+                if proc.kind == "ionization" and sharing == "opb" and not w:
+                    warnings.warn(f"{xs.name}: ionization process '{proc.label}' has no opb_w_eV; its energy is "
+                                  "shared equally (give opb_w_eV in the set, or choose sharing='uniform' or "
+                                  "'equal')", PhysicsWarning, stacklevel=4)
+                    rule = K.SHARING_EQUAL
+                model = "screened-coulomb" if "screened-coulomb" in (scattering, proc.scattering) else "isotropic"
+                rows.append(dict(
+                    process=proc, key=proc.label if single else f"{comp.name}:{proc.label}", kind=proc.kind,
+                    species=comp.name, density=density, factor=factor, action=ACTIONS[proc.kind],
+                    loss=proc.threshold_eV if proc.kind in ("excitation", "ionization") else 0.0,
+                    electron_fraction=ELECTRON_MASS_kg / (ELECTRON_MASS_kg + mass),
+                    target_fraction=mass / (ELECTRON_MASS_kg + mass),
+                    thermal=math.sqrt(BOLTZMANN_J_K * mixture.temperature_K / mass),
+                    scatter=SCATTERING_MODELS[model], sharing=rule, w=w, table_max=proc.max_energy_eV))
+        if not rows:
+            raise ConfigError(f"mixture {mixture.label}: every process is disabled; enable at least the elastic one")
+        penning = kernel_arrays(mixture.penning_channels, [r["species"] for r in rows],
+                                [r["process"].label for r in rows])
+        fractions = {c.name: c.fraction for c in mixture.components}
+        for channel in mixture.penning_channels:
+            rows.append(dict(process=channel, key=channel.key, kind="penning", species=channel.receiver,
+                             density=fractions[channel.receiver] * mixture.number_density_m3, factor=1.0,
+                             action=K.ACTION_PENNING, loss=0.0, electron_fraction=0.0, target_fraction=0.0,
+                             thermal=0.0, scatter=K.SCATTER_ISOTROPIC, sharing=K.SHARING_EQUAL, w=0.0,
+                             table_max=math.inf))
+
+        def col(name, dtype=float):
+            return np.array([r[name] for r in rows], dtype=dtype)
+
+        return cls(processes=tuple(r["process"] for r in rows), keys=tuple(r["key"] for r in rows),
+                   kinds=tuple(r["kind"] for r in rows), species=tuple(r["species"] for r in rows),
+                   target_density_m3=col("density"), density_factor=col("factor"), action=col("action", np.int64),
+                   loss_eV=col("loss"), electron_fraction=col("electron_fraction"),
+                   target_fraction=col("target_fraction"), thermal_speed=col("thermal"),
+                   scatter=col("scatter", np.int64), sharing=col("sharing", np.int64), w_eV=col("w"),
+                   table_max_eV=col("table_max"), penning_probability=penning[0], penning_energy_eV=penning[1],
+                   penning_slot=penning[2])
+
+    def frequencies(self, energy_eV: np.ndarray) -> np.ndarray:
+        """Collision frequency of each process [s⁻¹] at ``energy_eV`` (shape (P, len(energy_eV)))."""
+        energy = np.maximum(np.asarray(energy_eV, dtype=float), ENERGY_FLOOR_eV)
+        speed = np.sqrt(2.0 * energy * EV_J / ELECTRON_MASS_kg)
+        out = np.empty((len(self.processes), energy.size))
+        for k, proc in enumerate(self.processes):
+            if self.kinds[k] == "penning":
+                out[k] = 0.0
+                continue
+            sigma = np.asarray(proc.sigma_m2(energy), dtype=float)
+            if proc.kind == "elastic" and self.scatter[k] == K.SCATTER_SCREENED_COULOMB:
+                sigma = sigma / momentum_transfer_fraction(energy)
+            out[k] = self.target_density_m3[k] * self.density_factor[k] * sigma * speed
+        return out
+
+
+@dataclass(frozen=True, eq=False)
+class EnergyGrid:
+    """The kernel's collision-frequency tables on nodes i Δε, i = 0 … n_cells, and the trial frequency."""
+
+    energy_max_eV: float
+    n_cells: int
+    nu_star: float
+    nu_total: np.ndarray
+    nu_cumulative: np.ndarray
+
+    @classmethod
+    def build(cls, table: ProcessTable, energy_max_eV: float, n_cells: int) -> EnergyGrid:
+        nodes = np.linspace(0.0, energy_max_eV, n_cells + 1)
+        nu = table.frequencies(nodes)
+        cumulative = np.ascontiguousarray(np.cumsum(nu, axis=0).T)
+        total = np.ascontiguousarray(cumulative[:, -1])
+        peak = float(total.max())
+        if not peak > 0:
+            raise ConfigError("the mixture's collision frequency is zero on the whole energy grid; check the "
+                              "cross sections (every process zero?)")
+        return cls(energy_max_eV=float(energy_max_eV), n_cells=int(n_cells), nu_star=peak * (1.0 + TRIAL_MARGIN),
+                   nu_total=total, nu_cumulative=cumulative)
+
+    @property
+    def inv_cell_eV(self) -> float:
+        return self.n_cells / self.energy_max_eV

@@ -1,0 +1,125 @@
+"""Raw per-replica sums of a swarm run, from which every estimate derives (:mod:`avalanche.engine.estimators`).
+
+A :class:`SwarmTallies` holds, for each independent replica, sums over the sampled chunks: counts, sums of the
+pre-collision state at trial events, collision counts per process, exposure ∫ n dt, the energy histogram, and
+the increments of the ensemble's position moments during chunks. Means and standard errors are derived, never
+stored, so the tallies of a continued run add up (:meth:`SwarmTallies.accumulate`), and independent runs with
+different seeds combine by stacking their replicas (:func:`combine`).
+"""
+
+from __future__ import annotations
+
+from collections.abc import Sequence
+from dataclasses import dataclass
+
+import numpy as np
+
+from .. import kernels as K
+
+# name: (dtype, trailing shape key, units, description). Shape keys: "" → (R,), "P" → (R, P), "B" → (R, B).
+FIELDS: dict[str, tuple[type, str, str, str]] = {
+    "events": (np.int64, "", "1", "trial events (real and null) in sampled chunks"),
+    "real_collisions": (np.int64, "", "1", "real collisions in sampled chunks"),
+    "energy_sum_eV": (np.float64, "", "eV", "sum of the electron energy at trial events"),
+    "vz_sum": (np.float64, "", "m/s", "sum of v_z at trial events"),
+    "exposure_s": (np.float64, "", "s", "electron-time exposure, integral of n dt (unweighted)"),
+    "sampled_time_s": (np.float64, "", "s", "simulated time of the sampled chunks"),
+    "created": (np.int64, "", "1", "electrons created by ionization"),
+    "removed": (np.int64, "", "1", "electrons removed by attachment"),
+    "eedf_overflow": (np.int64, "", "1", "trial events above the last energy bin"),
+    "process_counts": (np.int64, "P", "1", "real collisions per process"),
+    "extrapolated_counts": (np.int64, "P", "1", "real collisions beyond the process's table"),
+    "eedf_counts": (np.int64, "B", "1", "trial events per energy bin"),
+    "mature_events": (np.int64, "", "1", "trial events in chunks sampled for position moments"),
+    "mature_vz_sum": (np.float64, "", "m/s", "sum of v_z at those events"),
+    "mature_zvz_sum": (np.float64, "", "m2/s", "sum of (z - z_ref) v_z at those events"),
+    "mature_z_sum": (np.float64, "", "m", "sum of (z - z_ref) at those events"),
+    "mature_xyv_sum": (np.float64, "", "m2/s", "sum of (x - x_ref) v_x + (y - y_ref) v_y at those events"),
+    "mature_time_s": (np.float64, "", "s", "simulated time of the chunks sampled for position moments"),
+    "z_mean_increment_m": (np.float64, "", "m", "sum over those chunks of the change of <z> during the chunk"),
+    "z_var_increment_m2": (np.float64, "", "m2", "sum of the change of var(z) during the chunk"),
+    "xy_var_increment_m2": (np.float64, "", "m2", "sum of the change of var(x) + var(y) during the chunk"),
+}
+
+
+@dataclass(eq=False)
+class SwarmTallies:
+    """Raw sums per replica (arrays of shape (R,), (R, P) or (R, B), see :data:`FIELDS`).
+
+    Parameters
+    ----------
+    arrays : dict of str to ndarray
+        One array per name in :data:`FIELDS`.
+    """
+
+    arrays: dict[str, np.ndarray]
+
+    def __post_init__(self):
+        missing = set(FIELDS) - set(self.arrays)
+        if missing:
+            raise ValueError(f"tallies lack the fields {sorted(missing)}")
+
+    @classmethod
+    def zeros(cls, replicas: int, processes: int, bins: int) -> SwarmTallies:
+        """Empty tallies for ``replicas`` replicas, ``processes`` processes and ``bins`` energy bins."""
+        trailing = {"": (), "P": (processes,), "B": (bins,)}
+        return cls({name: np.zeros((replicas, *trailing[key]), dtype=dtype)
+                    for name, (dtype, key, _, _) in FIELDS.items()})
+
+    @property
+    def replicas(self) -> int:
+        return int(self.arrays["events"].shape[0])
+
+    def __getitem__(self, name: str) -> np.ndarray:
+        return self.arrays[name]
+
+    def add_chunk(self, sums: np.ndarray, counts: np.ndarray, hist: np.ndarray, process_counts: np.ndarray,
+                  extrapolated: np.ndarray, duration_s: float) -> None:
+        """Add one sampled chunk's kernel outputs (see :func:`avalanche.kernels.advance_chunk`)."""
+        a = self.arrays
+        a["events"] += counts[:, K.COUNT_EVENTS]
+        a["real_collisions"] += counts[:, K.COUNT_REAL]
+        a["created"] += counts[:, K.COUNT_CREATED]
+        a["removed"] += counts[:, K.COUNT_REMOVED]
+        a["eedf_overflow"] += counts[:, K.COUNT_EEDF_OVERFLOW]
+        a["energy_sum_eV"] += sums[:, K.SUM_ENERGY]
+        a["vz_sum"] += sums[:, K.SUM_VZ]
+        a["exposure_s"] += sums[:, K.SUM_EXPOSURE]
+        a["sampled_time_s"] += duration_s
+        a["process_counts"] += process_counts
+        a["extrapolated_counts"] += extrapolated
+        a["eedf_counts"] += hist
+
+    def add_mature_chunk(self, sums: np.ndarray, counts: np.ndarray, duration_s: float, start_moments: np.ndarray,
+                         end_moments: np.ndarray) -> None:
+        """Add one chunk to the position-moment sums.
+
+        ``start_moments`` and ``end_moments`` have shape (R, 3): <z>, var(z), var(x) + var(y) of each replica's
+        ensemble at the chunk start (after population control) and end (before it).
+        """
+        a = self.arrays
+        a["mature_events"] += counts[:, K.COUNT_EVENTS]
+        a["mature_vz_sum"] += sums[:, K.SUM_VZ]
+        a["mature_zvz_sum"] += sums[:, K.SUM_ZVZ]
+        a["mature_z_sum"] += sums[:, K.SUM_Z]
+        a["mature_xyv_sum"] += sums[:, K.SUM_XYV]
+        a["mature_time_s"] += duration_s
+        change = end_moments - start_moments
+        a["z_mean_increment_m"] += change[:, 0]
+        a["z_var_increment_m2"] += change[:, 1]
+        a["xy_var_increment_m2"] += change[:, 2]
+
+    def accumulate(self, other: SwarmTallies) -> None:
+        """Add the sums of ``other`` (the same replicas continued) to these, in place."""
+        for name in FIELDS:
+            self.arrays[name] += other.arrays[name]
+
+    def copy(self) -> SwarmTallies:
+        return SwarmTallies({k: v.copy() for k, v in self.arrays.items()})
+
+
+def combine(tallies: Sequence[SwarmTallies]) -> SwarmTallies:
+    """Stack the replicas of independent runs (different seeds, same settings) into one set of tallies."""
+    if not tallies:
+        raise ValueError("combine() needs at least one SwarmTallies")
+    return SwarmTallies({name: np.concatenate([t.arrays[name] for t in tallies], axis=0) for name in FIELDS})

@@ -1,0 +1,631 @@
+"""The DC Monte Carlo swarm engine: :func:`swarm` follows an electron swarm in a uniform field through a gas
+mixture by the null-collision method and returns every swarm parameter with its standard error.
+
+Method
+------
+* Null collisions (Skullerud 1968): a constant trial frequency ν* bounds N Σ σ_k(ε) v over the energy grid
+  [0, ε_max]; flight times are exponential with rate ν*, flights ballistic and exact; at each trial event the
+  process is read from cumulative per-process frequency tables on a uniform grid (cell = int(ε/Δε), linear
+  interpolation inside the cell), the rest are null events. Cross sections are evaluated at energies
+  ≥ 1e-9 eV, so σ ∝ ε^-1/2 models have a finite, constant ν. ε_max adapts: when an electron leaves the grid
+  during a chunk, ε_max doubles, the tables are rebuilt and the chunk is redone from its saved start
+  (no event is lost or biased); during relaxation a grid far above every energy met is halved.
+* Collisions: elastic with exact two-body kinematics in the centre-of-mass frame (recoil m/M); for T > 0 the
+  target velocity is drawn from the Maxwellian at each real elastic collision (the collision frequency uses the
+  electron speed, an O(V²/v²) approximation that is exact for the Maxwell model). Excitation: the threshold
+  is lost (laboratory frame, target at rest). Attachment removes the electron. Ionization adds an electron and
+  shares ε − I by the ``sharing`` rule. Penning transfer (a mixture's ``penning`` groups, :mod:`avalanche.gas.penning`):
+  an excitation of a selected level creates, with its probability r, an electron of energy ε_level − I_B,
+  isotropic, at the excitation's place and time. Three-body processes scale with their species' density over
+  ``reference_density_m3``. Angles are isotropic, or screened Coulomb (Okhrimovskyy et al. 2002) for every
+  process if ``scattering="screened-coulomb"`` or for a process whose file says so; the elastic total cross
+  section is then σ_m / ⟨1 − cos χ⟩, so that the momentum-transfer cross section is preserved, and inelastic
+  scattering uses the same angular form at the post-collision energy.
+* R independent replicas (default 16), each a serial simulation with its own xoshiro256** stream derived from
+  ``numpy.random.SeedSequence(seed)``, advanced in parallel by numba: results are bitwise identical for any
+  number of threads. Python runs the outer loop over chunks (a few tens of trial events per electron):
+  tallies, population control, relaxation test, windows, stop rule.
+* Population control per replica between chunks: above ``upper × target`` electrons a uniformly random subset
+  of ``target`` is kept, below ``lower × target`` random electrons are cloned up to ``target``; the replica's
+  weight is multiplied by n/target. Both steps are unbiased for every ensemble mean, and the estimators use
+  ratios within chunks, so they never see the weight.
+* Relaxation: sampling starts when the mean energy and the real collision frequency over the third and fourth
+  quarters of the elapsed time agree within two standard errors, at least ``RELAXATION_MIN_ENERGY_TIMES``
+  energy relaxation times τ_ε = (⟨ε⟩ − 3kT/2)/(e E W) have passed, and at least ``RELAXATION_MIN_CHUNKS``
+  chunks were run; at half of ``max_events`` sampling starts anyway, with a PhysicsWarning.
+* Position moments (bulk quantities, flux diffusion) are sampled in windows: at each window start the
+  positions are reset to the origin, the first ``diffusion_skip`` energy relaxation times are not sampled
+  (the position–energy correlations build up), then ``diffusion_segment`` × that time is. Without resets the
+  spread grows and the precision of a diffusion coefficient stays near √(2/n) however long the run.
+* Stop: when the relative standard error of ``precision_on`` (default "auto": alpha_N if ionization occurred
+  during relaxation, else drift_velocity_flux) is below ``precision``, or when ``max_events`` trial events
+  were simulated; ``stop_reason`` says which.
+
+The electric field points along −z, so the force on the electrons and their drift point along +z, and every
+drift velocity is reported positive.
+"""
+
+from __future__ import annotations
+
+import math
+import time
+import warnings
+from dataclasses import asdict, dataclass
+
+import numba
+import numpy as np
+
+from .. import kernels as K
+from .._version import __version__
+from ..constants import BOLTZMANN_J_K, ELEMENTARY_CHARGE_C, EV_J, ATOMIC_MASS_UNIT_kg, ELECTRON_MASS_kg, TOWNSEND_V_m2
+from ..errors import AvalancheError, ConfigError, PhysicsWarning
+from ..gas.crosssections import _did_you_mean
+from ..gas.mixture import Mixture
+from . import ac
+from .drive import Drive, make_drive
+from .ensemble import Ensemble
+from .estimators import EstimatorContext, energy_distribution, extrapolated_fraction, rate_coefficients, swarm_estimates
+from .results import ESTIMATE_UNITS, SwarmResult
+from .tables import (  # noqa: F401  (re-exported: the engine's tables are part of its interface)
+    ACTIONS,
+    EXTRAPOLATION_WARNING,
+    SCATTERING_MODELS,
+    SHARING_RULES,
+    TRIAL_MARGIN,
+    ENERGY_FLOOR_eV,
+    EnergyGrid,
+    ProcessTable,
+    extrapolation_notice,
+    momentum_transfer_fraction,
+)
+from .tallies import SwarmTallies
+
+IONIZING_KINDS = ("ionization", "penning")
+"""Process kinds that create electrons (a "penning" row is the pseudo-process counting Penning transfers)."""
+RELAXATION_MIN_CHUNKS = 8
+RELAXATION_MIN_ENERGY_TIMES = 3.0
+GROWTH_PER_CHUNK = 0.3
+"""A chunk is at most GROWTH_PER_CHUNK / |ν_eff| long, so the population changes by < ~35 % per chunk."""
+
+
+@dataclass(frozen=True)
+class Settings:
+    """Validated run settings of :func:`swarm` (see there for the meaning of each)."""
+
+    seed: int | tuple[int, ...]
+    precision: float
+    electrons: int
+    max_events: int
+    sharing: str
+    scattering: str
+    replicas: int
+    precision_on: str
+    energy_cells: int
+    energy_max_eV: float | None
+    energy_limit_eV: float
+    initial_energy_eV: float
+    events_per_chunk: float
+    population_bounds: tuple[float, float]
+    eedf_bins: int
+    diffusion_skip: float
+    diffusion_segment: float
+
+
+def _positive(name: str, value, integer: bool = False, allow_none: bool = False):
+    if value is None and allow_none:
+        return None
+    ok = isinstance(value, (int, np.integer)) if integer else isinstance(value, (int, float, np.integer,
+                                                                                 np.floating))
+    if isinstance(value, bool) or not ok or not math.isfinite(float(value)) or value <= 0:
+        kind = "a positive integer" if integer else "a positive finite number"
+        raise ConfigError(f"swarm(): argument {name} = {value!r} must be {kind}")
+    return int(value) if integer else float(value)
+
+
+def _choice(name: str, value, choices) -> str:
+    if value not in choices:
+        raise ConfigError(f"swarm(): argument {name} = {value!r} is not valid{_did_you_mean(str(value), choices)};"
+                          f" choose one of {list(choices)}")
+    return value
+
+
+def _seed(value) -> int | tuple[int, ...]:
+    if isinstance(value, (int, np.integer)) and not isinstance(value, bool) and value >= 0:
+        return int(value)
+    if isinstance(value, (tuple, list)) and value and all(
+            isinstance(v, (int, np.integer)) and not isinstance(v, bool) and v >= 0 for v in value):
+        return tuple(int(v) for v in value)
+    raise ConfigError(f"swarm(): argument seed = {value!r} must be a non-negative integer or a tuple of them "
+                      "(e.g. (master_seed, point_index))")
+
+
+def make_settings(*, seed=0, precision=0.01, electrons=16384, max_events=1_000_000_000, sharing="opb",
+                  scattering="isotropic", replicas=16, precision_on="auto", energy_cells=8192, energy_max_eV=None,
+                  energy_limit_eV=1e5, initial_energy_eV=1.0, events_per_chunk=48.0, population_bounds=(0.6, 1.5),
+                  eedf_bins=200, diffusion_skip=4.0, diffusion_segment=3.0) -> Settings:
+    """Validate the keyword arguments of :func:`swarm`; raise :class:`ConfigError` naming the bad one."""
+    replicas = _positive("replicas", replicas, integer=True)
+    if replicas < 2:
+        raise ConfigError(f"swarm(): argument replicas = {replicas} must be >= 2 (standard errors come from the "
+                          "spread of independent replicas)")
+    electrons = _positive("electrons", electrons, integer=True)
+    if electrons < 2 * replicas:
+        raise ConfigError(f"swarm(): argument electrons = {electrons} must be at least 2 per replica "
+                          f"({2 * replicas} for replicas = {replicas})")
+    max_events = _positive("max_events", int(max_events) if isinstance(max_events, float) and
+                           float(max_events).is_integer() else max_events, integer=True)
+    if not (isinstance(population_bounds, (tuple, list)) and len(population_bounds) == 2
+            and all(isinstance(b, (int, float)) for b in population_bounds)
+            and 0 < population_bounds[0] < 1 < population_bounds[1] <= 4):
+        raise ConfigError(f"swarm(): argument population_bounds = {population_bounds!r} must be (lower, upper) "
+                          "with 0 < lower < 1 < upper <= 4 (fractions of the target population per replica)")
+    precision_choices = ("auto", "alpha_N", *[name for name in ESTIMATE_UNITS if name != "alpha_N"])
+    energy_cells = _positive("energy_cells", energy_cells, integer=True)
+    if energy_cells < 64:
+        raise ConfigError(f"swarm(): argument energy_cells = {energy_cells} must be >= 64")
+    return Settings(
+        seed=_seed(seed), precision=_positive("precision", precision), electrons=electrons,
+        max_events=max_events, sharing=_choice("sharing", sharing, SHARING_RULES),
+        scattering=_choice("scattering", scattering, SCATTERING_MODELS), replicas=replicas,
+        precision_on=_choice("precision_on", precision_on, precision_choices), energy_cells=energy_cells,
+        energy_max_eV=_positive("energy_max_eV", energy_max_eV, allow_none=True),
+        energy_limit_eV=_positive("energy_limit_eV", energy_limit_eV),
+        initial_energy_eV=_positive("initial_energy_eV", initial_energy_eV),
+        events_per_chunk=_positive("events_per_chunk", events_per_chunk),
+        population_bounds=(float(population_bounds[0]), float(population_bounds[1])),
+        eedf_bins=_positive("eedf_bins", eedf_bins, integer=True),
+        diffusion_skip=_positive("diffusion_skip", diffusion_skip),
+        diffusion_segment=_positive("diffusion_segment", diffusion_segment))
+
+
+# ------------------------------------------------------------------------------------------------ the run
+
+@dataclass
+class _ChunkOutput:
+    sums: np.ndarray
+    counts: np.ndarray
+    hist: np.ndarray
+    process_counts: np.ndarray
+    extrapolated: np.ndarray
+
+
+def ensure_compiled() -> None:
+    """Compile (or load from numba's cache) the chunk kernel with a call that does no work."""
+    z2 = np.zeros((1, 1))
+    i2 = np.zeros((1, 1), dtype=np.int64)
+    K.advance_chunk(z2, z2.copy(), z2.copy(), z2.copy(), z2.copy(), z2.copy(), z2.copy(),
+                    np.zeros(1, dtype=np.int64), np.ones((1, 4), dtype=np.uint64), 0.0, 1.0, 0.0, 0.0, 0.0, 0.0,
+                    1.0, 1, 1.0, np.ones(2), np.ones((2, 1)), np.zeros(1, dtype=np.int64), np.zeros(1),
+                    np.zeros(1), np.ones(1), np.zeros(1), np.zeros(1, dtype=np.int64), np.zeros(1, dtype=np.int64),
+                    np.zeros(1), np.full(1, np.inf), np.zeros((1, 3)), True, 1.0, np.zeros((1, K.N_SUMS)),
+                    np.zeros((1, K.N_COUNTS), dtype=np.int64), i2.copy(), i2.copy(), i2.copy(), np.zeros(1),
+                    np.zeros(1), np.full(1, -1, dtype=np.int64), 0.0, *(np.zeros(0),) * 4,
+                    np.zeros((1, 0, K.N_PHASE_SUMS)),
+                    np.zeros((1, 0, K.N_PHASE_COUNTS), dtype=np.int64), np.zeros((1, 0, 1), dtype=np.int64))
+
+
+class _Run:
+    """The outer loop of one swarm point."""
+
+    def __init__(self, mixture: Mixture, reduced_field_Td: float, settings: Settings, drive: Drive | None = None):
+        self.settings = settings
+        self.mixture = mixture
+        self.table = ProcessTable.build(mixture, settings.sharing, settings.scattering)
+        self.field_V_m = reduced_field_Td * TOWNSEND_V_m2 * mixture.number_density_m3
+        self.accel = ELEMENTARY_CHARGE_C * self.field_V_m / ELECTRON_MASS_kg
+        # AC: the drive's kernel arguments (DC: no oscillating part, period 0, no phase bins)
+        self.drive = drive
+        empty = np.zeros(0)
+        field = {"accel_ac": 0.0, "omega": 0.0, "period_s": 0.0, "wave": (empty,) * 4}
+        if drive is not None:
+            field = drive.kernel_field(mixture.number_density_m3)
+            self.accel = field["accel_dc"]
+        self.accel_ac, self.omega, self.period_s, self.wave = (field["accel_ac"], field["omega"],
+                                                                field["period_s"], field["wave"])
+        self.phase_out = ac.PhaseTallies.zeros(settings.replicas, drive.phase_bins if drive else 0,
+                                               len(self.table.processes))
+        self.kT_eV = BOLTZMANN_J_K * mixture.temperature_K / EV_J
+        self.ens = Ensemble(settings, growing=bool(np.any(self.table.action == K.ACTION_IONIZATION)
+                                                   or np.any(self.table.penning_probability > 0)))
+        start = settings.energy_max_eV or 10.0 * settings.initial_energy_eV
+        self.grid = EnergyGrid.build(self.table, start, settings.energy_cells)
+        R, P, B = settings.replicas, len(self.table.processes), settings.eedf_bins
+        self.out = _ChunkOutput(np.zeros((R, K.N_SUMS)), np.zeros((R, K.N_COUNTS), dtype=np.int64),
+                                np.zeros((R, B), dtype=np.int64), np.zeros((R, P), dtype=np.int64),
+                                np.zeros((R, P), dtype=np.int64))
+        self.eedf_max_eV = self.grid.energy_max_eV
+        self.events = 0
+        self.anomalies = {"energy_grid_doublings": 0, "energy_grid_reductions": 0, "capacity_enlargements": 0,
+                          "redone_chunks": 0, "shortened_chunks": 0, "frequency_above_bound": 0,
+                          "population_controls": 0, "not_relaxed": 0}
+
+    def advance(self, t0: float, t1: float, reference: np.ndarray, positions: bool) -> tuple[_ChunkOutput, float]:
+        """Advance every replica from t0 to t1, redoing the chunk on a larger grid, in a larger store, or (when the
+        store would pass 4 × the upper population bound) over half the time; returns the outputs and the end."""
+        saved = self.ens.save()
+        while True:
+            e, g, t, o = self.ens, self.grid, self.table, self.out
+            K.advance_chunk(e.x, e.y, e.z, e.vx, e.vy, e.vz, e.birth, e.count, e.rng, t0, t1, self.accel,
+                            self.accel_ac, self.omega, 0.0, g.inv_cell_eV, g.n_cells, g.nu_star, g.nu_total,
+                            g.nu_cumulative, t.action, t.loss_eV, t.electron_fraction, t.target_fraction,
+                            t.thermal_speed, t.scatter, t.sharing, t.w_eV, t.table_max_eV, reference, positions,
+                            self.settings.eedf_bins / self.eedf_max_eV,
+                            o.sums, o.counts, o.hist, o.process_counts, o.extrapolated, t.penning_probability,
+                            t.penning_energy_eV, t.penning_slot, self.period_s, *self.wave, self.phase_out.sums,
+                            self.phase_out.counts,
+                            self.phase_out.process)
+            self.events += int(o.counts[:, K.COUNT_EVENTS].sum())
+            self.anomalies["frequency_above_bound"] += int(o.counts[:, K.COUNT_ABOVE_BOUND].sum())
+            above = bool(o.counts[:, K.COUNT_ABOVE_GRID].any())
+            full = bool(o.counts[:, K.COUNT_OVERFLOW].any())
+            if not (above or full):
+                return o, t1
+            self.ens.restore(saved)
+            self.anomalies["redone_chunks"] += 1
+            if above:
+                self.resize_grid(2.0 * self.grid.energy_max_eV)
+                self.anomalies["energy_grid_doublings"] += 1
+            elif self.ens.capacity < 4 * self.ens.upper:
+                self.ens.enlarge()
+                self.anomalies["capacity_enlargements"] += 1
+            else:
+                t1 = t0 + 0.5 * (t1 - t0)
+                self.anomalies["shortened_chunks"] += 1
+
+    def resize_grid(self, energy_max_eV: float) -> None:
+        if energy_max_eV > self.settings.energy_limit_eV:
+            raise AvalancheError(
+                f"electrons reached {energy_max_eV / 2:.4g} eV, beyond energy_limit_eV = "
+                f"{self.settings.energy_limit_eV:g}: the swarm runs away at this E/N (no steady state); lower the "
+                "reduced field or raise energy_limit_eV")
+        self.grid = EnergyGrid.build(self.table, energy_max_eV, self.settings.energy_cells)
+
+    def chunk_duration(self, nu_eff: float) -> float:
+        dt = self.settings.events_per_chunk / self.grid.nu_star
+        if nu_eff != 0.0 and math.isfinite(nu_eff):
+            dt = min(dt, GROWTH_PER_CHUNK / abs(nu_eff))
+        return dt
+
+
+class _Series:
+    """Growing per-chunk arrays (per replica where it matters)."""
+
+    def __init__(self, replicas: int):
+        self.replicas = replicas
+        self.scalar: dict[str, list] = {}
+        self.per_replica: dict[str, list] = {}
+
+    def add(self, **values) -> None:
+        for name, value in values.items():
+            if np.ndim(value):
+                self.per_replica.setdefault(name, []).append(np.array(value, dtype=float))
+            else:
+                self.scalar.setdefault(name, []).append(float(value))
+
+    def array(self, name: str) -> np.ndarray:
+        if name in self.per_replica:
+            return np.array(self.per_replica[name])
+        return np.array(self.scalar[name])
+
+    def __len__(self) -> int:
+        return len(next(iter(self.scalar.values()), []))
+
+
+def _stationary(series: _Series, now: float) -> tuple[bool, float, float, float]:
+    """Relaxation test over the third and fourth quarters of the elapsed time.
+
+    Returns (stationary, mean energy [eV], flux drift velocity [m/s], real collision frequency [s⁻¹]) of the
+    fourth quarter.
+    """
+    end = series.array("time_s")
+    a = (end > 0.5 * now) & (end <= 0.75 * now)
+    b = end > 0.75 * now
+    if a.sum() < 2 or b.sum() < 2:
+        return False, math.nan, math.nan, math.nan
+    ok = True
+    values = {}
+    for num, den in (("energy_sum", "events"), ("real", "exposure"), ("vz_sum", "events")):
+        n, d = series.array(num), series.array(den)
+        qa = n[a].sum(axis=0) / d[a].sum(axis=0)
+        qb = n[b].sum(axis=0) / d[b].sum(axis=0)
+        values[num] = qb
+        if num == "vz_sum":
+            continue
+        diff = qb - qa
+        tol = 2.0 * diff.std(ddof=1) / math.sqrt(diff.size) + 1e-12 * abs(qb.mean())
+        ok = ok and bool(abs(diff.mean()) <= tol)
+    return (ok, float(np.mean(values["energy_sum"])), float(np.mean(values["vz_sum"])),
+            float(np.mean(values["real"])))
+
+
+def swarm(mixture: Mixture | str, reduced_field_Td: float, *, seed=0, precision: float = 0.01,
+          electrons: int = 16384, max_events: int = 1_000_000_000, sharing: str = "opb",
+          scattering: str = "isotropic", threads: int | None = None, frequency_Hz: float | None = None,
+          phase_bins: int = 32, dc_offset_Td: float = 0.0, waveform=None, **more) -> SwarmResult:
+    """Swarm parameters of electrons in ``mixture`` at reduced field ``reduced_field_Td`` (DC or AC), by Monte Carlo.
+
+    Parameters
+    ----------
+    mixture : Mixture or str
+        The gas (a string is passed to :class:`~avalanche.gas.mixture.Mixture`: 300 K, 1 atm).
+    reduced_field_Td : float
+        E/N [Td] (1 Td = 1e-21 V m²), > 0.
+    seed : int or tuple of int
+        Master seed; replica streams derive from ``numpy.random.SeedSequence(seed)``. A tuple such as
+        ``(master, point)`` gives independent streams for the points of a sweep.
+    precision : float
+        Target relative standard error of ``precision_on`` (stop rule).
+    electrons : int
+        Target number of electrons, split evenly over the replicas.
+    max_events : int
+        Budget of trial events (real and null); the run stops when it is spent.
+    sharing : {'opb', 'uniform', 'equal'}
+        Energy sharing in ionization. 'opb' (default) uses each ionization process's ``opb_w_eV`` and falls back
+        to equal sharing, with a PhysicsWarning, where a process has none; the model-gas benchmarks use 'uniform'.
+    scattering : {'isotropic', 'screened-coulomb'}
+        Angular distribution of every process (a process whose file says 'screened-coulomb' uses it anyway).
+    threads : int, optional
+        numba threads for this run (default: numba's current setting); results do not depend on it.
+    frequency_Hz : float, optional
+        AC drive frequency f [Hz] (up to 10 GHz): E(t)/N = dc_offset_Td + reduced_field_Td · sin(2πft), or the
+        ``waveform`` repeated at f; None or 0 runs DC (unchanged). See :mod:`avalanche.engine.ac` for the method; the
+        result then also has ``phase``, ``phase_resolved`` and ``regime``, and the scalar estimates of the
+        phase-resolved quantities are their cycle averages.
+    phase_bins : int
+        AC: number of phase bins of ωt mod 2π (32).
+    dc_offset_Td : float
+        AC: constant part E_dc/N [Td] added to the oscillating field (0).
+    waveform : str, path or array, optional
+        AC: a periodic waveform instead of the sine, as a two-column CSV file (phase fraction in [0, 1) or, with
+        the header ``time_s,value``, time within the period) or an (M, 2) array; piecewise linear between the
+        nodes and scaled so that its peak |value| is ``reduced_field_Td``
+        (:func:`avalanche.engine.drive.load_waveform`).
+    **more
+        replicas (16), precision_on ('auto' or an estimate name), energy_cells (8192), energy_max_eV (initial grid
+        top, default 10 × initial_energy_eV), energy_limit_eV (1e5, runaway guard), initial_energy_eV (1.0, mean
+        of the initial Maxwellian), events_per_chunk (48, trial events per electron per chunk),
+        population_bounds ((0.6, 1.5)), eedf_bins (200), diffusion_skip (4 energy relaxation times),
+        diffusion_segment (3 × the skip).
+
+    Returns
+    -------
+    SwarmResult
+
+    Raises
+    ------
+    ConfigError
+        A bad argument (its name, value and the valid choices in the message).
+    AvalancheError
+        The swarm runs away beyond ``energy_limit_eV`` or a replica dies out.
+
+    References
+    ----------
+    Skullerud H R (1968) J. Phys. D 1 1567 (null collisions); Robson R E (1991) Aust. J. Phys. 44 685 (flux and
+    bulk transport coefficients; from memory).
+    """
+    unknown = set(more) - set(Settings.__dataclass_fields__)
+    if unknown:
+        name = sorted(unknown)[0]
+        raise ConfigError(f"swarm(): unknown argument '{name}'{_did_you_mean(name, Settings.__dataclass_fields__)}")
+    settings = make_settings(seed=seed, precision=precision, electrons=electrons, max_events=max_events,
+                             sharing=sharing, scattering=scattering, **more)
+    if isinstance(mixture, str):
+        mixture = Mixture(mixture)
+    if not isinstance(mixture, Mixture):
+        raise ConfigError(f"swarm(): mixture must be a Mixture or a gas string, got {type(mixture).__name__}")
+    reduced_field_Td = _positive("reduced_field_Td", reduced_field_Td)
+    drive = make_drive(reduced_field_Td, frequency_Hz, phase_bins, dc_offset_Td, waveform)
+    previous = numba.get_num_threads()
+    if threads is not None:
+        threads = _positive("threads", threads, integer=True)
+        if threads > numba.config.NUMBA_NUM_THREADS:
+            raise ConfigError(f"swarm(): argument threads = {threads} exceeds the {numba.config.NUMBA_NUM_THREADS} "
+                              "threads numba was started with (set NUMBA_NUM_THREADS)")
+        numba.set_num_threads(threads)
+    try:
+        ensure_compiled()
+        cpu0, wall0 = time.process_time(), time.perf_counter()
+        run = _Run(mixture, reduced_field_Td, settings, drive)
+        result = _simulate(run, reduced_field_Td)
+        result.cpu_seconds = time.process_time() - cpu0
+        result.wall_seconds = time.perf_counter() - wall0
+    finally:
+        numba.set_num_threads(previous)
+    return result
+
+
+def _energy_relaxation_time(run: _Run, mean_energy_eV: float, drift_velocity: float, frequency: float) -> float:
+    """τ_ε = (⟨ε⟩ − 3kT/2) / (e E W) [s], the time the field takes to supply the swarm's excess energy (exact
+    energy relaxation time of the Maxwell model); where that is not positive, the elastic estimate
+    M / (2 m ν) with the mixture's mean mass and the real collision frequency ν."""
+    tau = (mean_energy_eV - 1.5 * run.kT_eV) / (run.field_V_m * drift_velocity)
+    if math.isfinite(tau) and tau > 0:
+        return tau
+    fraction = sum(c.fraction * ELECTRON_MASS_kg / (c.cross_sections.mass_amu * ATOMIC_MASS_UNIT_kg)
+                   for c in run.mixture.components)
+    return 1.0 / (2.0 * fraction * frequency) if frequency > 0 else math.nan
+
+
+def _shrink_grid(run: _Run, recent_max_eV: float, factor: float) -> None:
+    """Lower the grid top to ``factor`` × the largest energy met recently, if that is below half the top.
+
+    Any top is exact as long as no electron passes it (a chunk where one does is redone on a doubled grid); a low
+    top means a low trial frequency and fewer null events.
+    """
+    top = run.grid.energy_max_eV
+    if recent_max_eV * factor < 0.5 * top:
+        run.anomalies["energy_grid_reductions"] += 1
+        run.resize_grid(max(recent_max_eV * factor, 1e-3))
+
+
+def _simulate(run: _Run, reduced_field_Td: float) -> SwarmResult:
+    s, ens = run.settings, run.ens
+    tallies = SwarmTallies.zeros(s.replicas, len(run.table.processes), s.eedf_bins)
+    series = _Series(s.replicas)
+    t = 0.0
+    sampling = False
+    relaxation_time = math.nan
+    ionized = False
+    nu_eff = 0.0
+    start = ens.moments()
+    mature_from = window_end = math.inf
+    skip = segment = math.nan
+    stop_reason = "max_events"
+    ion_kinds = np.array([k in IONIZING_KINDS for k in run.table.kinds])
+    precision_on = s.precision_on
+    drive = run.drive  # AC: chunks end on a grid holding every period boundary; tests and stops at boundaries only
+    phase_tallies = ac.PhaseTallies.zeros(s.replicas, drive.phase_bins, len(run.table.processes)) if drive else None
+    slack = 1e-9 * drive.period_s if drive else 0.0
+    while True:
+        dt = run.chunk_duration(nu_eff)
+        reference = np.nan_to_num(start[:, :3])
+        out, t_end = run.advance(t, t + dt if drive is None else drive.chunk_end(t, dt), reference,
+                                 t + slack >= mature_from)
+        t_start, t, dt = t, t_end, t_end - t
+        end = ens.moments()
+        sums, counts = out.sums, out.counts
+        exposure = sums[:, K.SUM_EXPOSURE]
+        net = counts[:, K.COUNT_CREATED].sum() - counts[:, K.COUNT_REMOVED].sum()
+        nu_eff = net / exposure.sum() if exposure.sum() > 0 else 0.0
+        series.add(time_s=t, duration_s=dt, electrons=ens.count.sum(), sampling=float(sampling),
+                   energy_max_eV=run.grid.energy_max_eV, log_weight=ens.log_weight.mean(),
+                   events=counts[:, K.COUNT_EVENTS], energy_sum=sums[:, K.SUM_ENERGY], vz_sum=sums[:, K.SUM_VZ],
+                   real=counts[:, K.COUNT_REAL], exposure=exposure, max_energy=sums[:, K.SUM_MAX_ENERGY],
+                   net_production=np.full(s.replicas, net / s.replicas))
+        boundary = drive is None or drive.at_boundary(t)
+        if drive is not None:
+            series.add(net=(counts[:, K.COUNT_CREATED] - counts[:, K.COUNT_REMOVED]).astype(float),
+                       power=run.phase_out.sums[:, :, K.PHASE_POWER].sum(axis=1))
+        if not sampling:
+            ionized = ionized or bool(out.process_counts[:, ion_kinds].sum() > 0)
+            if drive is None:
+                ok, energy, drift, frequency = _stationary(series, t)
+            else:  # the field's power per electron over the field amplitude stands in for W
+                ok, energy, power, frequency = (ac.periodic_stationary(series, drive, t) if boundary
+                                                else (False, math.nan, math.nan, math.nan))
+                drift = power / run.field_V_m
+            tau = _energy_relaxation_time(run, energy, drift, frequency)
+            enough = len(series) >= RELAXATION_MIN_CHUNKS and (
+                not math.isfinite(tau) or t >= RELAXATION_MIN_ENERGY_TIMES * tau)
+            forced = boundary and run.events >= 0.5 * s.max_events
+            if (ok and enough) or forced:
+                if forced and not (ok and enough):
+                    run.anomalies["not_relaxed"] = 1
+                    warnings.warn(f"E/N = {reduced_field_Td:g} Td: the swarm did not pass the relaxation test "
+                                  f"within half of max_events = {s.max_events:g}; sampling starts anyway (raise "
+                                  "max_events)", PhysicsWarning, stacklevel=3)
+                sampling = True
+                relaxation_time = t
+                _shrink_grid(run, float(series.array("max_energy")[len(series) // 2:].max()), 1.5)
+                run.eedf_max_eV = run.grid.energy_max_eV
+                if not math.isfinite(tau):
+                    tau = dt
+                skip = s.diffusion_skip * tau
+                segment = max(s.diffusion_segment * skip, 4.0 * dt)
+                if drive is not None:  # AC: position windows of whole periods, stop rule on cycle averages
+                    skip, segment = (drive.period_s * math.ceil(x / drive.period_s - 1e-9) for x in (skip, segment))
+                    if precision_on == "auto":
+                        precision_on = "ionization_rate_coefficient" if ionized else "mean_energy_eV"
+                if precision_on == "auto":
+                    precision_on = "alpha_N" if ionized else "drift_velocity_flux"
+            elif len(series) % RELAXATION_MIN_CHUNKS == 0:
+                _shrink_grid(run, float(series.array("max_energy")[-RELAXATION_MIN_CHUNKS:].max()), 2.0)
+        else:
+            tallies.add_chunk(sums, counts, out.hist, out.process_counts, out.extrapolated, dt)
+            if drive is not None:
+                phase_tallies.add(run.phase_out)
+            if t_start + slack >= mature_from:
+                tallies.add_mature_chunk(sums, counts, dt, start[:, 2:5], end[:, 2:5])
+        if ens.control():
+            run.anomalies["population_controls"] += 1
+            start = ens.moments()
+        else:
+            start = end
+        if sampling and t + slack >= window_end:
+            estimates = swarm_estimates(tallies, _context(run, tallies))
+            if drive is not None:
+                estimates.update(_phase_estimates(run, phase_tallies).cycle)
+            if estimates[precision_on].relative_stderr < s.precision:
+                stop_reason = "precision"
+                break
+        if sampling and (t + slack >= window_end or not math.isfinite(window_end)):
+            ens.reset_positions()
+            start = ens.moments()
+            mature_from = t + skip
+            window_end = mature_from + segment
+        if run.events >= s.max_events and tallies["events"].sum() > 0 and boundary:
+            break
+    run.windows = {"skip_s": skip, "segment_s": segment}
+    result = _result(run, reduced_field_Td, tallies, series, relaxation_time, stop_reason, precision_on)
+    if drive is not None:
+        ac.finish(result, drive, _phase_estimates(run, phase_tallies), phase_tallies, run.table.target_density_m3,
+                  run.table.scatter == K.SCATTER_SCREENED_COULOMB, run.kT_eV)
+    return result
+
+
+def _phase_estimates(run: _Run, phase_tallies: ac.PhaseTallies) -> ac.PhaseEstimates:
+    t = run.table
+    return ac.phase_estimates(phase_tallies, run.drive, t.keys, t.kinds, t.target_density_m3,
+                              run.mixture.number_density_m3)
+
+
+def _context(run: _Run, tallies: SwarmTallies) -> EstimatorContext:
+    edges = np.linspace(0.0, run.eedf_max_eV, run.settings.eedf_bins + 1)
+    return EstimatorContext(number_density_m3=run.mixture.number_density_m3, field_V_m=run.field_V_m,
+                            process_keys=run.table.keys, process_kinds=run.table.kinds,
+                            target_density_m3=run.table.target_density_m3, energy_edges_eV=edges)
+
+
+def _result(run: _Run, reduced_field_Td: float, tallies: SwarmTallies, series: _Series, relaxation_time: float,
+            stop_reason: str, precision_on: str) -> SwarmResult:
+    ctx = _context(run, tallies)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", RuntimeWarning)
+        estimates = swarm_estimates(tallies, ctx)
+    notice = extrapolation_notice(f"E/N = {reduced_field_Td:g} Td", tallies["extrapolated_counts"],
+                                  tallies["process_counts"], run.table.keys)
+    if notice:
+        warnings.warn(notice, PhysicsWarning, stacklevel=3)
+    if tallies["mature_events"].sum() == 0:
+        warnings.warn(f"E/N = {reduced_field_Td:g} Td: no chunk was sampled for position moments (bulk drift, "
+                      "diffusion, Townsend coefficients are NaN); raise max_events", PhysicsWarning, stacklevel=3)
+    events = series.array("events")
+    pooled = {
+        "mean_energy_eV": series.array("energy_sum").sum(axis=1) / events.sum(axis=1),
+        "drift_velocity_flux": series.array("vz_sum").sum(axis=1) / events.sum(axis=1),
+        "collision_frequency": series.array("real").sum(axis=1) / series.array("exposure").sum(axis=1),
+        "net_production_frequency": (series.array("net_production").sum(axis=1)
+                                     / series.array("exposure").sum(axis=1)),
+    }
+    time_series = {name: series.array(name) for name in ("time_s", "duration_s", "sampling", "electrons",
+                                                         "log_weight", "energy_max_eV")}
+    time_series.update(pooled)
+    mix = run.mixture
+    anomalies = dict(run.anomalies)
+    anomalies["final_energy_max_eV"] = run.grid.energy_max_eV
+    inputs = {
+        "reduced_field_Td": float(reduced_field_Td), "mixture": mix.describe(), "label": mix.label,
+        "seed": run.settings.seed, "settings": dict(asdict(run.settings), precision_on=precision_on),
+        "package_version": __version__, "processes": list(run.table.keys),
+        "provenance": {c.name: c.cross_sections.provenance for c in mix.components},
+        "threads": numba.get_num_threads(), "windows": run.windows,
+    }
+    return SwarmResult(
+        reduced_field_Td=float(reduced_field_Td), estimates=estimates,
+        rate_coefficients=rate_coefficients(tallies, ctx),
+        eedf=energy_distribution(tallies, ctx), events=int(run.events), cpu_seconds=0.0, wall_seconds=0.0,
+        stop_reason=stop_reason, relaxation_time_s=float(relaxation_time),
+        sampled_time_s=float(tallies["sampled_time_s"][0]), extrapolated_fraction=extrapolated_fraction(tallies),
+        anomalies=anomalies, inputs=inputs, time_series=time_series, tallies=tallies)
+
+
+def dc_equivalent(mixture, result, **swarm_options):
+    """A DC swarm run at the effective field E_eff/N of an AC ``result`` (``result.regime["effective_field_Td"]``)
+    — the DC-equivalent numbers of the effective-field regime (for the quasi-static regime average DC runs over
+    the phase with :func:`phase_average` instead). ``swarm_options`` go to :func:`swarm`."""
+    if result.regime is None:
+        raise ConfigError("dc_equivalent(): the result is not from an AC run (no regime)")
+    field = result.regime["effective_field_Td"]
+    if not (math.isfinite(field) and field > 0):
+        raise ConfigError(f"dc_equivalent(): the result's effective field is {field!r} Td; nothing to run")
+    return swarm(mixture, field, **swarm_options)

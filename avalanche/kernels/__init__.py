@@ -1,0 +1,12 @@
+"""Kernels: numba functions over plain arrays only (random numbers, free flights, collisions, the time-of-flight
+and steady-state Townsend chunks, the jit settings). May import nothing of the package but ``constants``.
+
+The names below are the kernel interface the engine uses as ``K.name``; the steady-state chunk is
+:mod:`avalanche.kernels.steady_state`.
+"""
+
+from .collisions import *  # noqa: F403
+from .collisions import ENERGY_PER_SPEED2_eV  # noqa: F401  (not matched by * : lower-case unit suffix)
+from .flight import SINE_SERIES_LIMIT, field_flight, instantaneous_accel, phase_bin, sine_flight, table_flight  # noqa: F401
+from .jit import JIT_OPTIONS, jit, jit_parallel  # noqa: F401
+from .time_of_flight import advance_chunk  # noqa: F401

@@ -1,0 +1,306 @@
+"""Numba kernels of the null-collision Monte Carlo: random numbers, collision kinematics and the tally layout.
+
+Everything here works on plain float64/int64/uint64 arrays and scalars, writes into preallocated outputs and never
+raises: anomalies (an electron above the energy grid, a full particle store, a collision frequency above the trial
+frequency) are counted in an output array that Python checks after each chunk. The jit options come from
+:mod:`avalanche.kernels.jit` (one place for every kernel), the free flight in uniform, sinusoidal and tabulated
+fields from :mod:`avalanche.kernels.flight` and the time-of-flight chunk from
+:mod:`avalanche.kernels.time_of_flight`; every function is a plain Python function underneath,
+so the same source runs with ``NUMBA_DISABLE_JIT=1`` (slowly) in a test.
+
+Conventions
+-----------
+The electric field points along −z, so the electric force on an electron, and its drift, point along +z: the
+acceleration passed to the kernels is ``e E / m`` along +z and every reported drift velocity is positive.
+Velocities are in m s⁻¹, positions in m, times in s, energies in eV.
+
+Random numbers come from xoshiro256** (Blackman & Vigna 2021, ACM Trans. Math. Softw. 47 36), one generator per
+replica, held in four local uint64 scalars inside the loop (state in and out through a ``(R, 4)`` array).
+
+References
+----------
+Skullerud H R (1968) J. Phys. D 1 1567, doi:10.1088/0022-3727/1/11/423 (null-collision method).
+Okhrimovskyy A, Bogaerts A & Gijbels R (2002) Phys. Rev. E 65 037402, doi:10.1103/PhysRevE.65.037402
+(screened-Coulomb angular distribution, their eq. (9) for cos χ and eq. (11) for σ_m/σ_T; from memory).
+Opal C B, Peterson W K & Beaty E C (1971) J. Chem. Phys. 55 4100, doi:10.1063/1.1676707 (secondary energies).
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+from ..constants import ELEMENTARY_CHARGE_C, ELECTRON_MASS_kg
+from .jit import jit
+
+ENERGY_PER_SPEED2_eV = 0.5 * ELECTRON_MASS_kg / ELEMENTARY_CHARGE_C
+"""ε [eV] = ENERGY_PER_SPEED2_eV · v² [m² s⁻²]."""
+TWO_PI = 2.0 * math.pi
+UNIT_53 = 1.0 / 9007199254740992.0  # 2**-53
+
+# Process action codes (the kernel's process table is generic: a new action is a new code here).
+ACTION_ELASTIC = 0
+ACTION_EXCITATION = 1
+ACTION_IONIZATION = 2
+ACTION_ATTACHMENT = 3
+ACTION_PENNING = 4      # a pseudo-process row with zero frequency (never selected): its count slot tallies Penning
+# Angular distributions.
+SCATTER_ISOTROPIC = 0
+SCATTER_SCREENED_COULOMB = 1
+# Energy sharing rules of ionization.
+SHARING_EQUAL = 0
+SHARING_UNIFORM = 1
+SHARING_OPB = 2
+
+# Columns of the per-replica float tallies of one chunk (sums over trial events unless noted).
+SUM_ENERGY = 0          # Σ ε [eV]
+SUM_VZ = 1              # Σ v_z [m/s]
+SUM_ZVZ = 2             # Σ (z − z_ref) v_z [m²/s]
+SUM_Z = 3               # Σ (z − z_ref) [m]
+SUM_XYV = 4             # Σ (x − x_ref) v_x + (y − y_ref) v_y [m²/s]
+SUM_EXPOSURE = 5        # ∫ n dt over the chunk [s] (electron-seconds, unweighted)
+SUM_MAX_ENERGY = 6      # largest energy met at an event or a chunk end [eV] (a maximum, not a sum)
+N_SUMS = 7
+# Columns of the per-replica integer counters of one chunk.
+COUNT_EVENTS = 0        # trial events (real and null)
+COUNT_REAL = 1          # real collisions
+COUNT_CREATED = 2       # electrons created (ionization, Penning transfer)
+COUNT_REMOVED = 3       # electrons removed (attachment)
+COUNT_EEDF_OVERFLOW = 4  # trial events above the last histogram bin
+COUNT_ABOVE_BOUND = 5   # interpolated collision frequency above the trial frequency (must stay 0)
+COUNT_ABOVE_GRID = 6    # 1 if an electron left the energy grid: the chunk must be redone on a larger grid
+COUNT_OVERFLOW = 7      # 1 if the particle store was full: the chunk must be redone with a larger store
+N_COUNTS = 8
+# AC: columns of the per-replica, per-phase-bin tallies (``phase_sums`` (R, B_φ, N_PHASE_SUMS) and
+# ``phase_counts`` (R, B_φ, N_PHASE_COUNTS)); real collisions per bin and process go to ``phase_process``.
+PHASE_ENERGY = 0        # Σ ε at trial events in the bin [eV]
+PHASE_VZ = 1            # Σ v_z [m/s]
+PHASE_EXPOSURE = 2      # ∫ n dt inside the bin [s], estimated as (trial events in the bin) / ν* (advance_chunk)
+PHASE_POWER = 3         # Σ a(t) v_z [m² s⁻³] (× m/e: power per electron from the field [eV/s])
+N_PHASE_SUMS = 4
+PHASE_EVENTS = 0        # trial events in the bin
+PHASE_CREATED = 1       # electrons created (ionization, Penning transfer)
+PHASE_REMOVED = 2       # electrons removed (attachment)
+N_PHASE_COUNTS = 3
+
+
+# ------------------------------------------------------------------------------------------- random numbers
+
+@jit
+def _rotl(x, k):
+    return (x << np.uint64(k)) | (x >> np.uint64(64 - k))
+
+
+@jit
+def next_uniform(s0, s1, s2, s3):
+    """One xoshiro256** step: a uniform double in [0, 1) from the top 53 bits, and the new state."""
+    result = _rotl(s1 * np.uint64(5), 7) * np.uint64(9)
+    t = s1 << np.uint64(17)
+    s2 ^= s0
+    s3 ^= s1
+    s1 ^= s2
+    s0 ^= s3
+    s2 ^= t
+    s3 = _rotl(s3, 45)
+    return (result >> np.uint64(11)) * UNIT_53, s0, s1, s2, s3
+
+
+# Free flight (uniform, sine and tabulated fields) lives in _flight_kernels; re-exported here.
+
+# ----------------------------------------------------------------------------------- collision kinematics
+
+@jit
+def rotate_direction(ux, uy, uz, cos_chi, phi):
+    """The unit vector at polar angle χ (``cos_chi``) and azimuth φ [rad] about the unit vector (ux, uy, uz)."""
+    sin_chi = math.sqrt(max(0.0, 1.0 - cos_chi * cos_chi))
+    cos_phi = math.cos(phi)
+    sin_phi = math.sin(phi)
+    rho2 = ux * ux + uy * uy
+    if rho2 < 1e-20:
+        sign = 1.0 if uz >= 0.0 else -1.0
+        return sin_chi * cos_phi, sin_chi * sin_phi, sign * cos_chi
+    rho = math.sqrt(rho2)
+    nx = ux * cos_chi + sin_chi * (ux * uz * cos_phi - uy * sin_phi) / rho
+    ny = uy * cos_chi + sin_chi * (uy * uz * cos_phi + ux * sin_phi) / rho
+    nz = uz * cos_chi - sin_chi * rho * cos_phi
+    return nx, ny, nz
+
+
+@jit
+def scattering_cosine(model, energy_eV, u):
+    """cos χ of one scattering event from a uniform number ``u`` in [0, 1).
+
+    Isotropic: cos χ = 1 − 2u. Screened Coulomb (Okhrimovskyy et al. 2002, eq. (9), from memory):
+    cos χ = 1 − 2u(1 − ξ)/(1 + ξ(1 − 2u)) with ξ(ε) = 4ε/(1 + 4ε), ε in eV.
+    """
+    if model == SCATTER_ISOTROPIC:
+        return 1.0 - 2.0 * u
+    xi = 4.0 * energy_eV / (1.0 + 4.0 * energy_eV)
+    return 1.0 - 2.0 * u * (1.0 - xi) / (1.0 + xi * (1.0 - 2.0 * u))
+
+
+@jit
+def new_direction(model, ux, uy, uz, energy_eV, u, phi):
+    """Direction after scattering from the unit vector (ux, uy, uz), at ``energy_eV`` [eV].
+
+    Isotropic: uniform on the sphere (cos θ = 1 − 2u, azimuth φ), whatever the incident direction. Screened
+    Coulomb: turned by χ from :func:`scattering_cosine` and azimuth φ about the incident direction.
+    """
+    if model == SCATTER_ISOTROPIC:
+        cos_t = 1.0 - 2.0 * u
+        sin_t = math.sqrt(max(0.0, 1.0 - cos_t * cos_t))
+        return sin_t * math.cos(phi), sin_t * math.sin(phi), cos_t
+    return rotate_direction(ux, uy, uz, scattering_cosine(model, energy_eV, u), phi)
+
+
+@jit
+def elastic_velocity(vx, vy, vz, tx, ty, tz, electron_fraction, target_fraction, model, energy_eV, u, phi):
+    """Electron velocity after an elastic collision with a target of velocity (tx, ty, tz).
+
+    Exact two-body kinematics: the relative velocity g = v − V turns in the centre-of-mass frame at constant |g|
+    (direction from :func:`new_direction`), and v' = V_cm + M/(m + M) g'. ``electron_fraction`` = m/(m + M),
+    ``target_fraction`` = M/(m + M). The target's velocity after the collision is V_cm − m/(m + M) g'.
+    """
+    gx = vx - tx
+    gy = vy - ty
+    gz = vz - tz
+    g = math.sqrt(gx * gx + gy * gy + gz * gz)
+    if g == 0.0:
+        return vx, vy, vz
+    nx, ny, nz = new_direction(model, gx / g, gy / g, gz / g, energy_eV, u, phi)
+    scale = target_fraction * g
+    return (electron_fraction * vx + target_fraction * tx + scale * nx,
+            electron_fraction * vy + target_fraction * ty + scale * ny,
+            electron_fraction * vz + target_fraction * tz + scale * nz)
+
+
+@jit
+def turned_velocity(vx, vy, vz, speed, model, energy_eV, u, phi):
+    """A velocity of magnitude ``speed`` [m/s] scattered from the direction of (vx, vy, vz) at ``energy_eV``.
+
+    Used for inelastic collisions in the laboratory frame with the target at rest (recoil neglected: an error of
+    order m/M in the energy, common practice).
+    """
+    v = math.sqrt(vx * vx + vy * vy + vz * vz)
+    if v == 0.0:
+        nx, ny, nz = new_direction(model, 0.0, 0.0, 1.0, energy_eV, u, phi)
+    else:
+        nx, ny, nz = new_direction(model, vx / v, vy / v, vz / v, energy_eV, u, phi)
+    return speed * nx, speed * ny, speed * nz
+
+
+@jit
+def secondary_energy_eV(excess_eV, rule, w_eV, u):
+    """Energy [eV] of the ejected electron when ``excess_eV`` = ε − I is shared; the primary keeps the rest.
+
+    equal: half each. uniform: every split equally likely. Opal–Peterson–Beaty (1971): the slower electron's
+    energy ε_s ∈ [0, excess/2] with density ∝ 1/(1 + (ε_s/w)²), sampled as ε_s = w tan(u atan(excess/(2w))).
+    """
+    if rule == SHARING_EQUAL:
+        return 0.5 * excess_eV
+    if rule == SHARING_UNIFORM:
+        return u * excess_eV
+    return w_eV * math.tan(u * math.atan(0.5 * excess_eV / w_eV))
+
+
+@jit
+def speed_from_energy(energy_eV):
+    """Electron speed [m/s] of kinetic energy ``energy_eV`` [eV]."""
+    return math.sqrt(energy_eV / ENERGY_PER_SPEED2_eV)
+
+
+@jit
+def target_velocity(thermal_speed, s0, s1, s2, s3):
+    """A target velocity from the Maxwellian of thermal speed √(kT/M) (Box–Muller), and the new generator state."""
+    a1, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
+    a2, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
+    a3, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
+    a4, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
+    radius = thermal_speed * math.sqrt(-2.0 * math.log(1.0 - a1))
+    tz = thermal_speed * math.sqrt(-2.0 * math.log(1.0 - a3)) * math.cos(TWO_PI * a4)
+    return radius * math.cos(TWO_PI * a2), radius * math.sin(TWO_PI * a2), tz, s0, s1, s2, s3
+
+
+@jit
+def select_process(level, c, f, nu_cumulative, n_proc):
+    """Index of the process whose cumulative-frequency interval holds ``level`` [s⁻¹] at grid cell c, fraction f
+    (linear interpolation inside the cell); the last process when ``level`` lies above all but it."""
+    k = 0
+    while k < n_proc - 1:
+        low = nu_cumulative[c, k]
+        if level < low + f * (nu_cumulative[c + 1, k] - low):
+            break
+        k += 1
+    return k
+
+
+@jit
+def ionization_velocities(ux, uy, uz, energy_eV, loss_eV, sharing, w_eV, scatter, u, phi, s0, s1, s2, s3):
+    """Velocities of the scattered and of the ejected electron of an ionization at ``energy_eV`` [eV] (the excess
+    ε − I shared by :func:`secondary_energy_eV`), and the new generator state."""
+    excess = energy_eV - loss_eV
+    a1, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
+    a2, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
+    a3, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
+    ejected = secondary_energy_eV(excess, sharing, w_eV, a1)
+    kept = excess - ejected
+    wx, wy, wz = turned_velocity(ux, uy, uz, speed_from_energy(ejected), scatter, ejected, a2, TWO_PI * a3)
+    ux, uy, uz = turned_velocity(ux, uy, uz, speed_from_energy(kept), scatter, kept, u, phi)
+    return ux, uy, uz, wx, wy, wz, s0, s1, s2, s3
+
+
+@jit
+def penning_velocity(energy_eV, s0, s1, s2, s3):
+    """Velocity of the electron a Penning transfer creates: energy ε_level − I_B [eV], isotropic direction."""
+    a2, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
+    a3, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
+    speed = speed_from_energy(energy_eV)
+    wx, wy, wz = new_direction(SCATTER_ISOTROPIC, 0.0, 0.0, 1.0, 0.0, a2, TWO_PI * a3)
+    return speed * wx, speed * wy, speed * wz, s0, s1, s2, s3
+
+
+CHILD_NONE = 0
+CHILD_IONIZATION = 1
+CHILD_PENNING = 2
+
+
+@jit
+def scatter_electron(kind, k, ux, uy, uz, energy_eV, action_args, s0, s1, s2, s3):
+    """A real, non-attaching collision with process k: the electron's new velocity and the electron it creates.
+
+    ``action_args`` = (loss_eV, electron_fraction, target_fraction, thermal_speed, scatter, sharing, w_eV,
+    penning_probability, penning_energy_eV), the per-process tables. Elastic: two-body kinematics with a
+    Maxwellian target (:func:`target_velocity`); excitation: the threshold is lost, then with probability r_k a
+    Penning transfer creates an electron of ε_level − I_B (:func:`penning_velocity`); ionization: the excess is
+    shared (:func:`ionization_velocities`). Returns (ux, uy, uz, child, wx, wy, wz, s0, s1, s2, s3) with child one
+    of CHILD_NONE, CHILD_IONIZATION, CHILD_PENNING and (wx, wy, wz) the created electron's velocity. The caller
+    stores the child (or aborts its chunk when its store is full: the chunk is then redone from its saved state).
+    """
+    (loss, electron_fraction, target_fraction, thermal_speed, scatter, sharing, w_eV, penning_probability,
+     penning_energy_eV) = action_args
+    u, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
+    u_phi, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
+    phi = TWO_PI * u_phi
+    if kind == ACTION_ELASTIC:
+        tx = 0.0
+        ty = 0.0
+        tz = 0.0
+        if thermal_speed[k] > 0.0:
+            tx, ty, tz, s0, s1, s2, s3 = target_velocity(thermal_speed[k], s0, s1, s2, s3)
+        ux, uy, uz = elastic_velocity(ux, uy, uz, tx, ty, tz, electron_fraction[k], target_fraction[k], scatter[k],
+                                      energy_eV, u, phi)
+        return ux, uy, uz, CHILD_NONE, 0.0, 0.0, 0.0, s0, s1, s2, s3
+    if kind == ACTION_EXCITATION:
+        new_energy = energy_eV - loss[k]
+        ux, uy, uz = turned_velocity(ux, uy, uz, speed_from_energy(new_energy), scatter[k], new_energy, u, phi)
+        # Penning transfer (avalanche.gas.penning): the excited atom ionizes the receiver with probability r_k.
+        if penning_probability[k] > 0.0:
+            a1, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
+            if a1 < penning_probability[k]:
+                wx, wy, wz, s0, s1, s2, s3 = penning_velocity(penning_energy_eV[k], s0, s1, s2, s3)
+                return ux, uy, uz, CHILD_PENNING, wx, wy, wz, s0, s1, s2, s3
+        return ux, uy, uz, CHILD_NONE, 0.0, 0.0, 0.0, s0, s1, s2, s3
+    ux, uy, uz, wx, wy, wz, s0, s1, s2, s3 = ionization_velocities(
+        ux, uy, uz, energy_eV, loss[k], sharing[k], w_eV[k], scatter[k], u, phi, s0, s1, s2, s3)
+    return ux, uy, uz, CHILD_IONIZATION, wx, wy, wz, s0, s1, s2, s3

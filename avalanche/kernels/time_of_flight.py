@@ -1,0 +1,350 @@
+"""Numba kernel of the time-of-flight swarm: one chunk of free flights and collisions for every replica.
+
+Conventions and references as in :mod:`avalanche.kernels.collisions`; the free flight comes from
+:mod:`avalanche.kernels.flight`.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+from numba import prange
+
+from .collisions import (
+    ACTION_ATTACHMENT,
+    CHILD_NONE,
+    CHILD_PENNING,
+    COUNT_ABOVE_BOUND,
+    COUNT_ABOVE_GRID,
+    COUNT_CREATED,
+    COUNT_EEDF_OVERFLOW,
+    COUNT_EVENTS,
+    COUNT_OVERFLOW,
+    COUNT_REAL,
+    COUNT_REMOVED,
+    N_PHASE_COUNTS,
+    N_PHASE_SUMS,
+    PHASE_CREATED,
+    PHASE_ENERGY,
+    PHASE_EVENTS,
+    PHASE_EXPOSURE,
+    PHASE_POWER,
+    PHASE_REMOVED,
+    PHASE_VZ,
+    SUM_ENERGY,
+    SUM_EXPOSURE,
+    SUM_MAX_ENERGY,
+    SUM_VZ,
+    SUM_XYV,
+    SUM_Z,
+    SUM_ZVZ,
+    ENERGY_PER_SPEED2_eV,
+    next_uniform,
+    scatter_electron,
+    select_process,
+)
+from .flight import (
+    field_flight,
+    instantaneous_accel,
+    phase_bin,
+    sine_flight,
+    table_flight,
+)
+from .jit import jit, jit_parallel
+
+# ---------------------------------------------------------------------------------------------- one chunk
+
+@jit
+def _store(x, y, z, vx, vy, vz, r, i, px, py, pz, ux, uy, uz):
+    """Write one electron's position and velocity at slot i of replica r."""
+    x[r, i] = px
+    y[r, i] = py
+    z[r, i] = pz
+    vx[r, i] = ux
+    vy[r, i] = uy
+    vz[r, i] = uz
+
+
+@jit
+def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc, accel_ac, omega, phase,
+                     inv_cell_eV, n_cells, nu_star, nu_total, nu_cumulative, action, loss_eV, electron_fraction,
+                     target_fraction, thermal_speed, scatter, sharing, w_eV, table_max_eV, reference,
+                     tally_positions, hist_inv_width_eV, sums, counts, hist, process_counts, extrapolated,
+                     penning_probability, penning_energy_eV, penning_slot, period_s, wave_time, wave_accel,
+                     wave_F, wave_G, phase_sums, phase_counts, phase_process):
+    s0 = rng[r, 0]
+    s1 = rng[r, 1]
+    s2 = rng[r, 2]
+    s3 = rng[r, 3]
+    capacity = x.shape[1]
+    n_bins = hist.shape[1]
+    n_proc = action.shape[0]
+    for b in range(n_bins):
+        hist[r, b] = 0
+    for k in range(n_proc):
+        process_counts[r, k] = 0
+        extrapolated[r, k] = 0
+    # -- AC block: phase-resolved tallies (period_s > 0 only) --
+    ac = period_s > 0.0
+    table = wave_time.shape[0] > 0
+    sine = ac and not table
+    cos_theta = 1.0
+    sin_theta = 0.0
+    n_phase = phase_sums.shape[1]
+    inv_period = 1.0 / period_s if ac else 0.0
+    pb = 0
+    # local (contiguous, unaliased) tallies per phase bin, copied to the outputs at the end; empty for DC
+    bin_sums = np.zeros((n_phase if ac else 0, N_PHASE_SUMS))
+    bin_counts = np.zeros((n_phase if ac else 0, N_PHASE_COUNTS), dtype=np.int64)
+    bin_process = np.zeros((n_phase if ac else 0, n_proc), dtype=np.int64)
+    # -- end AC block --
+    x_ref = reference[r, 0]
+    y_ref = reference[r, 1]
+    z_ref = reference[r, 2]
+    sum_energy = 0.0
+    sum_vz = 0.0
+    sum_zvz = 0.0
+    sum_z = 0.0
+    sum_xyv = 0.0
+    exposure = 0.0
+    max_energy = 0.0
+    events = 0
+    real = 0
+    created = 0
+    removed = 0
+    eedf_overflow = 0
+    above_bound = 0
+    status = 0  # 0: fine, 1: above the energy grid, 2: particle store full
+    inv_nu_star = 1.0 / nu_star
+    action_args = (loss_eV, electron_fraction, target_fraction, thermal_speed, scatter, sharing, w_eV,
+                   penning_probability, penning_energy_eV)
+    n = count[r]
+    n_initial = n
+    write = 0
+    i = 0
+    while i < n:
+        px = x[r, i]
+        py = y[r, i]
+        pz = z[r, i]
+        ux = vx[r, i]
+        uy = vy[r, i]
+        uz = vz[r, i]
+        t = t0 if i < n_initial else birth[r, i]
+        vperp2 = ux * ux + uy * uy  # v_x² + v_y² changes only in collisions
+        alive = True
+        if sine:  # AC: cos, sin of the drive's phase at the electron's start, then carried from flight to flight
+            cos_theta = math.cos(omega * t + phase)
+            sin_theta = math.sin(omega * t + phase)
+        while True:
+            u, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
+            tau = -math.log(1.0 - u) * inv_nu_star
+            last = t + tau >= t1
+            if last:
+                tau = t1 - t
+            if sine:
+                dvz, dz, cos_theta, sin_theta = sine_flight(tau, accel_dc, accel_ac, omega, cos_theta, sin_theta)
+            elif table:  # AC: tabulated waveform
+                dvz, dz = table_flight(t, tau, accel_dc, period_s, wave_time, wave_accel, wave_F, wave_G)
+            else:
+                dvz, dz = field_flight(t, tau, accel_dc, accel_ac, omega, phase)
+            px += ux * tau
+            py += uy * tau
+            pz += uz * tau + dz
+            uz += dvz
+            t += tau
+            exposure += tau
+            energy = ENERGY_PER_SPEED2_eV * (vperp2 + uz * uz)
+            if energy > max_energy:
+                max_energy = energy
+            e_cell = energy * inv_cell_eV
+            if e_cell >= n_cells:
+                status = 1
+                break
+            if last:
+                break
+            # A trial event: with a constant trial frequency these are Poisson times, so sums of the
+            # pre-collision state over them are time integrals of the swarm (divided by ν*).
+            events += 1
+            sum_energy += energy
+            sum_vz += uz
+            if tally_positions:
+                dzr = pz - z_ref
+                sum_zvz += dzr * uz
+                sum_z += dzr
+                sum_xyv += (px - x_ref) * ux + (py - y_ref) * uy
+            if ac:  # AC: the event's phase bin
+                pb = phase_bin(t, inv_period, n_phase)
+                bin_counts[pb, PHASE_EVENTS] += 1
+                bin_sums[pb, PHASE_ENERGY] += energy
+                bin_sums[pb, PHASE_VZ] += uz
+                if sine:
+                    bin_sums[pb, PHASE_POWER] += uz * (accel_dc + accel_ac * sin_theta)
+                else:
+                    bin_sums[pb, PHASE_POWER] += uz * instantaneous_accel(t, accel_dc, accel_ac, omega, phase,
+                                                                          period_s, wave_time, wave_accel)
+            b = int(energy * hist_inv_width_eV)
+            if b < n_bins:
+                hist[r, b] += 1
+            else:
+                eedf_overflow += 1
+            u, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
+            level = u * nu_star
+            c = int(e_cell)
+            f = e_cell - c
+            low = nu_total[c]
+            nu = low + f * (nu_total[c + 1] - low)
+            if nu > nu_star:
+                above_bound += 1
+            if level >= nu:
+                continue  # null collision
+            k = select_process(level, c, f, nu_cumulative, n_proc)
+            if energy < loss_eV[k]:
+                continue  # inside the threshold's grid cell but below the threshold: rejected like a null event
+            real += 1
+            process_counts[r, k] += 1
+            if ac:
+                bin_process[pb, k] += 1
+            if energy > table_max_eV[k]:
+                extrapolated[r, k] += 1
+            kind = action[k]
+            if kind == ACTION_ATTACHMENT:
+                alive = False
+                removed += 1
+                if ac:
+                    bin_counts[pb, PHASE_REMOVED] += 1
+                break
+            ux, uy, uz, child, wx, wy, wz, s0, s1, s2, s3 = scatter_electron(kind, k, ux, uy, uz, energy, action_args,
+                                                                            s0, s1, s2, s3)
+            if child != CHILD_NONE:
+                if n >= capacity:
+                    status = 2
+                    break
+                _store(x, y, z, vx, vy, vz, r, n, px, py, pz, wx, wy, wz)
+                birth[r, n] = t
+                n += 1
+                created += 1
+                if child == CHILD_PENNING:
+                    process_counts[r, penning_slot[k]] += 1
+                if ac:
+                    bin_counts[pb, PHASE_CREATED] += 1
+                    if child == CHILD_PENNING:
+                        bin_process[pb, penning_slot[k]] += 1
+            vperp2 = ux * ux + uy * uy
+        if status != 0:
+            break
+        if alive:
+            _store(x, y, z, vx, vy, vz, r, write, px, py, pz, ux, uy, uz)
+            write += 1
+        i += 1
+    if status == 0:
+        count[r] = write
+    if ac:  # AC: the exposure of a phase bin from its trial events (see advance_chunk)
+        for b in range(n_phase):
+            bin_sums[b, PHASE_EXPOSURE] = bin_counts[b, PHASE_EVENTS] * inv_nu_star
+            for j in range(N_PHASE_SUMS):
+                phase_sums[r, b, j] = bin_sums[b, j]
+            for j in range(N_PHASE_COUNTS):
+                phase_counts[r, b, j] = bin_counts[b, j]
+            for k in range(n_proc):
+                phase_process[r, b, k] = bin_process[b, k]
+    rng[r, 0] = s0
+    rng[r, 1] = s1
+    rng[r, 2] = s2
+    rng[r, 3] = s3
+    sums[r, SUM_ENERGY] = sum_energy
+    sums[r, SUM_VZ] = sum_vz
+    sums[r, SUM_ZVZ] = sum_zvz
+    sums[r, SUM_Z] = sum_z
+    sums[r, SUM_XYV] = sum_xyv
+    sums[r, SUM_EXPOSURE] = exposure
+    sums[r, SUM_MAX_ENERGY] = max_energy
+    counts[r, COUNT_EVENTS] = events
+    counts[r, COUNT_REAL] = real
+    counts[r, COUNT_CREATED] = created
+    counts[r, COUNT_REMOVED] = removed
+    counts[r, COUNT_EEDF_OVERFLOW] = eedf_overflow
+    counts[r, COUNT_ABOVE_BOUND] = above_bound
+    counts[r, COUNT_ABOVE_GRID] = 1 if status == 1 else 0
+    counts[r, COUNT_OVERFLOW] = 1 if status == 2 else 0
+
+
+@jit_parallel
+def advance_chunk(x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc, accel_ac, omega, phase,
+                  inv_cell_eV, n_cells, nu_star, nu_total, nu_cumulative, action, loss_eV, electron_fraction,
+                  target_fraction, thermal_speed, scatter, sharing, w_eV, table_max_eV, reference,
+                  tally_positions, hist_inv_width_eV, sums, counts, hist, process_counts, extrapolated,
+                  penning_probability, penning_energy_eV, penning_slot, period_s, wave_time, wave_accel, wave_F,
+                  wave_G, phase_sums, phase_counts, phase_process):
+    """Advance every replica's electrons from time ``t0`` to ``t1`` [s] (one chunk), in parallel over replicas.
+
+    Each replica is a serial simulation with its own generator state, so the result does not depend on the
+    number of threads. Within a replica the electrons are followed one by one to ``t1``; secondaries are
+    appended to the replica's store and followed in the same pass from their birth time; survivors are written
+    back compacted, and ``count[r]`` becomes their number.
+
+    Parameters
+    ----------
+    x, y, z, vx, vy, vz : ndarray, shape (R, capacity)
+        Positions [m] and velocities [m/s]; the first ``count[r]`` entries of row r are live. Updated in place.
+    birth : ndarray, shape (R, capacity)
+        Work space: birth times [s] of the secondaries created in the chunk.
+    count : ndarray of int64, shape (R,)
+        Live electrons per replica (in: at ``t0``; out: at ``t1``, unless the chunk was aborted).
+    rng : ndarray of uint64, shape (R, 4)
+        xoshiro256** states, advanced in place.
+    t0, t1 : float
+        Chunk start and end [s].
+    accel_dc, accel_ac, omega, phase : float
+        Field as an acceleration e E(t)/m along +z, see :func:`field_flight`.
+    inv_cell_eV, n_cells : float, int
+        The energy grid: node i is at i / inv_cell_eV [eV], i = 0 … n_cells.
+    nu_star : float
+        Trial collision frequency [s⁻¹], ≥ every value of ``nu_total``.
+    nu_total : ndarray, shape (n_cells + 1,)
+        Total collision frequency at the nodes [s⁻¹].
+    nu_cumulative : ndarray, shape (n_cells + 1, P)
+        Cumulative collision frequencies of the P processes at the nodes [s⁻¹].
+    action, loss_eV, electron_fraction, target_fraction, thermal_speed, scatter, sharing, w_eV, table_max_eV :
+        Per-process tables: action code, energy loss [eV], m/(m+M), M/(m+M), target thermal speed √(kT/M)
+        [m/s], angular distribution code, energy sharing code, OPB w [eV], last tabulated energy [eV].
+    reference : ndarray, shape (R, 3)
+        Reference position (x, y, z) [m] of each replica, subtracted in the position tallies.
+    tally_positions : bool
+        Whether to accumulate the position tallies (SUM_ZVZ, SUM_Z, SUM_XYV; left 0 otherwise).
+    hist_inv_width_eV : float
+        1 / width of the energy histogram's bins [eV⁻¹].
+    sums, counts, hist, process_counts, extrapolated : ndarray
+        Outputs, overwritten: float tallies (R, N_SUMS), counters (R, N_COUNTS), energy histogram (R, B) of trial
+        events, real collisions per process (R, P), and those beyond the process's table (R, P).
+    penning_probability, penning_energy_eV, penning_slot : ndarray, shape (P,)
+        Penning transfer per process (see :mod:`avalanche.gas.penning`): the probability r_k that an excitation of
+        process k creates an electron (0 for no transfer), the created electron's energy ε_level − I_B [eV], and
+        the column of ``process_counts`` (a pseudo-process with zero frequency) that counts the transfers.
+    period_s : float
+        AC: the drive period T [s]; 0 for DC (no phase tallies, and the phase arrays are not touched).
+    wave_time, wave_accel, wave_F, wave_G : ndarray, shape (M,)
+        AC, tabulated waveform: node times in [0, T] (first 0, last T), the acceleration at the nodes (last =
+        first) and the impulses F, G at the nodes (see :func:`table_flight`); empty arrays for DC or a sine
+        (which uses ``accel_ac``, ``omega``, ``phase``).
+    phase_sums, phase_counts, phase_process : ndarray, shapes (R, B_φ, N_PHASE_SUMS), (R, B_φ, N_PHASE_COUNTS),
+        (R, B_φ, P)
+        AC outputs, overwritten when ``period_s`` > 0: per phase bin of t mod T the columns PHASE_*, and the real
+        collisions per process.
+
+    Notes
+    -----
+    AC: the exposure ∫ n dt of a phase bin is estimated as its trial events divided by ν*. With a constant trial
+    frequency the trial events of each electron are a Poisson process of rate ν* in time (Skullerud 1968), so
+    the count in a bin has the expectation ν* × the time electrons spent in it: the estimate is unbiased, as the
+    sums over trial events that stand for time integrals are, and it costs nothing per flight (an exact split
+    of every flight over the bins it crosses would). Its relative noise is 1/√(events in the bin), far below
+    that of the real collisions divided by it. The DC exposure ``sums[:, SUM_EXPOSURE]`` stays exact.
+    """
+    for r in prange(x.shape[0]):
+        _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc, accel_ac, omega, phase,
+                         inv_cell_eV, n_cells, nu_star, nu_total, nu_cumulative, action, loss_eV,
+                         electron_fraction, target_fraction, thermal_speed, scatter, sharing, w_eV, table_max_eV,
+                         reference, tally_positions, hist_inv_width_eV, sums, counts, hist, process_counts,
+                         extrapolated, penning_probability, penning_energy_eV, penning_slot, period_s, wave_time,
+                         wave_accel, wave_F, wave_G, phase_sums, phase_counts, phase_process)

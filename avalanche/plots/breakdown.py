@@ -1,0 +1,93 @@
+"""Figures of breakdown and emission: Paschen curves and emission stick spectra (steady and phase-resolved)."""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Sequence
+
+import numpy as np
+from matplotlib.figure import Figure
+
+from ..analysis.breakdown import CAUTION, PaschenCurve
+from ..constants import BOLTZMANN_J_K, TORR_Pa, TOWNSEND_V_m2
+from ..errors import ConfigError
+from .style import legend, log_x, new_figure, phase_axis, styled
+
+
+@styled
+def plot_paschen(curve: PaschenCurve, title: str = "") -> Figure:
+    """Breakdown voltage against p d [Pa m] (bottom) and [Torr cm] (top), with the minimum, the asymptote
+    V = (E/N)_crit N d of an attaching gas, and :data:`avalanche.analysis.breakdown.CAUTION` under the plot."""
+    figure, (ax,) = new_figure(1, columns=1, height_in=3.6)
+    ok = np.isfinite(curve.breakdown_voltage_V)
+    ax.plot(curve.pd_Pa_m[ok], curve.breakdown_voltage_V[ok], "-", gid="paschen",
+            label=f"Townsend criterion, γ = {curve.gamma:g}")
+    if math.isfinite(curve.minimum_voltage_V):
+        ax.plot([curve.minimum_pd_Pa_m], [curve.minimum_voltage_V], "o", gid="paschen_minimum",
+                label=f"minimum {curve.minimum_voltage_V:.4g} V at {curve.minimum_pd_Pa_m:.4g} Pa m "
+                      f"({curve.minimum_pd_Torr_cm:.4g} Torr cm)")
+    if curve.critical_reduced_field_Td is not None:
+        pd = curve.pd_Pa_m
+        voltage = curve.critical_reduced_field_Td * TOWNSEND_V_m2 * pd / (BOLTZMANN_J_K * curve.temperature_K)
+        ax.plot(pd, voltage, ":", color="0.4", gid="paschen_asymptote",
+                label=f"(E/N)$_{{crit}}$ N d, (E/N)$_{{crit}}$ = {curve.critical_reduced_field_Td:.4g} Td")
+    log_x(ax, curve.pd_Pa_m)
+    ax.set_yscale("log")
+    ax.set_xlabel("p d [Pa m]")
+    ax.set_ylabel("breakdown voltage [V]")
+    top = ax.secondary_xaxis("top", functions=(lambda x: x * 100.0 / TORR_Pa, lambda x: x * TORR_Pa / 100.0))
+    top.set_xlabel("p d [Torr cm]")
+    legend(ax)
+    ax.set_title(title or f"Paschen curve, {curve.gas_label or 'gas'}, T = {curve.temperature_K:g} K")
+    figure.text(0.01, -0.02, "Caution: " + CAUTION, wrap=True, fontsize=6, va="top", gid="caution")
+    return figure
+
+
+# --- emission -----------------------------------------------------------------------------------------------------
+
+@styled
+def plot_emission_spectrum(wavelength_nm, relative_rate, labels: Sequence[str], title: str = "",
+                           annotate: int = 8) -> Figure:
+    """Stick spectrum: relative photon emission rate of each radiating level at its wavelength [nm].
+
+    The ``annotate`` strongest lines are labelled; the method's limits are printed under the plot.
+    """
+    from ..analysis.emission import APPROXIMATION_NOTE
+
+    wavelength = np.asarray(wavelength_nm, dtype=float)
+    rate = np.asarray(relative_rate, dtype=float)
+    if wavelength.size == 0:
+        raise ConfigError("plot_emission_spectrum: no radiating levels (no excitation process has wavelength_nm)")
+    figure, (ax,) = new_figure(1, columns=1, height_in=3.2)
+    ax.vlines(wavelength, 0.0, rate, gid="emission", lw=1.5)
+    for k in np.argsort(-np.nan_to_num(rate))[:annotate]:
+        ax.annotate(f"{labels[k]}\n{wavelength[k]:.4g} nm", (wavelength[k], rate[k]), textcoords="offset points",
+                    xytext=(0, 3), ha="center", fontsize=6)
+    ax.set_ylim(0.0, 1.25 * max(float(np.nanmax(rate)), 1e-300))
+    ax.set_xlabel("wavelength [nm]")
+    ax.set_ylabel("relative photon emission rate")
+    if title:
+        ax.set_title(title)
+    figure.text(0.01, -0.02, APPROXIMATION_NOTE, wrap=True, fontsize=6, va="top", gid="note")
+    return figure
+
+
+@styled
+def plot_phase_resolved_emission(phase_rad, relative_rate, labels: Sequence[str], title: str = "") -> Figure:
+    """Relative photon emission rate of each radiating level against the phase ωt (one curve per level).
+
+    ``relative_rate`` has shape (levels, phase bins).
+    """
+    from ..analysis.emission import APPROXIMATION_NOTE
+
+    rate = np.asarray(relative_rate, dtype=float)
+    figure, (ax,) = new_figure(1, columns=1, height_in=3.2)
+    for k, label in enumerate(labels):
+        ax.plot(phase_rad, rate[k], ".-", gid=f"emission_phase:{label}", label=label)
+    phase_axis(ax)
+    ax.set_ylabel("relative photon emission rate")
+    legend(ax)
+    if title:
+        ax.set_title(title)
+    figure.text(0.01, -0.02, APPROXIMATION_NOTE, wrap=True, fontsize=6, va="top", gid="note")
+    return figure

@@ -1,0 +1,190 @@
+"""Figure style shared by every plot: the paper style, figure and axis helpers, and :func:`save_figure`.
+
+Every function returns a :class:`matplotlib.figure.Figure` built without pyplot (no global state, any backend);
+:func:`save_figure` writes it as PNG and PDF. Sizes follow a two-column paper: 7 in wide, 9 pt text. Each plotted
+series carries a ``gid`` (e.g. ``"drift_velocity_bulk"``, ``"handbook_alpha_N"``) so its data can be read back
+from the figure — the tests do that to check that what is drawn is what the file holds.
+
+Log axes cannot show zero or negative values: a log-scaled panel leaves such points out (a panel with a negative
+value is drawn on a linear axis instead).
+"""
+
+from __future__ import annotations
+
+import functools
+import math
+from collections.abc import Sequence
+from pathlib import Path
+
+import matplotlib
+import numpy as np
+from matplotlib.figure import Figure
+from matplotlib.ticker import FuncFormatter, LogLocator, NullFormatter
+
+from ..analysis.tables import did_you_mean
+from ..errors import ConfigError
+
+PAPER_STYLE = {
+    "font.size": 9, "axes.labelsize": 9, "axes.titlesize": 9, "legend.fontsize": 7, "xtick.labelsize": 8,
+    "ytick.labelsize": 8, "lines.linewidth": 1.2, "lines.markersize": 3.5, "axes.grid": True, "grid.alpha": 0.3,
+    "savefig.dpi": 300, "savefig.bbox": "tight", "pdf.fonttype": 42, "ps.fonttype": 42,
+}
+"""Matplotlib settings used for every figure (readable at print size; fonts embedded as TrueType in PDF)."""
+
+FORMATS = ("png", "pdf")
+"""File formats :func:`save_figure` writes by default."""
+
+_WIDTH_IN = 7.0
+_PANEL_HEIGHT_IN = 2.5
+
+_PRETTY_UNITS = {
+    "m/s": r"m s$^{-1}$", "1/(m s)": r"m$^{-1}$ s$^{-1}$", "m2": r"m$^{2}$", "m3/s": r"m$^{3}$ s$^{-1}$",
+    "1/s": r"s$^{-1}$", "1/(V m s)": r"V$^{-1}$ m$^{-1}$ s$^{-1}$", "eV^-3/2": r"eV$^{-3/2}$", "1/m": r"m$^{-1}$",
+}
+
+PAIRS = {
+    "drift_velocity": ("drift_velocity_flux", "drift_velocity_bulk"),
+    "long_diffusion_N": ("long_diffusion_N_flux", "long_diffusion_N_bulk"),
+    "trans_diffusion_N": ("trans_diffusion_N_flux", "trans_diffusion_N_bulk"),
+}
+"""Panels that show a flux and a bulk quantity together."""
+
+_COMPANIONS = {"alpha_N_simple": "alpha_N", "eta_N_simple": "eta_N"}
+"""Quantities drawn on another quantity's panel (the ν/(N W) estimates beside the diffusion-corrected ones)."""
+
+_PANEL_LABELS = {
+    "mean_energy_eV": "mean energy ⟨ε⟩",
+    "characteristic_energy_eV": "characteristic energy D$_T$/μ",
+    "drift_velocity": "drift velocity W",
+    "mobility_N": "reduced mobility μN",
+    "long_diffusion_N": "longitudinal diffusion N D$_L$",
+    "trans_diffusion_N": "transverse diffusion N D$_T$",
+    "alpha_N": "ionization coefficient α/N",
+    "eta_N": "attachment coefficient η/N",
+    "effective_alpha_N": "effective ionization coefficient (α−η)/N",
+    "effective_ionization_frequency": "effective ionization frequency",
+    "ionization_rate_coefficient": "ionization rate coefficient",
+    "attachment_rate_coefficient": "attachment rate coefficient",
+    "excitation_rate_coefficient": "total excitation rate coefficient",
+    "penning_ionization_rate_coefficient": "Penning ionization rate coefficient",
+    "penning_fraction": "Penning share of ionization",
+    "rate_coefficients": "rate coefficients",
+}
+
+_SERIES_LABELS = {"flux": "flux", "bulk": "bulk", "simple": "ν/(N W)"}
+
+DEFAULT_PANELS = ("mean_energy_eV", "drift_velocity", "long_diffusion_N", "trans_diffusion_N", "alpha_N", "eta_N")
+"""Panels drawn when no quantities are chosen (those the data have; η/N only where it is nonzero)."""
+
+_PHASE_DEFAULTS = ("mean_energy_eV", "ionization_rate_coefficient", "drift_velocity_flux")
+
+
+def pretty_unit(unit: str) -> str:
+    return _PRETTY_UNITS.get(unit, unit)
+
+
+def axis_label(label: str, unit: str) -> str:
+    return f"{label} [{pretty_unit(unit)}]" if unit else label
+
+
+def new_figure(panels: int, columns: int = 2, height_in: float = _PANEL_HEIGHT_IN):
+    columns = max(1, min(columns, panels))
+    rows = math.ceil(panels / columns)
+    figure = Figure(figsize=(_WIDTH_IN if columns > 1 else _WIDTH_IN / 1.6, height_in * rows), layout="constrained")
+    axes = figure.subplots(rows, columns, squeeze=False).ravel()
+    for extra in axes[panels:]:
+        extra.remove()
+    return figure, list(axes[:panels])
+
+
+def styled(function):
+    """Run a plotting function under :data:`PAPER_STYLE` (text sizes are fixed when artists are created)."""
+
+    @functools.wraps(function)
+    def styled(*args, **kwargs):
+        with matplotlib.rc_context(PAPER_STYLE):
+            return function(*args, **kwargs)
+
+    return styled
+
+
+def save_figure(figure: Figure, stem, formats: Sequence[str] = FORMATS) -> list[Path]:
+    """Write ``figure`` to ``stem.<format>`` for every format; returns the paths written.
+
+    Raises
+    ------
+    ConfigError
+        For a format other than png, pdf or svg.
+    """
+    stem = Path(stem)
+    stem.parent.mkdir(parents=True, exist_ok=True)
+    paths = []
+    for fmt in formats:
+        if fmt not in ("png", "pdf", "svg"):
+            raise ConfigError(f"save_figure: format {fmt!r}{did_you_mean(fmt, ('png', 'pdf', 'svg'))}; choose "
+                              "png, pdf or svg")
+        path = stem.with_name(f"{stem.name}.{fmt}")
+        with matplotlib.rc_context(PAPER_STYLE):
+            figure.savefig(path)
+        paths.append(path)
+    return paths
+
+
+def errorbar(ax, x, y, err, gid: str, label: str, log_y: bool, **style):
+    """Error-bar series of the finite points (positive ones on a log axis), tagged with ``gid``."""
+    x, y = np.asarray(x, dtype=float), np.asarray(y, dtype=float)
+    err = np.zeros_like(y) if err is None else np.asarray(err, dtype=float)
+    keep = np.isfinite(x) & np.isfinite(y) & ((y > 0.0) if log_y else True)
+    if not np.any(keep):
+        return None
+    container = ax.errorbar(x[keep], y[keep], yerr=np.nan_to_num(err[keep]), label=label,
+                            **({"fmt": "o-", "capsize": 2} | style))
+    container.lines[0].set_gid(gid)
+    return container
+
+
+def log_y(ax) -> None:
+    """Log y axis whose range follows the data points, not error bars reaching towards zero (those run off the
+    bottom of the panel)."""
+    ax.set_yscale("log")
+    values = [np.asarray(line.get_ydata(), dtype=float) for line in ax.lines if line.get_gid()]
+    positive = np.concatenate(values)[np.concatenate(values) > 0] if values else np.empty(0)
+    if positive.size:
+        low, high = float(positive.min()), float(positive.max())
+        ax.set_ylim(low / 2.0, max(ax.get_ylim()[1], high * 1.5))
+
+
+def legend(ax, **kwargs) -> None:
+    """A legend sized to its entries (many entries: two small columns), if there is anything to label."""
+    handles, labels = ax.get_legend_handles_labels()
+    if not handles:
+        return
+    if len(handles) > 6:  # below the axes, so the curves stay visible
+        ax.legend(loc="upper center", bbox_to_anchor=(0.5, -0.25), fontsize=5.5, ncols=2, **kwargs)
+    else:
+        ax.legend(loc="best", **kwargs)
+
+
+def log_x(ax, values) -> None:
+    """Log x axis labelled with plain numbers: 1-2-5 ticks within two decades, decades beyond."""
+    finite = np.asarray(values, dtype=float)
+    finite = finite[np.isfinite(finite) & (finite > 0)]
+    ax.set_xscale("log")
+    decades = math.log10(finite.max() / finite.min()) if finite.size else 0.0
+    ax.xaxis.set_major_locator(LogLocator(subs=(1.0,) if decades > 2.5 else (1.0, 2.0, 5.0)))
+    ax.xaxis.set_major_formatter(FuncFormatter(lambda v, _: f"{v:g}"))
+    ax.xaxis.set_minor_formatter(NullFormatter())
+
+
+def use_log(values: Sequence[np.ndarray]) -> bool:
+    finite = np.concatenate([np.asarray(v, dtype=float)[np.isfinite(v)] for v in values]) if values else []
+    return len(finite) > 0 and bool(np.all(finite >= 0.0)) and bool(np.any(finite > 0.0))
+
+
+# --- swarm parameters against E/N ---------------------------------------------------------------------------------
+
+
+def phase_axis(ax) -> None:
+    ax.set_xlim(0.0, 2.0 * math.pi)
+    ax.set_xticks(np.arange(5) * math.pi / 2.0, ["0", "π/2", "π", "3π/2", "2π"])
+    ax.set_xlabel("phase ωt [rad]")

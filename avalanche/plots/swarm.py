@@ -1,0 +1,468 @@
+"""Figures of swarm results: swarm parameters against E/N, energy distributions, phase-resolved AC panels and
+steady-state Townsend profiles."""
+
+from __future__ import annotations
+
+import math
+import textwrap
+from collections.abc import Mapping, Sequence
+from dataclasses import dataclass, field
+from pathlib import Path
+
+import numpy as np
+from matplotlib.figure import Figure
+
+from ..analysis.coefficients import HANDBOOK_TOWNSEND, handbook_alpha_N, handbook_validity_range_Td
+from ..analysis.tables import QUANTITY_UNITS, RATE_PREFIX, SwarmTable, did_you_mean, quantity_unit
+from ..errors import ConfigError
+from .style import (
+    _COMPANIONS,
+    _PANEL_LABELS,
+    _PHASE_DEFAULTS,
+    _SERIES_LABELS,
+    DEFAULT_PANELS,
+    PAIRS,
+    axis_label,
+    errorbar,
+    legend,
+    log_x,
+    log_y,
+    new_figure,
+    phase_axis,
+    styled,
+    use_log,
+)
+
+
+@dataclass
+class ReferenceData:
+    """Reference values to overlay, read by :func:`read_reference`.
+
+    Attributes
+    ----------
+    label : str
+        Legend text (the file's ``# source:`` line, else the file name).
+    reduced_field_Td : numpy.ndarray
+    quantities : dict
+        Quantity name → (values, stderr or None), in avalanche's units.
+    """
+
+    label: str
+    reduced_field_Td: np.ndarray
+    quantities: dict[str, tuple[np.ndarray, np.ndarray | None]] = field(default_factory=dict)
+
+
+def read_reference(path) -> ReferenceData:
+    """Read a reference CSV file for the overlay of :func:`plot_swarm_parameters`.
+
+    The format (comma-separated): lines starting with ``#`` are comments, and ``# source: <text>`` gives the
+    legend label (cite the publication and table). The first other line names the columns: ``reduced_field_Td``
+    first, then quantity names as avalanche uses them, in the same units (e.g. ``alpha_N`` [m²],
+    ``drift_velocity_bulk`` [m/s], ``mean_energy_eV`` [eV]; see :data:`avalanche.analysis.tables.QUANTITY_UNITS`), each
+    optionally followed by ``<name>_stderr``. Empty cells are missing values. Example::
+
+        # source: Author et al. (1990) J. Phys. D 23 1, table 2
+        reduced_field_Td,alpha_N,alpha_N_stderr
+        200,1.1e-21,0.1e-21
+
+    Raises
+    ------
+    ConfigError
+        Naming the file, line and column: missing file, no header, first column not ``reduced_field_Td``, an
+        unknown quantity (with a did-you-mean), a cell that is not a number.
+    """
+    path = Path(path)
+    if not path.is_file():
+        raise ConfigError(f"reference file '{path}' not found; give a CSV with columns reduced_field_Td,<quantity>,..")
+    label, header, rows = path.name, None, []
+    for number, line in enumerate(path.read_text(encoding="utf-8").splitlines(), start=1):
+        text = line.strip()
+        if not text:
+            continue
+        if text.startswith("#"):
+            key, sep, value = text[1:].strip().partition(":")
+            if sep and key.strip().lower() == "source" and value.strip():
+                label = value.strip()
+            continue
+        cells = [cell.strip() for cell in text.split(",")]
+        if header is None:
+            header = cells
+            continue
+        if len(cells) != len(header):
+            raise ConfigError(f"{path}, line {number}: {len(cells)} cells for {len(header)} columns {header}")
+        try:
+            rows.append([float(cell) if cell else math.nan for cell in cells])
+        except ValueError:
+            raise ConfigError(f"{path}, line {number}: a cell is not a number: {cells}") from None
+    if header is None or not rows:
+        raise ConfigError(f"reference file '{path}' has no header line and data rows; see avalanche plot --help")
+    if header[0] != "reduced_field_Td":
+        raise ConfigError(f"{path}: the first column is {header[0]!r}; it must be 'reduced_field_Td' (E/N in Td)")
+    data = np.array(rows, dtype=float)
+    quantities = {}
+    for j, name in enumerate(header[1:], start=1):
+        if name.endswith("_stderr"):
+            if name.removesuffix("_stderr") not in header:
+                raise ConfigError(f"{path}: column {name!r} has no value column {name.removesuffix('_stderr')!r}")
+            continue
+        if not quantity_unit(name):
+            raise ConfigError(f"{path}: unknown quantity column {name!r}{did_you_mean(name, _known_names())}; "
+                              "use avalanche's quantity names and units")
+        stderr = data[:, header.index(f"{name}_stderr")] if f"{name}_stderr" in header else None
+        quantities[name] = (data[:, j], stderr)
+    return ReferenceData(label, data[:, 0], quantities)
+
+
+def _known_names() -> list[str]:
+    return [name for name in QUANTITY_UNITS if name != "reduced_field_Td"]
+
+
+def _panel_of(name: str) -> str:
+    for group, members in PAIRS.items():
+        if name in members:
+            return group
+    if name.startswith(RATE_PREFIX):
+        return "rate_coefficients"
+    return _COMPANIONS.get(name, name)
+
+
+def swarm_panels(table: SwarmTable, quantities: Sequence[str] | None = None) -> dict[str, list[str]]:
+    """Panels to draw: panel name → quantity names on it, in order.
+
+    Parameters
+    ----------
+    table : SwarmTable
+    quantities : sequence of str, optional
+        Quantity names (``drift_velocity_bulk``), panel names (``drift_velocity`` = flux and bulk), or
+        ``rate_coefficients`` (every per-process rate coefficient on one panel). Default
+        :data:`DEFAULT_PANELS` where present.
+
+    Raises
+    ------
+    ConfigError
+        For a name that is neither a quantity nor a panel (with a did-you-mean), or one absent from the data.
+    """
+    panels: dict[str, list[str]] = {}
+    if quantities is None:
+        for group in DEFAULT_PANELS:
+            members = [m for m in PAIRS.get(group, (group,)) if m in table.quantities]
+            if group == "eta_N" and members and not np.any(np.nan_to_num(table.get("eta_N")[0]) > 0.0):
+                continue
+            if members:
+                panels[group] = members
+        if not panels:
+            raise ConfigError(f"{table.source or 'swarm table'}: none of the default quantities is present; choose "
+                              f"some of {', '.join(table.names)}")
+        return panels
+    choices = [*table.names, *PAIRS, "rate_coefficients"]
+    for token in quantities:
+        token = token.strip()
+        if token in PAIRS:
+            members = [m for m in PAIRS[token] if m in table.quantities]
+        elif token == "rate_coefficients":
+            members = [name for name in table.names if name.startswith(RATE_PREFIX)]
+        elif token in table.quantities:
+            members = [token]
+        elif quantity_unit(token):
+            raise ConfigError(f"{table.source or 'swarm table'}: quantity {token!r} is not in the data; available: "
+                              f"{', '.join(table.names)}")
+        else:
+            raise ConfigError(f"unknown quantity {token!r}{did_you_mean(token, choices)}; choose from "
+                              f"{', '.join(choices)}")
+        if not members:
+            raise ConfigError(f"{table.source or 'swarm table'}: no data for {token!r}; available: "
+                              f"{', '.join(table.names)}")
+        group = token if token in PAIRS or token == "rate_coefficients" else _panel_of(token)
+        panels.setdefault(group, [])
+        panels[group] += [m for m in members if m not in panels[group]]
+    return panels
+
+
+def _series_label(name: str, members: list[str]) -> str:
+    if name.startswith(RATE_PREFIX):
+        return name[len(RATE_PREFIX):]
+    for suffix, label in _SERIES_LABELS.items():
+        if name.endswith(f"_{suffix}"):
+            return label
+    return "avalanche" if len(members) == 1 else name
+
+
+def handbook_gas_name(gas: str) -> str | None:
+    """The key of :data:`~avalanche.analysis.coefficients.HANDBOOK_TOWNSEND` matching ``gas`` (case-insensitive), or
+    None."""
+    return next((name for name in HANDBOOK_TOWNSEND if name.lower() == str(gas).strip().lower()), None)
+
+
+def _handbook_overlay(ax, gas: str, fields_Td: np.ndarray) -> None:
+    low, high = handbook_validity_range_Td(gas)
+    finite = fields_Td[np.isfinite(fields_Td)]
+    low, high = max(low, float(finite.min())), min(high, float(finite.max()))
+    if low >= high:
+        return
+    field_Td = np.geomspace(low, high, 100)
+    constants = HANDBOOK_TOWNSEND[gas]
+    ax.plot(field_Td, handbook_alpha_N(gas, field_Td), "--", color="0.3", gid="handbook_alpha_N",
+            label=textwrap.fill(f"Townsend formula, {constants.source}", 36))
+
+
+@styled
+def plot_swarm_parameters(table: SwarmTable, quantities: Sequence[str] | None = None,
+                          reference: ReferenceData | None = None, handbook: str | None = "auto") -> Figure:
+    """Swarm parameters against E/N on log axes with error bars, one panel per quantity.
+
+    Parameters
+    ----------
+    table : SwarmTable
+    quantities : sequence of str, optional
+        See :func:`swarm_panels`. Flux and bulk values share a panel.
+    reference : ReferenceData, optional
+        Drawn as open markers on the panels of its quantities (others are ignored).
+    handbook : str or None
+        Gas whose empirical Townsend formula (:data:`~avalanche.analysis.coefficients.HANDBOOK_TOWNSEND`) is drawn on
+        the
+        α/N panel, only inside its validity range and the data's E/N range: ``"auto"`` (the table's gas, if the
+        handbook has it), a gas name, or None for no overlay.
+
+    Returns
+    -------
+    matplotlib.figure.Figure
+    """
+    panels = swarm_panels(table, quantities)
+    if handbook is None:
+        gas = None
+    elif handbook == "auto":
+        gas = handbook_gas_name(table.gas_label)
+    else:
+        gas = handbook_gas_name(handbook)
+        if gas is None:
+            handbook_validity_range_Td(handbook)  # raises ConfigError naming the gas, with a did-you-mean
+    figure, axes = new_figure(len(panels))
+    fields = table.reduced_field_Td
+    for ax, (panel, members) in zip(axes, panels.items(), strict=True):
+        series = [table.get(name) for name in members]
+        log_y = use_log([values for values, _ in series])
+        for name, (values, errors) in zip(members, series, strict=True):
+            errorbar(ax, fields, values, errors, name, _series_label(name, members), log_y,
+                      fmt="s--" if name.endswith("_bulk") or name.endswith("_simple") else "o-")
+        if reference is not None:
+            for name in members:
+                if name in reference.quantities:
+                    values, errors = reference.quantities[name]
+                    errorbar(ax, reference.reduced_field_Td, values, errors, f"reference:{name}",
+                              f"{reference.label}" + (f" ({_series_label(name, members)})" if len(members) > 1
+                                                      else ""), log_y, fmt="D", mfc="none", color="k")
+        if panel == "alpha_N" and gas is not None:
+            _handbook_overlay(ax, gas, fields)
+        log_x(ax, fields)
+        if log_y:
+            log_y(ax)
+        unit = table.unit(members[0])
+        ax.set_xlabel("reduced field E/N [Td]")
+        ax.set_ylabel(axis_label(_PANEL_LABELS.get(panel, panel), unit))
+        if not ax.has_data():
+            ax.text(0.5, 0.5, "no finite values", transform=ax.transAxes, ha="center")
+        legend(ax)
+    figure.suptitle(_title(table))
+    return figure
+
+
+def _title(table: SwarmTable) -> str:
+    parts = [table.gas_label or "swarm parameters"]
+    if table.temperature_K is not None:
+        parts.append(f"T = {table.temperature_K:g} K")
+    if table.source:
+        parts.append(Path(table.source).name)
+    return ", ".join(parts)
+
+
+# --- energy distributions -----------------------------------------------------------------------------------------
+
+@styled
+def plot_eedf(distributions: Mapping[float, tuple], title: str = "") -> Figure:
+    """Electron energy distributions f(ε) [eV^-3/2] at several E/N, on a log axis against energy [eV].
+
+    Parameters
+    ----------
+    distributions : mapping
+        E/N [Td] → ``(energy_edges_eV, values, stderr)``: bin edges (n + 1) and values/errors (n) of the EEDF
+        normalised as ∫ f(ε) ε^1/2 dε = 1. Points are drawn at bin centres; empty bins are left out.
+    title : str
+    """
+    if not distributions:
+        raise ConfigError("plot_eedf: no energy distributions given")
+    figure, (ax,) = new_figure(1, columns=1, height_in=3.0)
+    for field_Td, (edges, values, errors) in sorted(distributions.items()):
+        edges = np.asarray(edges, dtype=float)
+        centres = 0.5 * (edges[:-1] + edges[1:])
+        errorbar(ax, centres, values, errors, f"eedf:{field_Td:g}", f"{field_Td:g} Td", True, fmt="-",
+                  elinewidth=0.5, capsize=0)
+    log_y(ax)
+    ax.set_xlabel("electron energy ε [eV]")
+    ax.set_ylabel(axis_label("EEDF f(ε)", "eV^-3/2"))
+    ax.legend(title="E/N")
+    if title:
+        ax.set_title(title)
+    return figure
+
+
+# --- AC: phase-resolved panels ------------------------------------------------------------------------------------
+
+@dataclass
+class PhaseCurve:
+    """Phase-resolved results of one AC run.
+
+    Attributes
+    ----------
+    frequency_Hz : float
+    phase_rad : numpy.ndarray
+        Phase-bin centres of ωt [rad], in [0, 2π).
+    quantities : mapping
+        Quantity name → (values, stderr), one per phase bin, in the DC result's units.
+    reduced_field_Td : float, optional
+        The field amplitude E_0/N [Td].
+    """
+
+    frequency_Hz: float
+    phase_rad: np.ndarray
+    quantities: Mapping[str, tuple[np.ndarray, np.ndarray]]
+    reduced_field_Td: float | None = None
+
+    @property
+    def label(self) -> str:
+        text = _frequency_text(self.frequency_Hz)
+        return text if self.reduced_field_Td is None else f"{text}, {self.reduced_field_Td:g} Td"
+
+
+def _frequency_text(frequency_Hz: float) -> str:
+    for scale, unit in ((1e9, "GHz"), (1e6, "MHz"), (1e3, "kHz")):
+        if abs(frequency_Hz) >= scale:
+            return f"{frequency_Hz / scale:g} {unit}"
+    return f"{frequency_Hz:g} Hz"
+
+
+@styled
+def plot_phase_resolved(curves: Sequence[PhaseCurve], quantities: Sequence[str] | None = None) -> Figure:
+    """Phase-resolved AC panels: each quantity against the phase ωt, one curve per frequency (linear axes).
+
+    Parameters
+    ----------
+    curves : sequence of PhaseCurve
+    quantities : sequence of str, optional
+        Default: mean energy, ionization rate coefficient and flux drift velocity, those present.
+
+    Raises
+    ------
+    ConfigError
+        When no curve is given, or a chosen quantity is in none of the curves (with a did-you-mean).
+    """
+    if not curves:
+        raise ConfigError("plot_phase_resolved: no phase-resolved results given (AC runs only)")
+    available = list(dict.fromkeys(name for curve in curves for name in curve.quantities))
+    if quantities is None:
+        quantities = [name for name in _PHASE_DEFAULTS if name in available]
+        if not quantities:
+            raise ConfigError(f"plot_phase_resolved: none of {', '.join(_PHASE_DEFAULTS)} is phase-resolved; choose "
+                              f"from {', '.join(available)}")
+    for name in quantities:
+        if name not in available:
+            raise ConfigError(f"plot_phase_resolved: no phase-resolved {name!r}{did_you_mean(name, available)}; "
+                              f"available: {', '.join(available)}")
+    figure, axes = new_figure(len(quantities), columns=min(3, len(quantities)))
+    for ax, name in zip(axes, quantities, strict=True):
+        for curve in sorted(curves, key=lambda c: c.frequency_Hz):
+            if name in curve.quantities:
+                values, errors = curve.quantities[name]
+                errorbar(ax, curve.phase_rad, values, errors, f"phase:{name}:{curve.frequency_Hz:g}", curve.label,
+                          False, fmt=".-")
+        phase_axis(ax)
+        ax.set_ylabel(axis_label(_PANEL_LABELS.get(name, name), quantity_unit(name)))
+        legend(ax)
+    return figure
+
+
+# --- steady-state Townsend profiles -------------------------------------------------------------------------------
+
+@dataclass
+class SSTProfile:
+    """Spatial profile of a steady-state Townsend run.
+
+    Attributes
+    ----------
+    position_m : numpy.ndarray
+        Distances of the sampling planes from the emitting electrode [m].
+    quantities : mapping
+        Quantity name → (values, stderr) per plane (e.g. the electron flux crossing each plane per released
+        electron, the mean energy there).
+    reduced_field_Td : float, optional
+    effective_alpha_per_m : float, optional
+        The fitted (α − η) [1/m]: drawn as exp((α − η) x) through the flux beyond the relaxation length.
+    relaxation_length_m : float, optional
+        Marked with a vertical line.
+    flux_quantity : str
+        Name of the flux among ``quantities`` (for the exponential fit line).
+    """
+
+    position_m: np.ndarray
+    quantities: Mapping[str, tuple[np.ndarray, np.ndarray]]
+    reduced_field_Td: float | None = None
+    effective_alpha_per_m: float | None = None
+    relaxation_length_m: float | None = None
+    flux_quantity: str = "flux"
+
+
+def _growth_line(ax, profile: SSTProfile, color) -> None:
+    if profile.effective_alpha_per_m is None or profile.flux_quantity not in profile.quantities:
+        return
+    x = np.asarray(profile.position_m, dtype=float)
+    flux = np.asarray(profile.quantities[profile.flux_quantity][0], dtype=float)
+    beyond = (x >= (profile.relaxation_length_m or 0.0)) & (flux > 0.0) & np.isfinite(flux)
+    if not np.any(beyond):
+        return
+    alpha = profile.effective_alpha_per_m
+    intercept = float(np.mean(np.log(flux[beyond]) - alpha * x[beyond]))
+    line_x = np.linspace(x[beyond].min(), x[beyond].max(), 50)
+    ax.plot(line_x, np.exp(intercept + alpha * line_x), ":", color=color, gid=f"sst_growth:{profile.reduced_field_Td}",
+            label=f"exp((α−η) x), α−η = {alpha:.4g} m$^{{-1}}$")
+
+
+@styled
+def plot_sst_profiles(profiles: Sequence[SSTProfile], quantities: Sequence[str] | None = None) -> Figure:
+    """Steady-state Townsend spatial profiles: one panel per quantity against distance from the cathode.
+
+    A panel is log-scaled when all its values are positive and span more than a decade (the growing flux).
+    """
+    if not profiles:
+        raise ConfigError("plot_sst_profiles: no profiles given (steady-state Townsend runs only)")
+    available = list(dict.fromkeys(name for p in profiles for name in p.quantities))
+    quantities = available if quantities is None else list(quantities)
+    for name in quantities:
+        if name not in available:
+            raise ConfigError(f"plot_sst_profiles: no profile of {name!r}{did_you_mean(name, available)}; "
+                              f"available: {', '.join(available)}")
+    figure, axes = new_figure(len(quantities))
+    for ax, name in zip(axes, quantities, strict=True):
+        values_all = [np.asarray(p.quantities[name][0], dtype=float) for p in profiles if name in p.quantities]
+        finite = np.concatenate(values_all)[np.isfinite(np.concatenate(values_all))]
+        log_y = finite.size > 0 and bool(np.all(finite > 0.0)) and finite.max() > 10.0 * finite.min()
+        for profile in profiles:
+            if name not in profile.quantities:
+                continue
+            values, errors = profile.quantities[name]
+            label = "" if profile.reduced_field_Td is None else f"{profile.reduced_field_Td:g} Td"
+            container = errorbar(ax, profile.position_m, values, errors, f"sst:{name}:{profile.reduced_field_Td}",
+                                  label, log_y, fmt=".-")
+            color = container.lines[0].get_color() if container else None
+            if name == profile.flux_quantity:
+                _growth_line(ax, profile, color)
+            if profile.relaxation_length_m is not None:
+                ax.axvline(profile.relaxation_length_m, color=color, lw=0.8, ls="--",
+                           gid=f"sst_relaxation:{profile.reduced_field_Td}")
+        if log_y:
+            log_y(ax)
+        ax.set_xlabel("distance from the emitting electrode x [m]")
+        ax.set_ylabel(axis_label(_PANEL_LABELS.get(name, name.replace("_", " ")), quantity_unit(name)))
+        legend(ax)
+    return figure
+
+
+# --- Paschen curve ------------------------------------------------------------------------------------------------

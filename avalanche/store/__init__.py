@@ -1,0 +1,4 @@
+"""Results files: HDF5 writing and reading of single points (time of flight, steady-state Townsend) and sweeps.
+
+May import ``engine`` (result objects), ``gas``, ``constants``, ``errors``; never ``sweep``, ``analysis`` or ``cli``.
+"""

@@ -1,0 +1,186 @@
+"""Figures: files are written, and the data drawn (read back from the artists) equal the data given.
+
+No pixel comparisons. References: the empirical Townsend formula and its validity range (Raizer, Gas Discharge
+Physics, Springer 1991, table 4.1 — from memory, via avalanche.analysis.coefficients.HANDBOOK_TOWNSEND); exp(a x) is a
+straight line of slope a on a log axis (analytic).
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+import pytest
+
+from avalanche.analysis.breakdown import CAUTION, paschen_curve
+from avalanche.analysis.coefficients import (
+    CoefficientTable,
+    handbook_alpha_N,
+    handbook_validity_range_Td,
+    townsend_formula,
+)
+from avalanche.analysis.emission import APPROXIMATION_NOTE
+from avalanche.analysis.tables import SwarmTable
+from avalanche.errors import ConfigError
+from avalanche.plots import (
+    PhaseCurve,
+    SSTProfile,
+    plot_eedf,
+    plot_emission_spectrum,
+    plot_paschen,
+    plot_phase_resolved,
+    plot_sst_profiles,
+    plot_swarm_parameters,
+    read_reference,
+    save_figure,
+)
+from avalanche.store.sweep_file import open_results
+
+
+def lines_by_gid(figure) -> dict:
+    return {line.get_gid(): line for ax in figure.axes for line in ax.lines if line.get_gid()}
+
+
+def container(figure, gid):
+    """The errorbar container whose data line is tagged ``gid``."""
+    return next(c for ax in figure.axes for c in ax.containers if c.lines[0].get_gid() == gid)
+
+
+def error_bars(figure, gid):
+    """Half-lengths of the error bars of the series ``gid``, from its errorbar container."""
+    segments = container(figure, gid).lines[2][0].get_segments()
+    return np.array([(s[1][1] - s[0][1]) / 2.0 for s in segments])
+
+
+@pytest.fixture(scope="module")
+def argon(outputs_results):  # noqa: F811
+    return SwarmTable.from_results(open_results(outputs_results), mixture="Ar")
+
+
+def test_swarm_plot_shows_the_file_data(argon, outputs_results, tmp_path):  # noqa: F811
+    figure = plot_swarm_parameters(argon)
+    paths = save_figure(figure, tmp_path / "swarm")
+    assert [p.suffix for p in paths] == [".png", ".pdf"] and all(p.stat().st_size > 0 for p in paths)
+    results = open_results(outputs_results)
+    rows = results.grid["mixture_index"] == 0
+    drawn = lines_by_gid(figure)
+    for name in ("mean_energy_eV", "drift_velocity_flux", "drift_velocity_bulk", "long_diffusion_N_bulk", "alpha_N"):
+        fields, values = results.grid["reduced_field_Td"][rows], results.value(name)[rows]
+        errors = results.stderr(name)[rows]
+        shown = np.isfinite(values) & (values > 0)  # log axes: zero or undefined values are left out
+        order = np.argsort(fields[shown])
+        np.testing.assert_array_equal(drawn[name].get_xdata(), fields[shown][order])
+        np.testing.assert_array_equal(drawn[name].get_ydata(), values[shown][order])
+        np.testing.assert_allclose(error_bars(figure, name), errors[shown][order], rtol=1e-12)
+    flux_axes = next(ax for ax in figure.axes if drawn["drift_velocity_flux"] in ax.lines)
+    assert drawn["drift_velocity_bulk"] in flux_axes.lines  # flux and bulk share a panel
+    assert flux_axes.get_xscale() == "log" and flux_axes.get_yscale() == "log"
+    assert "[m s$^{-1}$]" in flux_axes.get_ylabel() and "[Td]" in flux_axes.get_xlabel()
+
+
+def test_handbook_overlay_only_inside_its_validity_range(argon):
+    figure = plot_swarm_parameters(argon, ["alpha_N"])
+    line = lines_by_gid(figure)["handbook_alpha_N"]
+    low, high = handbook_validity_range_Td("Ar")
+    x = np.asarray(line.get_xdata())
+    assert x.min() >= low * (1 - 1e-12) and x.max() <= high * (1 + 1e-12)
+    assert x.min() >= argon.reduced_field_Td.min() and x.max() <= argon.reduced_field_Td.max() * (1 + 1e-12)
+    np.testing.assert_allclose(line.get_ydata(), handbook_alpha_N("Ar", x), rtol=1e-14)
+    assert "Raizer" in line.get_label()
+    assert "handbook_alpha_N" not in lines_by_gid(plot_swarm_parameters(argon, ["alpha_N"], handbook=None))
+    narrow = SwarmTable([10.0, 20.0], {"alpha_N": ([1e-24, 2e-24], [0, 0])}, gas_label="Ar")  # below its range
+    assert "handbook_alpha_N" not in lines_by_gid(plot_swarm_parameters(narrow, ["alpha_N"]))
+    with pytest.raises(ConfigError, match="did you mean"):
+        plot_swarm_parameters(argon, ["alpha_N"], handbook="Argn")
+
+
+def test_reference_overlay(argon, tmp_path):
+    values, _ = argon.get("drift_velocity_bulk")
+    path = tmp_path / "ref.csv"
+    path.write_text("# source: this very sweep (a self-check)\nreduced_field_Td,drift_velocity_bulk\n"
+                    + "".join(f"{float(x)!r},{float(v)!r}\n" for x, v in zip(argon.reduced_field_Td[-2:], values[-2:],
+                                                                     strict=True)))
+    reference = read_reference(path)
+    figure = plot_swarm_parameters(argon, ["drift_velocity"], reference)
+    np.testing.assert_array_equal(lines_by_gid(figure)["reference:drift_velocity_bulk"].get_ydata(), values[-2:])
+    assert container(figure, "reference:drift_velocity_bulk").get_label().startswith("this very sweep")
+    path.write_text("reduced_field_Td,drift_velocity_bulck\n1,2\n")
+    with pytest.raises(ConfigError, match="did you mean 'drift_velocity_bulk'"):
+        read_reference(path)
+
+
+def test_quantity_selection(argon):
+    drawn = lines_by_gid(plot_swarm_parameters(argon, ["drift_velocity_bulk", "rate_coefficients"]))
+    assert "drift_velocity_bulk" in drawn and "drift_velocity_flux" not in drawn
+    assert "rate_coefficient:1s4 (3p5 4s [3/2]1, resonant)" in drawn
+    with pytest.raises(ConfigError, match="did you mean 'mean_energy_eV'"):
+        plot_swarm_parameters(argon, ["mean_energy"])
+
+
+def test_eedf_plot(argon, outputs_results):  # noqa: F811
+    point = open_results(outputs_results).point(int(argon.point_index[-1]))
+    eedf = point.eedf
+    figure = plot_eedf({point.reduced_field_Td: (eedf.energy_edges_eV, eedf.value, eedf.stderr)})
+    line = lines_by_gid(figure)[f"eedf:{point.reduced_field_Td:g}"]
+    shown = eedf.value > 0
+    np.testing.assert_allclose(line.get_xdata(), eedf.energy_eV[shown], rtol=1e-15)
+    np.testing.assert_array_equal(line.get_ydata(), eedf.value[shown])
+
+
+def test_phase_resolved_panels():
+    phase = (np.arange(16) + 0.5) * 2 * math.pi / 16
+    curves = [PhaseCurve(frequency, phase, {"mean_energy_eV": (2.0 + np.sin(phase + k), np.full(16, 0.01)),
+                                            "drift_velocity_flux": (1e5 * np.cos(phase), np.full(16, 1e3))})
+              for k, frequency in enumerate((13.56e6, 1e6))]
+    figure = plot_phase_resolved(curves)
+    drawn = lines_by_gid(figure)
+    assert len(figure.axes) == 2  # the ionization rate is absent, so not drawn
+    for k, frequency in enumerate((13.56e6, 1e6)):
+        line = drawn[f"phase:mean_energy_eV:{frequency:g}"]
+        np.testing.assert_array_equal(line.get_xdata(), phase)
+        np.testing.assert_array_equal(line.get_ydata(), 2.0 + np.sin(phase + k))
+    assert figure.axes[0].get_xlim() == (0.0, 2 * math.pi)
+    with pytest.raises(ConfigError, match="did you mean 'mean_energy_eV'"):
+        plot_phase_resolved(curves, ["mean_energy"])
+
+
+def test_sst_profile_growth_line():
+    x = np.linspace(0.0, 0.02, 21)
+    alpha = 150.0
+    flux = np.exp(alpha * x) * (1.0 - 0.5 * np.exp(-x / 0.002))  # relaxes, then grows as exp(alpha x)
+    figure = plot_sst_profiles([SSTProfile(x, {"flux": (flux, 0.01 * flux)}, 100.0, alpha, 0.01)])
+    drawn = lines_by_gid(figure)
+    np.testing.assert_array_equal(drawn["sst:flux:100.0"].get_ydata(), flux)
+    growth = drawn["sst_growth:100.0"]
+    slope = np.diff(np.log(growth.get_ydata())) / np.diff(growth.get_xdata())
+    np.testing.assert_allclose(slope, alpha, rtol=1e-9)  # exp(a x) has slope a in ln (analytic)
+    assert growth.get_xdata().min() >= 0.01
+    assert figure.axes[0].get_yscale() == "log"
+
+
+def test_paschen_plot_carries_the_caution():
+    field = np.geomspace(30.0, 30000.0, 200)
+    alpha = townsend_formula(12.0, 342.0, field, 293.0)  # N2 constants, Raizer 1991 table 4.1 (from memory)
+    table = CoefficientTable(field, alpha, np.full(field.size, alpha[40]), temperature_K=293.0, gas_label="model")
+    curve = paschen_curve(table, 0.01, np.geomspace(0.6, 200.0, 40))
+    figure = plot_paschen(curve)
+    drawn = lines_by_gid(figure)
+    ok = np.isfinite(curve.breakdown_voltage_V)
+    np.testing.assert_array_equal(drawn["paschen"].get_ydata(), curve.breakdown_voltage_V[ok])
+    np.testing.assert_array_equal(drawn["paschen_minimum"].get_xdata(), [curve.minimum_pd_Pa_m])
+    assert "paschen_asymptote" in drawn  # an attaching gas
+    assert any(text.get_text() == "Caution: " + CAUTION for text in figure.texts)
+
+
+def test_emission_sticks_and_note():
+    figure = plot_emission_spectrum([104.82, 106.67], [0.4, 1.0], ["1s2", "1s4"])
+    sticks = next(c for ax in figure.axes for c in ax.collections if c.get_gid() == "emission")
+    segments = sticks.get_segments()
+    np.testing.assert_array_equal([s[0][0] for s in segments], [104.82, 106.67])
+    np.testing.assert_array_equal([s[1][1] for s in segments], [0.4, 1.0])
+    assert any(text.get_text() == APPROXIMATION_NOTE for text in figure.texts)
+
+
+def test_save_figure_rejects_unknown_formats(tmp_path):
+    with pytest.raises(ConfigError, match="did you mean 'png'"):
+        save_figure(plot_emission_spectrum([100.0], [1.0], ["a"]), tmp_path / "x", ["pgn"])
