@@ -11,7 +11,7 @@ from matplotlib.figure import Figure
 from ..analysis.breakdown import CAUTION, PaschenCurve
 from ..constants import BOLTZMANN_J_K, TORR_Pa, TOWNSEND_V_m2
 from ..errors import ConfigError
-from .style import legend, log_x, new_figure, phase_axis, styled
+from .style import add_legend, new_figure, phase_axis, set_log_x, styled
 
 
 @styled
@@ -31,13 +31,13 @@ def plot_paschen(curve: PaschenCurve, title: str = "") -> Figure:
         voltage = curve.critical_reduced_field_Td * TOWNSEND_V_m2 * pd / (BOLTZMANN_J_K * curve.temperature_K)
         ax.plot(pd, voltage, ":", color="0.4", gid="paschen_asymptote",
                 label=f"(E/N)$_{{crit}}$ N d, (E/N)$_{{crit}}$ = {curve.critical_reduced_field_Td:.4g} Td")
-    log_x(ax, curve.pd_Pa_m)
+    set_log_x(ax, curve.pd_Pa_m)
     ax.set_yscale("log")
     ax.set_xlabel("p d [Pa m]")
     ax.set_ylabel("breakdown voltage [V]")
     top = ax.secondary_xaxis("top", functions=(lambda x: x * 100.0 / TORR_Pa, lambda x: x * TORR_Pa / 100.0))
     top.set_xlabel("p d [Torr cm]")
-    legend(ax)
+    add_legend(ax)
     ax.set_title(title or f"Paschen curve, {curve.gas_label or 'gas'}, T = {curve.temperature_K:g} K")
     figure.text(0.01, -0.02, "Caution: " + CAUTION, wrap=True, fontsize=6, va="top", gid="caution")
     return figure
@@ -86,7 +86,7 @@ def plot_phase_resolved_emission(phase_rad, relative_rate, labels: Sequence[str]
         ax.plot(phase_rad, rate[k], ".-", gid=f"emission_phase:{label}", label=label)
     phase_axis(ax)
     ax.set_ylabel("relative photon emission rate")
-    legend(ax)
+    add_legend(ax)
     if title:
         ax.set_title(title)
     figure.text(0.01, -0.02, APPROXIMATION_NOTE, wrap=True, fontsize=6, va="top", gid="note")

@@ -130,7 +130,7 @@ def save_figure(figure: Figure, stem, formats: Sequence[str] = FORMATS) -> list[
     return paths
 
 
-def errorbar(ax, x, y, err, gid: str, label: str, log_y: bool, **style):
+def draw_errorbar(ax, x, y, err, gid: str, label: str, log_y: bool, **style):
     """Error-bar series of the finite points (positive ones on a log axis), tagged with ``gid``."""
     x, y = np.asarray(x, dtype=float), np.asarray(y, dtype=float)
     err = np.zeros_like(y) if err is None else np.asarray(err, dtype=float)
@@ -143,7 +143,7 @@ def errorbar(ax, x, y, err, gid: str, label: str, log_y: bool, **style):
     return container
 
 
-def log_y(ax) -> None:
+def set_log_y(ax) -> None:
     """Log y axis whose range follows the data points, not error bars reaching towards zero (those run off the
     bottom of the panel)."""
     ax.set_yscale("log")
@@ -154,7 +154,7 @@ def log_y(ax) -> None:
         ax.set_ylim(low / 2.0, max(ax.get_ylim()[1], high * 1.5))
 
 
-def legend(ax, **kwargs) -> None:
+def add_legend(ax, **kwargs) -> None:
     """A legend sized to its entries (many entries: two small columns), if there is anything to label."""
     handles, labels = ax.get_legend_handles_labels()
     if not handles:
@@ -165,7 +165,7 @@ def legend(ax, **kwargs) -> None:
         ax.legend(loc="best", **kwargs)
 
 
-def log_x(ax, values) -> None:
+def set_log_x(ax, values) -> None:
     """Log x axis labelled with plain numbers: 1-2-5 ticks within two decades, decades beyond."""
     finite = np.asarray(values, dtype=float)
     finite = finite[np.isfinite(finite) & (finite > 0)]

@@ -22,13 +22,13 @@ from .style import (
     _SERIES_LABELS,
     DEFAULT_PANELS,
     PAIRS,
+    add_legend,
     axis_label,
-    errorbar,
-    legend,
-    log_x,
-    log_y,
+    draw_errorbar,
     new_figure,
     phase_axis,
+    set_log_x,
+    set_log_y,
     styled,
     use_log,
 )
@@ -242,26 +242,26 @@ def plot_swarm_parameters(table: SwarmTable, quantities: Sequence[str] | None = 
         series = [table.get(name) for name in members]
         log_y = use_log([values for values, _ in series])
         for name, (values, errors) in zip(members, series, strict=True):
-            errorbar(ax, fields, values, errors, name, _series_label(name, members), log_y,
+            draw_errorbar(ax, fields, values, errors, name, _series_label(name, members), log_y,
                       fmt="s--" if name.endswith("_bulk") or name.endswith("_simple") else "o-")
         if reference is not None:
             for name in members:
                 if name in reference.quantities:
                     values, errors = reference.quantities[name]
-                    errorbar(ax, reference.reduced_field_Td, values, errors, f"reference:{name}",
+                    draw_errorbar(ax, reference.reduced_field_Td, values, errors, f"reference:{name}",
                               f"{reference.label}" + (f" ({_series_label(name, members)})" if len(members) > 1
                                                       else ""), log_y, fmt="D", mfc="none", color="k")
         if panel == "alpha_N" and gas is not None:
             _handbook_overlay(ax, gas, fields)
-        log_x(ax, fields)
+        set_log_x(ax, fields)
         if log_y:
-            log_y(ax)
+            set_log_y(ax)
         unit = table.unit(members[0])
         ax.set_xlabel("reduced field E/N [Td]")
         ax.set_ylabel(axis_label(_PANEL_LABELS.get(panel, panel), unit))
         if not ax.has_data():
             ax.text(0.5, 0.5, "no finite values", transform=ax.transAxes, ha="center")
-        legend(ax)
+        add_legend(ax)
     figure.suptitle(_title(table))
     return figure
 
@@ -294,9 +294,9 @@ def plot_eedf(distributions: Mapping[float, tuple], title: str = "") -> Figure:
     for field_Td, (edges, values, errors) in sorted(distributions.items()):
         edges = np.asarray(edges, dtype=float)
         centres = 0.5 * (edges[:-1] + edges[1:])
-        errorbar(ax, centres, values, errors, f"eedf:{field_Td:g}", f"{field_Td:g} Td", True, fmt="-",
+        draw_errorbar(ax, centres, values, errors, f"eedf:{field_Td:g}", f"{field_Td:g} Td", True, fmt="-",
                   elinewidth=0.5, capsize=0)
-    log_y(ax)
+    set_log_y(ax)
     ax.set_xlabel("electron energy ε [eV]")
     ax.set_ylabel(axis_label("EEDF f(ε)", "eV^-3/2"))
     ax.legend(title="E/N")
@@ -372,11 +372,11 @@ def plot_phase_resolved(curves: Sequence[PhaseCurve], quantities: Sequence[str] 
         for curve in sorted(curves, key=lambda c: c.frequency_Hz):
             if name in curve.quantities:
                 values, errors = curve.quantities[name]
-                errorbar(ax, curve.phase_rad, values, errors, f"phase:{name}:{curve.frequency_Hz:g}", curve.label,
+                draw_errorbar(ax, curve.phase_rad, values, errors, f"phase:{name}:{curve.frequency_Hz:g}", curve.label,
                           False, fmt=".-")
         phase_axis(ax)
         ax.set_ylabel(axis_label(_PANEL_LABELS.get(name, name), quantity_unit(name)))
-        legend(ax)
+        add_legend(ax)
     return figure
 
 
@@ -449,7 +449,7 @@ def plot_sst_profiles(profiles: Sequence[SSTProfile], quantities: Sequence[str] 
                 continue
             values, errors = profile.quantities[name]
             label = "" if profile.reduced_field_Td is None else f"{profile.reduced_field_Td:g} Td"
-            container = errorbar(ax, profile.position_m, values, errors, f"sst:{name}:{profile.reduced_field_Td}",
+            container = draw_errorbar(ax, profile.position_m, values, errors, f"sst:{name}:{profile.reduced_field_Td}",
                                   label, log_y, fmt=".-")
             color = container.lines[0].get_color() if container else None
             if name == profile.flux_quantity:
@@ -458,10 +458,10 @@ def plot_sst_profiles(profiles: Sequence[SSTProfile], quantities: Sequence[str] 
                 ax.axvline(profile.relaxation_length_m, color=color, lw=0.8, ls="--",
                            gid=f"sst_relaxation:{profile.reduced_field_Td}")
         if log_y:
-            log_y(ax)
+            set_log_y(ax)
         ax.set_xlabel("distance from the emitting electrode x [m]")
         ax.set_ylabel(axis_label(_PANEL_LABELS.get(name, name.replace("_", " ")), quantity_unit(name)))
-        legend(ax)
+        add_legend(ax)
     return figure
 
 

@@ -184,7 +184,7 @@ writer.commit(rf.points[2], stand_in(2))
 
 def test_a_kill_during_a_commit_leaves_the_finished_points_intact(tmp_path):
     path = tmp_path / "crash.h5"
-    script = CRASH.format(tests=str(ROOT / "tests"), path=str(path))
+    script = CRASH.format(tests=str(Path(__file__).resolve().parent), path=str(path))
     proc = subprocess.run([sys.executable, "-c", script], cwd=ROOT, capture_output=True, text=True)
     assert proc.returncode == -9, proc.stderr
     rf = parse_runfile(RUN, "file-test.toml")
