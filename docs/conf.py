@@ -22,3 +22,17 @@ exclude_patterns = ["_build"]
 html_theme = "alabaster"
 nitpicky = False
 suppress_warnings = ["ref.python"]
+napoleon_use_ivar = True
+
+
+def _escape_bars(app, what, name, obj, options, lines):
+    """Docstrings write |x| for magnitudes; reStructuredText would read a substitution: escape the bars."""
+    for i, line in enumerate(lines):
+        stripped = line.strip()
+        grid_table = stripped.startswith(("|", "+")) and stripped.endswith(("|", "+"))
+        if "|" in line and not grid_table:
+            lines[i] = line.replace("|", r"\|")
+
+
+def setup(app):
+    app.connect("autodoc-process-docstring", _escape_bars)

@@ -205,6 +205,8 @@ class SwarmTable:
         temperature_K : float, optional
             Gas temperature [K] relating p to N; default the runs' (300 K if unknown).
 
+        Notes
+        -----
         Points where α/N or η/N is not finite (failed points, or a diffusion correction without a real solution)
         are left out (see :meth:`undefined_fields_Td`); η/N is zero when the table has none (a gas without
         attachment).
@@ -313,6 +315,8 @@ class SwarmTable:
         frequency_Hz : float, optional
             Drive frequency [Hz] (0 for DC); needed when the sweep has several.
 
+        Notes
+        -----
         Only finished points enter; missing and failed ones are listed in :attr:`notes`. The points' full results
         (EEDFs, phase-resolved data) are not read here; :attr:`point_index` locates them for
         :meth:`avalanche.store.sweep_file.SweepResults.point`.
