@@ -11,13 +11,14 @@ from matplotlib.figure import Figure
 from ..analysis.breakdown import CAUTION, PaschenCurve
 from ..constants import BOLTZMANN_J_K, TORR_Pa, TOWNSEND_V_m2
 from ..errors import ConfigError
-from .style import add_legend, new_figure, phase_axis, set_log_x, styled
+from .style import add_legend, attach_notes, new_figure, phase_axis, set_log_x, styled
 
 
 @styled
 def plot_paschen(curve: PaschenCurve, title: str = "") -> Figure:
     """Breakdown voltage against p d [Pa m] (bottom) and [Torr cm] (top), with the minimum, the asymptote
-    V = (E/N)_crit N d of an attaching gas, and :data:`avalanche.analysis.breakdown.CAUTION` under the plot."""
+    V = (E/N)_crit N d of an attaching gas, with :data:`avalanche.analysis.breakdown.CAUTION` in the
+    file's metadata (:func:`~avalanche.plots.style.attach_notes`), not drawn."""
     figure, (ax,) = new_figure(1, columns=1, height_in=3.6)
     ok = np.isfinite(curve.breakdown_voltage_V)
     ax.plot(curve.pd_Pa_m[ok], curve.breakdown_voltage_V[ok], "-", gid="paschen",
@@ -39,7 +40,7 @@ def plot_paschen(curve: PaschenCurve, title: str = "") -> Figure:
     top.set_xlabel("p d [Torr cm]")
     add_legend(ax)
     ax.set_title(title or f"Paschen curve, {curve.gas_label or 'gas'}, T = {curve.temperature_K:g} K")
-    figure.text(0.01, -0.02, "Caution: " + CAUTION, wrap=True, fontsize=6, va="top", gid="caution")
+    attach_notes(figure, caution="Caution: " + CAUTION)
     return figure
 
 
@@ -68,7 +69,7 @@ def plot_emission_spectrum(wavelength_nm, relative_rate, labels: Sequence[str], 
     ax.set_ylabel("relative photon emission rate")
     if title:
         ax.set_title(title)
-    figure.text(0.01, -0.02, APPROXIMATION_NOTE, wrap=True, fontsize=6, va="top", gid="note")
+    attach_notes(figure, note=APPROXIMATION_NOTE)
     return figure
 
 
@@ -89,5 +90,5 @@ def plot_phase_resolved_emission(phase_rad, relative_rate, labels: Sequence[str]
     add_legend(ax)
     if title:
         ax.set_title(title)
-    figure.text(0.01, -0.02, APPROXIMATION_NOTE, wrap=True, fontsize=6, va="top", gid="note")
+    attach_notes(figure, note=APPROXIMATION_NOTE)
     return figure

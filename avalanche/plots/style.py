@@ -21,6 +21,7 @@ import numpy as np
 from matplotlib.figure import Figure
 from matplotlib.ticker import FuncFormatter, LogLocator, NullFormatter
 
+from .._version import __version__
 from ..analysis.tables import did_you_mean
 from ..errors import ConfigError
 
@@ -108,8 +109,32 @@ def styled(function):
     return styled
 
 
+def attach_notes(figure: Figure, **notes: str) -> Figure:
+    """Keep notes that belong with a figure (the high-voltage caution, a model's approximation) beside it, not in
+    it: :func:`save_figure` writes them into the file's metadata (PNG and SVG ``Description``, PDF ``Subject``)
+    and the command line prints them in the terminal. Returns ``figure``."""
+    existing = dict(getattr(figure, "avalanche_notes", {}))
+    existing.update(notes)
+    figure.avalanche_notes = existing
+    return figure
+
+
+def _metadata(figure: Figure, fmt: str) -> dict:
+    """The metadata of a saved figure: its notes and the package version (keys each format supports)."""
+    notes = " ".join(getattr(figure, "avalanche_notes", {}).values())
+    software = f"avalanche {__version__}"
+    if fmt == "pdf":
+        data = {"Creator": software, "Subject": notes}
+    elif fmt == "png":
+        data = {"Software": software, "Description": notes}
+    else:
+        data = {"Creator": software, "Description": notes}
+    return {key: value for key, value in data.items() if value}
+
+
 def save_figure(figure: Figure, stem, formats: Sequence[str] = FORMATS) -> list[Path]:
-    """Write ``figure`` to ``stem.<format>`` for every format; returns the paths written.
+    """Write ``figure`` to ``stem.<format>`` for every format, with its notes (:func:`attach_notes`) and the
+    package version in the file's metadata; returns the paths written.
 
     Raises
     ------
@@ -125,7 +150,7 @@ def save_figure(figure: Figure, stem, formats: Sequence[str] = FORMATS) -> list[
                               "png, pdf or svg")
         path = stem.with_name(f"{stem.name}.{fmt}")
         with matplotlib.rc_context(PAPER_STYLE):
-            figure.savefig(path)
+            figure.savefig(path, metadata=_metadata(figure, fmt))
         paths.append(path)
     return paths
 

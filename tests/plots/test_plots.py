@@ -158,7 +158,7 @@ def test_sst_profile_growth_line():
     assert figure.axes[0].get_yscale() == "log"
 
 
-def test_paschen_plot_carries_the_caution():
+def test_paschen_plot_carries_the_caution(tmp_path):
     field = np.geomspace(30.0, 30000.0, 200)
     alpha = townsend_formula(12.0, 342.0, field, 293.0)  # N2 constants, Raizer 1991 table 4.1 (from memory)
     table = CoefficientTable(field, alpha, np.full(field.size, alpha[40]), temperature_K=293.0, gas_label="model")
@@ -169,7 +169,17 @@ def test_paschen_plot_carries_the_caution():
     np.testing.assert_array_equal(drawn["paschen"].get_ydata(), curve.breakdown_voltage_V[ok])
     np.testing.assert_array_equal(drawn["paschen_minimum"].get_xdata(), [curve.minimum_pd_Pa_m])
     assert "paschen_asymptote" in drawn  # an attaching gas
-    assert any(text.get_text() == "Caution: " + CAUTION for text in figure.texts)
+    # the caution goes with the file (metadata) and the terminal, never inside the figure (common practice for
+    # figures meant for papers)
+    assert not any("Caution" in text.get_text() for text in figure.texts)
+    assert figure.avalanche_notes["caution"] == "Caution: " + CAUTION
+    png, pdf, svg = save_figure(figure, tmp_path / "paschen", ("png", "pdf", "svg"))
+    from PIL import Image
+
+    assert Image.open(png).text["Description"] == "Caution: " + CAUTION
+    assert "avalanche" in Image.open(png).text["Software"]
+    assert b"Caution" in pdf.read_bytes()
+    assert "Caution" in svg.read_text(encoding="utf-8")
 
 
 def test_emission_sticks_and_note():
@@ -178,7 +188,7 @@ def test_emission_sticks_and_note():
     segments = sticks.get_segments()
     np.testing.assert_array_equal([s[0][0] for s in segments], [104.82, 106.67])
     np.testing.assert_array_equal([s[1][1] for s in segments], [0.4, 1.0])
-    assert any(text.get_text() == APPROXIMATION_NOTE for text in figure.texts)
+    assert not figure.texts and figure.avalanche_notes["note"] == APPROXIMATION_NOTE
 
 
 def test_save_figure_rejects_unknown_formats(tmp_path):
