@@ -48,6 +48,9 @@ def _plot_configure(p) -> None:
     p.add_argument("--eedf", default=None, metavar="TD,...",
                    help="E/N [Td] of the energy distributions to draw (nearest computed points; default: up to 4 "
                         "spread over the sweep; 'none' to skip)")
+    p.add_argument("--phase-en", default=None, metavar="TD",
+                   help="E/N amplitude [Td] of the AC phase panels (nearest computed point; default: the geometric "
+                        "middle of the sweep's fields)")
     p.add_argument("--format", default="png,pdf", help="figure formats, comma list of png, pdf, svg (png,pdf)")
 
 
@@ -152,8 +155,9 @@ def _plot(args) -> int:
             profiles = [sst_profile(results.point(int(table.point_index[k])))
                         for k in spread(4, table.reduced_field_Td.size)]
             written += save_figure(plot_sst_profiles(profiles), out / f"{stem}_sst_profiles", formats)
-        curves = phase_curves(results, mixture_index(results, args.mixture),
-                              float(np.exp(np.mean(np.log(table.reduced_field_Td)))))
+        wanted = fields_option(args.phase_en, "--phase-en")
+        phase_field = wanted[0] if wanted else float(np.exp(np.mean(np.log(table.reduced_field_Td))))
+        curves = phase_curves(results, mixture_index(results, args.mixture), phase_field)
         if curves:
             written += save_figure(plot_phase_resolved(curves), out / f"{stem}_phase", formats)
     show_warnings(caught, "plot")

@@ -19,7 +19,7 @@ from pathlib import Path
 import matplotlib
 import numpy as np
 from matplotlib.figure import Figure
-from matplotlib.ticker import FuncFormatter, LogLocator, NullFormatter
+from matplotlib.ticker import FuncFormatter, LogFormatter, LogLocator, NullFormatter
 
 from .._version import __version__
 from ..analysis.tables import did_you_mean
@@ -70,6 +70,11 @@ _PANEL_LABELS = {
     "penning_ionization_rate_coefficient": "Penning ionization rate coefficient",
     "penning_fraction": "Penning share of ionization",
     "rate_coefficients": "rate coefficients",
+    "drift_velocity_flux": "flux drift velocity W",
+    "drift_velocity_bulk": "bulk drift velocity W",
+    "reduced_field_Td": "reduced field E/N",
+    "collision_frequency": "collision frequency",
+    "power_absorbed_eV_s": "power absorbed per electron",
 }
 
 _SERIES_LABELS = {"flux": "flux", "bulk": "bulk", "simple": "ν/(N W)"}
@@ -168,6 +173,14 @@ def draw_errorbar(ax, x, y, err, gid: str, label: str, log_y: bool, **style):
     return container
 
 
+class PlainLogFormatter(LogFormatter):
+    """Tick labels of a log axis as plain numbers ("6", "0.2", "3e+04"), not "6×10⁰"; which minor ticks get a label
+    follows matplotlib's :class:`~matplotlib.ticker.LogFormatter` (all, a few or none, by the axis span)."""
+
+    def _num_to_string(self, x, vmin, vmax):
+        return f"{x:.3g}"
+
+
 def set_log_y(ax) -> None:
     """Log y axis whose range follows the data points, not error bars reaching towards zero (those run off the
     bottom of the panel)."""
@@ -177,12 +190,14 @@ def set_log_y(ax) -> None:
     if positive.size:
         low, high = float(positive.min()), float(positive.max())
         ax.set_ylim(low / 2.0, max(ax.get_ylim()[1], high * 1.5))
+        ax.yaxis.set_major_formatter(PlainLogFormatter())
+        ax.yaxis.set_minor_formatter(PlainLogFormatter(labelOnlyBase=False, minor_thresholds=(2, 0.5)))
 
 
 def add_legend(ax, **kwargs) -> None:
     """A legend sized to its entries (many entries: two small columns), if there is anything to label."""
     handles, labels = ax.get_legend_handles_labels()
-    if not handles:
+    if len(handles) < 2:  # one series needs no legend: the axis label names it
         return
     if len(handles) > 6:  # below the axes, so the curves stay visible
         ax.legend(loc="upper center", bbox_to_anchor=(0.5, -0.25), fontsize=5.5, ncols=2, **kwargs)

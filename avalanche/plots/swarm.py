@@ -184,7 +184,7 @@ def _series_label(name: str, members: list[str]) -> str:
     for suffix, label in _SERIES_LABELS.items():
         if name.endswith(f"_{suffix}"):
             return label
-    return "avalanche" if len(members) == 1 else name
+    return "Monte Carlo" if len(members) == 1 else name
 
 
 def handbook_gas_name(gas: str) -> str | None:
@@ -270,8 +270,6 @@ def _title(table: SwarmTable) -> str:
     parts = [table.gas_label or "swarm parameters"]
     if table.temperature_K is not None:
         parts.append(f"T = {table.temperature_K:g} K")
-    if table.source:
-        parts.append(Path(table.source).name)
     return ", ".join(parts)
 
 

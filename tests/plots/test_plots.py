@@ -11,6 +11,7 @@ import math
 
 import numpy as np
 import pytest
+from matplotlib.backends.backend_agg import FigureCanvasAgg
 
 from avalanche.analysis.breakdown import CAUTION, paschen_curve
 from avalanche.analysis.coefficients import (
@@ -34,6 +35,7 @@ from avalanche.plots import (
     read_reference,
     save_figure,
 )
+from avalanche.plots.style import draw_errorbar, new_figure, set_log_y
 from avalanche.store.sweep_file import open_results
 
 
@@ -115,6 +117,32 @@ def test_quantity_selection(argon):
     assert "rate_coefficient:1s4 (3p5 4s [3/2]1, resonant)" in drawn
     with pytest.raises(ConfigError, match="did you mean 'mean_energy_eV'"):
         plot_swarm_parameters(argon, ["mean_energy"])
+
+
+def test_labels_are_our_own_and_do_not_overlap(argon):
+    # several quantities at once: no two tick or axis labels of the figure overlap once drawn (the figure's own
+    # renderer measures them), the series of the computed data is not named after the package, the title holds
+    # no file name, and a log axis spanning less than two decades shows plain numbers ("6", not "6×10⁰")
+    figure = plot_swarm_parameters(argon, ["mean_energy_eV", "drift_velocity", "long_diffusion_N",
+                                           "trans_diffusion_N", "alpha_N", "eta_N", "rate_coefficients"])
+    renderer = FigureCanvasAgg(figure).get_renderer()
+    figure.draw(renderer)
+    for ax in figure.axes:
+        (x0, x1), (y0, y1) = sorted(ax.get_xlim()), sorted(ax.get_ylim())
+        labels = [t for t in ax.get_yticklabels(which="both") if t.get_text() and y0 <= t.get_position()[1] <= y1]
+        labels += [t for t in ax.get_xticklabels(which="both") if t.get_text() and x0 <= t.get_position()[0] <= x1]
+        boxes = [t.get_window_extent(renderer) for t in labels]
+        for i in range(len(boxes)):
+            for j in range(i + 1, len(boxes)):
+                assert not boxes[i].overlaps(boxes[j]), (labels[i].get_text(), labels[j].get_text())
+        assert "avalanche" not in [text for text in ax.get_legend_handles_labels()[1]]
+    assert ".h5" not in figure.get_suptitle()
+    narrow, (ax,) = new_figure(1, columns=1)
+    draw_errorbar(ax, [1.0, 2.0, 3.0], [2.0, 4.0, 8.0], None, "energy", "Monte Carlo", True)
+    set_log_y(ax)
+    FigureCanvasAgg(narrow).draw()
+    texts = [t.get_text() for t in ax.get_yticklabels(minor=True) + ax.get_yticklabels() if t.get_text()]
+    assert texts and not any("times" in text or "×" in text or "^" in text for text in texts), texts
 
 
 def test_eedf_plot(argon, outputs_results):  # noqa: F811
