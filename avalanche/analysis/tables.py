@@ -16,6 +16,7 @@ from __future__ import annotations
 import csv
 import io
 import math
+import re
 import warnings
 from collections.abc import Sequence
 from dataclasses import dataclass, field
@@ -66,7 +67,7 @@ RATE_PREFIX = "rate_coefficient:"
 COORDINATES = {"reduced-field": "reduced_field_Td", "mean-energy": "mean_energy_eV"}
 """Table coordinates (command-line spelling → column name)."""
 
-_TABLE_FORMAT = 1
+_TABLE_FORMAT = 2
 
 
 def rate_quantity(key: str) -> str:
@@ -430,32 +431,63 @@ class FluidTable:
                      "by its standard error q_stderr")
         return lines
 
-    def format_csv(self) -> str:
-        """The table as CSV: ``#`` comment lines, a line of column names, a line of units, one row per point.
+    def column_labels(self) -> dict[str, str]:
+        """Column name → the label written in files: the name itself, or for a per-process rate coefficient
+        (``rate_coefficient:<process>``) ``rate_coefficient_<process>`` with every run of characters other than
+        letters and digits turned into ``_``, so that every label is a valid identifier for pandas, numpy and
+        spreadsheets. The labels of a table are unique."""
+        labels, seen = {}, set()
+        for name in self.columns:
+            stderr = name.endswith("_stderr")
+            base = name.removesuffix("_stderr")
+            label = (base if not base.startswith(RATE_PREFIX) else
+                     "rate_coefficient_" + (re.sub(r"[^0-9A-Za-z]+", "_", base[len(RATE_PREFIX):]).strip("_") or "x"))
+            label += "_stderr" if stderr else ""
+            while label in seen:
+                label += "_"
+            seen.add(label)
+            labels[name] = label
+        return labels
 
-        Values are written with Python's shortest round-trip representation, so reading gives the same floats.
+    def format_csv(self, digits: int | None = 7) -> str:
+        """The table as CSV: ``#`` comment lines (metadata, the unit of every column, the process of every rate
+        column), then ONE line of column labels (:meth:`column_labels`) and one row per point, so that
+        ``pandas.read_csv(path, comment="#")`` gives numeric columns.
+
+        Parameters
+        ----------
+        digits : int or None
+            Significant digits of the values (default 7, beyond the statistical precision of any swarm run);
+            None writes Python's shortest round-trip representation, so reading gives the same floats.
         """
+        labels = self.column_labels()
         buffer = io.StringIO()
         for line in self._header_comments():
             buffer.write(f"# {line}\n")
-        buffer.write("# next line: column names; the line after it: units\n")
+        buffer.write("# units: " + "; ".join(f"{labels[n]} = {self.units[n] or '-'}" for n in self.names) + "\n")
+        for name in self.names:
+            if name.startswith(RATE_PREFIX) and not name.endswith("_stderr"):
+                buffer.write(f"# process of {labels[name]}: {name[len(RATE_PREFIX):]}\n")
         writer = csv.writer(buffer, lineterminator="\n")
-        writer.writerow(self.names)
-        writer.writerow([self.units[name] for name in self.names])
+        writer.writerow([labels[n] for n in self.names])
         for row in zip(*self.columns.values(), strict=True):
-            writer.writerow([repr(float(v)) for v in row])
+            writer.writerow([_number(v, digits) for v in row])
         return buffer.getvalue()
 
-    def format_text(self) -> str:
+    def format_text(self, digits: int | None = 7) -> str:
         """The table as whitespace-separated text readable by ``numpy.loadtxt``: every header line is a ``#``
-        comment, the last two being the column names and the units; whitespace inside a name or unit becomes ``_``
-        (``1/(m_s)``), which :func:`read_table` turns back into a space for units."""
-        names = ["_".join(name.split()) for name in self.names]
+        comment, the last two being the column labels (:meth:`column_labels`) and the units (``-`` for none, a
+        space inside a unit written ``_``, ``1/(m_s)``, which :func:`read_table` turns back). ``digits`` as for
+        :meth:`format_csv`."""
+        labels = self.column_labels()
+        names = [labels[name] for name in self.names]
         units = ["_".join(self.units[name].split()) or "-" for name in self.names]
-        cells = [[repr(float(v)) for v in values] for values in self.columns.values()]
+        cells = [[_number(v, digits) for v in values] for values in self.columns.values()]
         widths = [max(len(n), len(u), *(len(c) for c in column))
                   for n, u, column in zip(names, units, cells, strict=True)]
         lines = [f"# {line}" for line in self._header_comments()]
+        lines += [f"# process of {labels[name]}: {name[len(RATE_PREFIX):]}" for name in self.names
+                  if name.startswith(RATE_PREFIX) and not name.endswith("_stderr")]
         lines.append("# last two comment lines: column names, then units")
         lines.append("# " + " ".join(n.rjust(w) for n, w in zip(names, widths, strict=True)))
         lines.append("# " + " ".join(u.rjust(w) for u, w in zip(units, widths, strict=True)))
@@ -463,13 +495,17 @@ class FluidTable:
             lines.append("  " + " ".join(c.rjust(w) for c, w in zip(row, widths, strict=True)))
         return "\n".join(lines) + "\n"
 
-    def to_csv(self, path) -> Path:
+    def to_csv(self, path, digits: int | None = 7) -> Path:
         """Write :meth:`format_csv` to ``path``; returns the path."""
-        return _write(path, self.format_csv())
+        return _write(path, self.format_csv(digits))
 
-    def to_text(self, path) -> Path:
+    def to_text(self, path, digits: int | None = 7) -> Path:
         """Write :meth:`format_text` to ``path``; returns the path."""
-        return _write(path, self.format_text())
+        return _write(path, self.format_text(digits))
+
+
+def _number(value, digits: int | None) -> str:
+    return repr(float(value)) if digits is None else f"{float(value):.{digits}g}"
 
 
 def _write(path, text: str) -> Path:
@@ -554,7 +590,7 @@ def _parse_header(comments: list[str], path) -> dict[str, str]:
     metadata = {}
     for line in comments[1:]:
         key, sep, value = line.partition(": ")
-        if sep and " " not in key:
+        if sep and " " not in key and key != "units":
             metadata[key] = value
     if not comments or not comments[0].startswith("avalanche fluid-model table"):
         raise ConfigError(f"{path}: not an avalanche fluid-model table (first line should start with "
@@ -577,13 +613,26 @@ def read_table(path) -> FluidTable:
     comments = [line[1:].strip() for line in lines if line.startswith("#")]
     body = [line for line in lines if line.strip() and not line.startswith("#")]
     metadata = _parse_header(comments, path)
+    processes = {line.split(": ", 1)[0][len("process of "):]: line.split(": ", 1)[1]
+                 for line in comments if line.startswith("process of ")}
     if any("last two comment lines" in line for line in comments):
         names = comments[-2].split()
         units = [("" if u == "-" else u.replace("_", " ")) for u in comments[-1].split()]
         rows = [line.split() for line in body]
-    else:
+    elif any(line.startswith("next line: column names") for line in comments):  # format 1: names, then units
         parsed = list(csv.reader(body))
         names, units, rows = parsed[0], parsed[1], parsed[2:]
+    else:
+        parsed = list(csv.reader(body))
+        names, rows = parsed[0], parsed[1:]
+        units_line = next((line for line in comments if line.startswith("units: ")), None)
+        if units_line is None:
+            raise ConfigError(f"{path}: no '# units:' line; write the table with `avalanche table`")
+        unit_of = dict(item.split(" = ", 1) for item in units_line[len("units: "):].split("; "))
+        units = [("" if unit_of.get(name) == "-" else unit_of.get(name, "")) for name in names]
+    names = [RATE_PREFIX + processes[n] if n in processes else
+             RATE_PREFIX + processes[n.removesuffix("_stderr")] + "_stderr"
+             if n.endswith("_stderr") and n.removesuffix("_stderr") in processes else n for n in names]
     if len(names) != len(units):
         raise ConfigError(f"{path}: {len(names)} column names but {len(units)} units; the header is damaged")
     for number, row in enumerate(rows, start=1):

@@ -323,8 +323,11 @@ def _breakdown(args) -> int:
     out, name = Path(args.out), f"paschen_{_safe_name(curve.gas_label or args.gas or 'gas')}"
     files = [_write_curve_csv(out / f"{name}.csv", curve, source)]
     files += save_figure(plot_paschen(curve), out / name, formats)
-    for k, piece in enumerate(computed):
-        files.append(fluid_table(piece).to_csv(out / f"{name}_coefficients{k or ''}.csv"))
+    if computed:  # every point computed here (on-demand grid and extensions) in one coefficient file
+        merged = computed[0]
+        for piece in computed[1:]:
+            merged = merged.merged(piece)
+        files.append(fluid_table(merged).to_csv(out / f"{name}_coefficients.csv"))
     critical = curve.critical_reduced_field_Td
     field_1atm = (None if critical is None else
                   critical * TOWNSEND_V_m2 * STANDARD_ATMOSPHERE_Pa / (BOLTZMANN_J_K * temperature))

@@ -30,8 +30,11 @@ DEMO_FIELDS_Td = (100.0, 200.0, 300.0, 500.0, 800.0, 1200.0, 1800.0)
 DEMO_GAMMA = 0.01
 """Secondary-electron yield of the demo's Paschen curve (a round value for metal cathodes in argon; common
 practice)."""
-DEMO_PD_TORR_CM = "0.3:20:25"
-"""p d range of the demo's Paschen curve [Torr cm]."""
+DEMO_PD_TORR_CM = "0.5:20:25"
+"""p d range of the demo's Paschen curve [Torr cm]: both branches around the minimum (near 0.8 Torr cm)."""
+DEMO_PASCHEN_GRID_Td = "100:2000:6"
+"""E/N grid [Td] of the demo's steady-state Townsend coefficients: it covers the breakdown fields of the whole p d
+range (about 117 Td at 20 Torr cm, 1500 Td at 0.5 Torr cm), so no point is added on demand."""
 DEMO_AC_FREQUENCY_Hz = 13.56e6
 DEMO_AC_AMPLITUDE_Td = 300.0
 """The demo's AC point: the 13.56 MHz industrial band, field amplitude E_0/N [Td]."""
@@ -107,7 +110,7 @@ def run_demo(out_dir: str | Path, run_command: Callable[[list[str]], int],
     ac_file = run_ac_point(out / "demo_ac.h5")
     print(f"\n[5/5] Paschen curve of a uniform argon gap, gamma = {DEMO_GAMMA:g}, from steady-state Townsend alpha/N "
           f"-> {out / 'demo_paschen'}")
-    fields = f"{DEMO_FIELDS_Td[2]:g}:{DEMO_FIELDS_Td[-1]:g}:5"
+    fields = DEMO_PASCHEN_GRID_Td
     _step(run_command, ["breakdown", "--gas", "Ar", "--pressure", "1000", "--temperature", "300",
                         "--coefficients", "sst", "--en", fields, "--gamma", f"{DEMO_GAMMA:g}",
                         "--pd", DEMO_PD_TORR_CM, "--precision", "0.03",

@@ -13,6 +13,7 @@ from pathlib import Path
 import numpy as np
 
 from ..analysis.tables import SwarmTable, fluid_table
+from ..errors import ConfigError
 from .common import (
     SST_MODE,
     fields_option,
@@ -174,9 +175,13 @@ def _table_configure(p) -> None:
                    help="output file (default: print to stdout); .txt or .dat selects the text format")
     p.add_argument("--against", default="reduced-field", choices=["reduced-field", "mean-energy"],
                    help="coordinate of the first column, sorted and strictly increasing (default reduced-field)")
-    p.add_argument("--format", default=None, choices=["csv", "text"],
-                   help="csv (names line, units line, comma-separated) or text (whitespace-separated, header as "
-                        "# comments, for numpy.loadtxt); default from the --out suffix, else csv")
+    p.add_argument("--table-format", "--format", dest="table_format", default=None, choices=["csv", "text"],
+                   help="csv (# comment lines with metadata and units, one line of column names, comma-separated "
+                        "values: pandas.read_csv(path, comment='#')) or text (whitespace-separated, header as # "
+                        "comments, for numpy.loadtxt); default from the --out suffix, else csv (--format is the "
+                        "older spelling)")
+    p.add_argument("--digits", type=int, default=7, metavar="N",
+                   help="significant digits of the values (default 7); 0 writes the shortest exact round-trip form")
     p.add_argument("--quantity", default=None, metavar="LIST", help="comma list of quantities (default: all)")
 
 
@@ -186,8 +191,11 @@ def _table(args) -> int:
     results = open_file(args.results)
     table = load_table(results, args, "table")
     fluid = fluid_table(table, against=args.against, quantities=split_list(args.quantity))
-    fmt = args.format or ("text" if args.out and Path(args.out).suffix.lower() in (".txt", ".dat") else "csv")
-    text = fluid.format_text() if fmt == "text" else fluid.format_csv()
+    fmt = args.table_format or ("text" if args.out and Path(args.out).suffix.lower() in (".txt", ".dat") else "csv")
+    if args.digits < 0 or args.digits > 17:
+        raise ConfigError(f"--digits {args.digits}: give 1 to 17 significant digits, or 0 for the exact form")
+    digits = args.digits or None
+    text = fluid.format_text(digits) if fmt == "text" else fluid.format_csv(digits)
     if args.out is None:
         sys.stdout.write(text)
         return 0

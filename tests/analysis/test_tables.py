@@ -6,6 +6,8 @@ quantities are the SI units of their definitions (common practice).
 
 from __future__ import annotations
 
+import re
+
 import numpy as np
 import pytest
 
@@ -28,22 +30,40 @@ def test_fluid_table_equals_the_results_file(outputs_results, tmp_path):  # noqa
         assert fluid.units[name] == fluid.units[f"{name}_stderr"] == results.units[name]
     assert not any(name.startswith("rate_coefficient:N2:") for name in fluid.names)  # the other mixture's processes
     for writer in (fluid.to_csv, fluid.to_text):
-        back = read_table(writer(tmp_path / f"t.{writer.__name__}"))
-        assert back.coordinate == fluid.coordinate and back.metadata["gas"] == "Ar"
-        assert [back.units[n] for n in back.names] == [fluid.units[n] for n in fluid.names]
-        for (name, values), other in zip(fluid.columns.items(), back.columns.values(), strict=True):
-            np.testing.assert_array_equal(values, other, err_msg=name)  # shortest round-trip floats: exact
+        for digits in (None, 7):
+            back = read_table(writer(tmp_path / f"t.{writer.__name__}", digits))
+            assert back.coordinate == fluid.coordinate and back.metadata["gas"] == "Ar"
+            assert back.names == fluid.names
+            assert [back.units[n] for n in back.names] == [fluid.units[n] for n in fluid.names]
+            for (name, values), other in zip(fluid.columns.items(), back.columns.values(), strict=True):
+                if digits is None:  # shortest round-trip floats: exact
+                    np.testing.assert_array_equal(values, other, err_msg=name)
+                else:  # rounding to 7 significant digits: relative error at most 5e-7 (arithmetic)
+                    np.testing.assert_allclose(other, values, rtol=5e-7, atol=0, err_msg=name)
 
 
-def test_csv_header_has_names_then_units(tmp_path):
+def test_csv_reads_as_numbers_in_pandas(outputs_results, tmp_path):  # noqa: F811
+    # one header line of safe names, numeric columns: what a general-purpose reader (pandas) expects of a CSV
+    pandas = pytest.importorskip("pandas")
+    fluid = fluid_table(SwarmTable.from_results(open_results(outputs_results), mixture="Ar"))
+    frame = pandas.read_csv(fluid.to_csv(tmp_path / "rates.csv"), comment="#")
+    assert list(frame.columns) == list(fluid.column_labels().values())
+    assert all(dtype.kind in "fi" for dtype in frame.dtypes)  # numbers, not strings
+    assert all(re.fullmatch(r"[A-Za-z_][A-Za-z0-9_]*", name) for name in frame.columns)
+    np.testing.assert_allclose(frame["alpha_N"], fluid["alpha_N"], rtol=5e-7)
+
+
+def test_csv_header_is_one_line_with_units_in_a_comment(tmp_path):
     table = SwarmTable([20.0, 10.0], {"drift_velocity_bulk": ([2.0, 1.0], [0.1, 0.1]),
                                       "long_diffusion_N_bulk": ([4.0, 3.0], [0.2, 0.2])})
-    lines = [line for line in fluid_table(table).format_csv().splitlines() if not line.startswith("#")]
+    text = fluid_table(table).format_csv()
+    lines = [line for line in text.splitlines() if not line.startswith("#")]
     assert lines[0] == ("reduced_field_Td,drift_velocity_bulk,drift_velocity_bulk_stderr,long_diffusion_N_bulk,"
                         "long_diffusion_N_bulk_stderr")
     # SI units of the definitions: W in m/s, N·D in 1/(m s) (common practice).
-    assert lines[1] == "Td,m/s,m/s,1/(m s),1/(m s)"
-    assert lines[2].startswith("10.0,1.0,")  # sorted by E/N
+    assert ("# units: reduced_field_Td = Td; drift_velocity_bulk = m/s; drift_velocity_bulk_stderr = m/s; "
+            "long_diffusion_N_bulk = 1/(m s); long_diffusion_N_bulk_stderr = 1/(m s)") in text.splitlines()
+    assert lines[1] == "10,1,0.1,3,0.2"  # sorted by E/N, 7 significant digits
 
 
 def test_mean_energy_coordinate_sorted_or_refused():
@@ -108,3 +128,15 @@ def test_from_swarm_results_keeps_every_estimate():
     for key, estimate in runs[0].rate_coefficients.items():
         assert table.get(f"rate_coefficient:{key}")[0][1] == estimate.value
     assert set(table.eedf) == {12.0, 24.0} and table.gas_label == "reid-ramp"
+
+
+def test_a_table_of_the_first_format_still_reads(tmp_path):
+    # tables written before the one-header-line CSV (names line, then units line) keep opening
+    old = tmp_path / "old.csv"
+    old.write_text("# avalanche fluid-model table (format 1), avalanche 0.1.0\n# gas: Ar\n"
+                   "# coordinate: reduced_field_Td, sorted and strictly increasing\n"
+                   "# next line: column names; the line after it: units\n"
+                   "reduced_field_Td,alpha_N,alpha_N_stderr\nTd,m2,m2\n100.0,1e-21,2e-23\n200.0,3e-21,4e-23\n")
+    back = read_table(old)
+    assert back.units["alpha_N"] == "m2" and back.metadata["gas"] == "Ar"
+    np.testing.assert_array_equal(back["alpha_N"], [1e-21, 3e-21])

@@ -68,7 +68,7 @@ def test_demo_runs_the_whole_job_and_says_where_each_output_went(capsys, tmp_pat
     from avalanche.cli.demo import DEMO_FIELDS_Td
 
     assert main(["demo", "--out", str(tmp_path)]) == 0
-    out = capsys.readouterr().out
+    out, err = capsys.readouterr()
     for name in ("demo.toml", "demo.h5", "demo_rates.csv", "demo_plots/demo_swarm.png", "demo_plots/demo_eedf.png",
                  "demo_ac.h5", "demo_paschen/paschen_Ar.csv", "demo_paschen/paschen_Ar.png"):
         path = tmp_path / name
@@ -85,6 +85,9 @@ def test_demo_runs_the_whole_job_and_says_where_each_output_went(capsys, tmp_pat
     assert re.search(r"regime: (quasi-static|effective-field|neither) \(omega/nu_m = ", out)
     # the Paschen minimum is found inside the computed range (steady-state Townsend alpha/N of argon)
     assert re.search(r"minimum: [0-9.]+ V at p d", out)
+    # its grid covers the p d range: no point added on demand, one coefficient file
+    assert "the breakdown field lies" not in err
+    assert [p.name for p in (tmp_path / "demo_paschen").glob("*coefficients*")] == ["paschen_Ar_coefficients.csv"]
     # a second demo resumes the finished file instead of recomputing it
     assert main(["demo", "--out", str(tmp_path)]) == 0
     assert "exists: finished points are kept" in capsys.readouterr().out
@@ -98,4 +101,4 @@ def _csv_names(path) -> list[str]:
 def _header_lines(path) -> int:
     lines = path.read_text().splitlines()
     comments = sum(1 for line in lines if line.startswith("#"))
-    return comments + 2  # the names line and the units line follow the comments
+    return comments + 1  # one line of column names follows the comments
