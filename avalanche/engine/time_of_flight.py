@@ -68,6 +68,7 @@ from .estimators import EstimatorContext, energy_distribution, extrapolated_frac
 from .results import ESTIMATE_UNITS, SwarmResult
 from .tables import (  # noqa: F401  (re-exported: the engine's tables are part of its interface)
     ACTIONS,
+    COLD_GAS_GROUPS,
     EXTRAPOLATION_WARNING,
     SCATTERING_MODELS,
     SHARING_RULES,
@@ -201,7 +202,8 @@ def ensure_compiled() -> None:
                     np.zeros((1, K.N_COUNTS), dtype=np.int64), i2.copy(), i2.copy(), i2.copy(), np.zeros(1),
                     np.zeros(1), np.full(1, -1, dtype=np.int64), 0.0, *(np.zeros(0),) * 4,
                     np.zeros((1, 0, K.N_PHASE_SUMS)),
-                    np.zeros((1, 0, K.N_PHASE_COUNTS), dtype=np.int64), np.zeros((1, 0, 1), dtype=np.int64))
+                    np.zeros((1, 0, K.N_PHASE_COUNTS), dtype=np.int64), np.zeros((1, 0, 1), dtype=np.int64),
+                    COLD_GAS_GROUPS)
 
 
 class _Run:
@@ -253,7 +255,7 @@ class _Run:
                             o.sums, o.counts, o.hist, o.process_counts, o.extrapolated, t.penning_probability,
                             t.penning_energy_eV, t.penning_slot, self.period_s, *self.wave, self.phase_out.sums,
                             self.phase_out.counts,
-                            self.phase_out.process)
+                            self.phase_out.process, g.thermal_groups)
             self.events += int(o.counts[:, K.COUNT_EVENTS].sum())
             self.anomalies["frequency_above_bound"] += int(o.counts[:, K.COUNT_ABOVE_BOUND].sum())
             above = bool(o.counts[:, K.COUNT_ABOVE_GRID].any())
