@@ -17,7 +17,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from .. import kernels as K
-from ..constants import BOLTZMANN_J_K, EV_J, ATOMIC_MASS_UNIT_kg, ELECTRON_MASS_kg
+from ..constants import BOLTZMANN_J_K, ELEMENTARY_CHARGE_C, EV_J, ATOMIC_MASS_UNIT_kg, ELECTRON_MASS_kg, TOWNSEND_V_m2
 from ..errors import ConfigError, PhysicsWarning
 from ..gas.mixture import Mixture
 from ..gas.penning import kernel_arrays
@@ -177,6 +177,35 @@ def target_groups(table: ProcessTable) -> list[tuple[int, int, float]]:
         else:
             groups.append((k, k + 1, float(table.thermal_speed[k])))
     return groups
+
+
+def near_equilibrium_energy_eV(table: ProcessTable, number_density_m3: float, reduced_field_Td: float,
+                               temperature_K: float, ceiling_eV: float) -> float:
+    """A start energy [eV] near the steady state of a gas at T > 0 and low E/N, from the elastic energy balance.
+
+    Momentum balance W = eE/(m ν) and energy balance e E W = Σ_k 2 m M_k/(m + M_k)² ν_k (ε − 3kT/2) over the
+    elastic processes give ε = 3kT/2 + (eE)²/(m ν Σ_k 2 m M_k/(m + M_k)² ν_k), with the frequencies read at ε
+    (the two-term balance behind Wannier's ⟨ε⟩ = 3kT/2 + M W²/2; Wannier G H 1953, Bell Syst. Tech. J. 32 170,
+    from memory), solved by fixed-point iteration. Inelastic losses are left out, so the estimate is high where
+    they matter: it is capped at ``ceiling_eV`` (the default start). A start near the steady state saves the
+    energy relaxation of thousands of elastic collisions at low E/N.
+    """
+    kT_eV = BOLTZMANN_J_K * temperature_K / EV_J
+    field_V_m = reduced_field_Td * TOWNSEND_V_m2 * number_density_m3
+    elastic = np.array([kind == "elastic" for kind in table.kinds])
+    loss = 2.0 * table.electron_fraction * table.target_fraction * elastic
+    energy = 1.5 * kT_eV
+    for _ in range(60):
+        nu = table.frequencies(np.array([energy]))[:, 0]
+        rate = float(nu.sum()) * float(loss @ nu)
+        if not rate > 0:
+            return ceiling_eV
+        new = 1.5 * kT_eV + (ELEMENTARY_CHARGE_C * field_V_m) ** 2 / (ELECTRON_MASS_kg * rate) / EV_J
+        new = min(new, ceiling_eV)
+        if abs(new - energy) <= 1e-6 * new:
+            return new
+        energy = math.sqrt(energy * new)  # geometric damping: the map can overshoot where ν changes steeply
+    return energy
 
 
 @dataclass(frozen=True, eq=False)

@@ -50,7 +50,7 @@ from __future__ import annotations
 import math
 import time
 import warnings
-from dataclasses import asdict, dataclass
+from dataclasses import asdict, dataclass, replace
 
 import numba
 import numpy as np
@@ -78,6 +78,7 @@ from .tables import (  # noqa: F401  (re-exported: the engine's tables are part 
     ProcessTable,
     extrapolation_notice,
     momentum_transfer_fraction,
+    near_equilibrium_energy_eV,
 )
 from .tallies import SwarmTallies
 
@@ -384,8 +385,9 @@ def swarm(mixture: Mixture | str, reduced_field_Td: float, *, seed=0, precision:
         (:func:`avalanche.engine.drive.load_waveform`).
     **more
         replicas (16), precision_on ('auto' or an estimate name), energy_cells (8192), energy_max_eV (initial grid
-        top, default 10 × initial_energy_eV), energy_limit_eV (1e5, runaway guard), initial_energy_eV (1.0, mean
-        of the initial Maxwellian), events_per_chunk (48, trial events per electron per chunk),
+        top, default 10 × initial_energy_eV), energy_limit_eV (1e5, runaway guard), initial_energy_eV (mean of the
+        initial Maxwellian: 1.0 in a cold gas; at T > 0 the elastic energy balance at E/N, at most 1.0, so that
+        low-field points start near their steady state), events_per_chunk (48, trial events per electron per chunk),
         population_bounds ((0.6, 1.5)), eedf_bins (200), diffusion_skip (4 energy relaxation times),
         diffusion_segment (3 × the skip).
 
@@ -417,6 +419,9 @@ def swarm(mixture: Mixture | str, reduced_field_Td: float, *, seed=0, precision:
         raise ConfigError(f"swarm(): mixture must be a Mixture or a gas string, got {type(mixture).__name__}")
     reduced_field_Td = _positive("reduced_field_Td", reduced_field_Td)
     drive = make_drive(reduced_field_Td, frequency_Hz, phase_bins, dc_offset_Td, waveform)
+    if "initial_energy_eV" not in more and mixture.temperature_K > 0:
+        settings = replace(settings, initial_energy_eV=_thermal_start_eV(mixture, reduced_field_Td + abs(dc_offset_Td),
+                                                                        settings))
     previous = numba.get_num_threads()
     if threads is not None:
         threads = _positive("threads", threads, integer=True)
@@ -436,16 +441,29 @@ def swarm(mixture: Mixture | str, reduced_field_Td: float, *, seed=0, precision:
     return result
 
 
+def _thermal_start_eV(mixture: Mixture, reduced_field_Td: float, settings: Settings) -> float:
+    """The default start energy of a gas at T > 0: the elastic energy balance at E/N (an AC drive: its peak),
+    capped at the cold-gas default ``settings.initial_energy_eV`` (see :func:`near_equilibrium_energy_eV`)."""
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", PhysicsWarning)  # given again when the run builds its tables
+        table = ProcessTable.build(mixture, settings.sharing, settings.scattering)
+    return near_equilibrium_energy_eV(table, mixture.number_density_m3, reduced_field_Td, mixture.temperature_K,
+                                      settings.initial_energy_eV)
+
+
 def _energy_relaxation_time(run: _Run, mean_energy_eV: float, drift_velocity: float, frequency: float) -> float:
     """τ_ε = (⟨ε⟩ − 3kT/2) / (e E W) [s], the time the field takes to supply the swarm's excess energy (exact
     energy relaxation time of the Maxwell model); where that is not positive, the elastic estimate
-    M / (2 m ν) with the mixture's mean mass and the real collision frequency ν."""
+    M / (2 m ν) with the mixture's mean mass and the real collision frequency ν. In a gas at T > 0 the smaller of
+    the two: near thermal equilibrium the excess ⟨ε⟩ − 3kT/2 is small and noisy, while the elastic estimate bounds
+    the relaxation time (inelastic collisions only shorten it)."""
     tau = (mean_energy_eV - 1.5 * run.kT_eV) / (run.field_V_m * drift_velocity)
-    if math.isfinite(tau) and tau > 0:
-        return tau
     fraction = sum(c.fraction * ELECTRON_MASS_kg / (c.cross_sections.mass_amu * ATOMIC_MASS_UNIT_kg)
                    for c in run.mixture.components)
-    return 1.0 / (2.0 * fraction * frequency) if frequency > 0 else math.nan
+    elastic = 1.0 / (2.0 * fraction * frequency) if frequency > 0 else math.nan
+    if math.isfinite(tau) and tau > 0:
+        return min(tau, elastic) if run.kT_eV > 0 and math.isfinite(elastic) else tau
+    return elastic
 
 
 def _shrink_grid(run: _Run, recent_max_eV: float, factor: float) -> None:
