@@ -33,7 +33,8 @@ TRIAL_MARGIN = 1e-3
 THERMAL_MARGIN_SPEEDS = 8.0
 """At T > 0 the tables reach up to the relative energy ½ m_e (v_max + THERMAL_MARGIN_SPEEDS √(kT/M))², v_max the
 speed at the top of the electron grid: a Maxwellian target is faster than 8 √(kT/M) with probability ~1e-13."""
-COLD_GAS_GROUPS = (np.zeros(0), np.zeros(0, dtype=np.int64), np.zeros(0, dtype=np.int64), np.zeros(0))
+COLD_GAS_GROUPS = (np.zeros(0), np.zeros(0, dtype=np.int64), np.zeros(0, dtype=np.int64), np.zeros(0),
+                   np.zeros((0, 0)))
 """The kernels' ``thermal_groups`` argument of a cold gas (no target group: targets at rest)."""
 EXTRAPOLATION_WARNING = 0.01
 """A PhysicsWarning is given when more than this fraction of the real collisions fall beyond their tables."""
@@ -179,6 +180,22 @@ def target_groups(table: ProcessTable) -> list[tuple[int, int, float]]:
     return groups
 
 
+def window_max(values: np.ndarray, low: np.ndarray, high: np.ndarray) -> np.ndarray:
+    """max(values[low[i]:high[i]]) for every i (high > low), from a sparse table of maxima over windows of 2^j
+    (Bender M A & Farach-Colton M 2000, LATIN 2000, LNCS 1776 88: range-minimum queries; from memory)."""
+    levels = [np.asarray(values, dtype=float)]
+    while 2 ** len(levels) <= levels[0].size:
+        width = 2 ** (len(levels) - 1)
+        levels.append(np.maximum(levels[-1][:-width], levels[-1][width:]))
+    j = np.floor(np.log2(high - low)).astype(np.int64)
+    out = np.empty(low.size)
+    for level in np.unique(j):
+        pick = j == level
+        table = levels[level]
+        out[pick] = np.maximum(table[low[pick]], table[high[pick] - 2 ** level])
+    return out
+
+
 def near_equilibrium_energy_eV(table: ProcessTable, number_density_m3: float, reduced_field_Td: float,
                                temperature_K: float, ceiling_eV: float) -> float:
     """A start energy [eV] near the steady state of a gas at T > 0 and low E/N, from the elastic energy balance.
@@ -218,8 +235,10 @@ class EnergyGrid:
     the nodes continue with the same spacing up to (√ε_max + √ε_th)², ε_th = ½ m_e (THERMAL_MARGIN_SPEEDS √(kT/M))²
     for the lightest species, and each species s gets its own band ν*_s = (1 + TRIAL_MARGIN) max over all these
     nodes of Σ_{k∈s} N_k σ_k g, a bound of its frequency over the thermal spread of V; ν* = Σ_s ν*_s
-    (``thermal_groups`` holds the band edges). A frequency above its band is counted by the kernels
-    (COUNT_ABOVE_BOUND), as in the cold gas.
+    (``thermal_groups`` holds the band edges). Per electron cell c and species, ``local`` bounds ν_s over the
+    nodes from (√ε_c − √ε_th)² to (√ε_c+1 + √ε_th)² (the relative energies an electron of that cell can meet, with
+    the nodes around them), so that the kernel decides most null events before drawing a target. A frequency
+    above its bound is counted by the kernels (COUNT_ABOVE_BOUND), as in the cold gas.
     """
 
     energy_max_eV: float
@@ -248,10 +267,18 @@ class EnergyGrid:
         if not groups:
             return cls(energy_max_eV=float(energy_max_eV), n_cells=int(n_cells), nu_star=peak * (1.0 + TRIAL_MARGIN),
                        nu_total=total, nu_cumulative=cumulative)
-        bands = [(1.0 + TRIAL_MARGIN) * float(nu[first:last].sum(axis=0).max()) for first, last, _ in groups]
+        group_nu = np.array([nu[first:last].sum(axis=0) for first, last, _ in groups])
+        bands = (1.0 + TRIAL_MARGIN) * group_nu.max(axis=1)
         upper = np.cumsum(bands)
+        # per electron cell [ε_c, ε_c+1]: the relative energies (√ε ∓ √ε_th)² reachable, as whole node ranges
+        root = np.sqrt(nodes[:n_cells + 1])
+        reach = math.sqrt(margin_eV)
+        low = np.floor(np.maximum(root[:-1] - reach, 0.0) ** 2 / cell_eV).astype(np.int64)
+        high = np.minimum(np.ceil((root[1:] + reach) ** 2 / cell_eV).astype(np.int64) + 1, nodes.size)
+        local = np.minimum((1.0 + TRIAL_MARGIN) * np.array([window_max(v, low, high) for v in group_nu]).T, bands)
         thermal_groups = (upper, np.array([g[0] for g in groups], dtype=np.int64),
-                          np.array([g[1] for g in groups], dtype=np.int64), np.array([g[2] for g in groups]))
+                          np.array([g[1] for g in groups], dtype=np.int64), np.array([g[2] for g in groups]),
+                          np.ascontiguousarray(local))
         return cls(energy_max_eV=float(energy_max_eV), n_cells=int(n_cells), nu_star=float(upper[-1]),
                    nu_total=total, nu_cumulative=cumulative, thermal_groups=thermal_groups)
 

@@ -243,7 +243,7 @@ def select_process(level, c, f, nu_cumulative, n_proc):
 
 
 @jit
-def thermal_trial(level, ux, uy, uz, inv_cell_eV, nu_cumulative, thermal_groups, s0, s1, s2, s3):
+def thermal_trial(level, ux, uy, uz, electron_cell, inv_cell_eV, nu_cumulative, thermal_groups, s0, s1, s2, s3):
     """One trial event of an electron of velocity (ux, uy, uz) [m/s] in a gas of Maxwellian targets.
 
     The trial frequency is split into one band per target group (the processes of one species, rows
@@ -256,7 +256,9 @@ def thermal_trial(level, ux, uy, uz, inv_cell_eV, nu_cumulative, thermal_groups,
     rest); the process is selected at the same ε_rel. Each band is an independent thinned Poisson process of
     rate ν*_s, so the real collisions with species s have the exact rate N_s ⟨σ_s(g) g⟩ over the Maxwellian, and
     the partner's velocity has the collision-weighted density f_s(V) σ_k(g) g, used unchanged in the
-    kinematics (:func:`scatter_moving_target`).
+    kinematics (:func:`scatter_moving_target`). Before V is drawn, a level above the group's local bound (the
+    largest ν_s over the relative energies reachable from the electron's grid cell) is a null event at once: most
+    null events then cost what they cost in a cold gas.
 
     Parameters
     ----------
@@ -264,23 +266,27 @@ def thermal_trial(level, ux, uy, uz, inv_cell_eV, nu_cumulative, thermal_groups,
         u ν* [s⁻¹], u uniform in [0, 1).
     ux, uy, uz : float
         Electron velocity [m/s].
+    electron_cell : int
+        Grid cell of the electron's energy, int(ε / Δε) < n_cells.
     inv_cell_eV : float
         1 / node spacing of the tables [eV⁻¹].
     nu_cumulative : ndarray, shape (n_nodes, P)
         Cumulative process frequencies at the nodes [s⁻¹] (extended above the electron grid by the thermal
         margin).
-    thermal_groups : tuple of ndarray, each of shape (S,)
-        (upper, first, last, thermal_speed): cumulative band edges Σ_{j≤s} ν*_j [s⁻¹] (the last is ν*), the first
-        and one-past-last process row of each group, and its thermal speed √(kT/M) [m/s].
+    thermal_groups : tuple of ndarray
+        (upper, first, last, thermal_speed, local), the first four of shape (S,): cumulative band edges
+        Σ_{j≤s} ν*_j [s⁻¹] (the last is ν*), the first and one-past-last process row of each group, its thermal
+        speed √(kT/M) [m/s]; ``local`` (n_cells, S): per electron cell the bound of ν_s over the reachable
+        relative energies [s⁻¹] (≤ the band).
     s0, s1, s2, s3 : uint64
         Generator state.
 
     Returns
     -------
     k, tx, ty, tz, energy_rel_eV, above, s0, s1, s2, s3
-        The selected process (−1 for a null event), the target velocity [m/s], ε_rel [eV], 1 if the frequency
-        exceeded its band or ε_rel left the tables (an anomaly; the last node is then used), else 0, and the
-        generator state.
+        The selected process (−1 for a null event), the target velocity [m/s] (zero for a null event decided
+        before it was drawn), ε_rel [eV], 1 if the frequency exceeded its local bound or ε_rel left the tables (an
+        anomaly; the last node is then used), else 0, and the generator state.
 
     References
     ----------
@@ -290,11 +296,15 @@ def thermal_trial(level, ux, uy, uz, inv_cell_eV, nu_cumulative, thermal_groups,
     event; from memory). Lewis P A W & Shedler G S (1979) Nav. Res. Logist. Q. 26 403 (superposition and thinning
     of Poisson processes; from memory).
     """
-    upper, group_first, group_last, group_thermal_speed = thermal_groups
+    upper, group_first, group_last, group_thermal_speed, local = thermal_groups
     s = 0
     while s < upper.shape[0] - 1 and level >= upper[s]:
         s += 1
     below = upper[s - 1] if s > 0 else 0.0
+    inside = level - below
+    bound = local[electron_cell, s]
+    if inside >= bound:
+        return -1, 0.0, 0.0, 0.0, 0.0, 0, s0, s1, s2, s3
     tx, ty, tz, s0, s1, s2, s3 = target_velocity(group_thermal_speed[s], s0, s1, s2, s3)
     gx = ux - tx
     gy = uy - ty
@@ -318,9 +328,8 @@ def thermal_trial(level, ux, uy, uz, inv_cell_eV, nu_cumulative, thermal_groups,
         base = low + f * (nu_cumulative[c + 1, first - 1] - low)
     low = nu_cumulative[c, last - 1]
     nu = low + f * (nu_cumulative[c + 1, last - 1] - low) - base
-    if nu > upper[s] - below:
+    if nu > bound:
         above = 1
-    inside = level - below
     if inside >= nu:
         return -1, tx, ty, tz, energy_rel, above, s0, s1, s2, s3
     k = select_process_between(base + inside, c, f, nu_cumulative, first, last)

@@ -205,7 +205,7 @@ def _pass_replica(r, z, vx, vy, vz, count, bank_vx, bank_vy, bank_vz, bank_count
             level = u * nu_star
             if thermal:  # a Maxwellian target drawn for this event; frequencies at the relative energy
                 k, tx, ty, tz, collision_energy, above, s0, s1, s2, s3 = thermal_trial(
-                    level, ux, uy, uz, inv_cell_eV, nu_cumulative, thermal_groups, s0, s1, s2, s3)
+                    level, ux, uy, uz, int(e_cell), inv_cell_eV, nu_cumulative, thermal_groups, s0, s1, s2, s3)
                 counts[r, COUNT_ABOVE_BOUND] += above
                 if k < 0:
                     continue  # null collision

@@ -198,7 +198,7 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
             level = u * nu_star
             if thermal:  # a Maxwellian target drawn for this event; frequencies at the relative energy
                 k, tx, ty, tz, collision_energy, above, s0, s1, s2, s3 = thermal_trial(
-                    level, ux, uy, uz, inv_cell_eV, nu_cumulative, thermal_groups, s0, s1, s2, s3)
+                    level, ux, uy, uz, int(e_cell), inv_cell_eV, nu_cumulative, thermal_groups, s0, s1, s2, s3)
                 above_bound += above
                 if k < 0:
                     continue  # null collision

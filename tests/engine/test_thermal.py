@@ -78,7 +78,7 @@ def test_thermal_bands_bound_the_frequency_over_the_thermal_spread():
     assert [table.species[first] for first, _, _ in groups] == ["He", "Ar"]
     top_eV, cells = 2.0, 512
     grid = EnergyGrid.build(table, top_eV, cells)
-    upper, first, last, speed = grid.thermal_groups
+    upper, first, last, speed, local = grid.thermal_groups
     np.testing.assert_allclose(speed, [math.sqrt(sc.k * 300.0 / (m * sc.atomic_mass)) for m in (4.002602, 39.948)],
                                rtol=1e-3)
     assert grid.nu_star == upper[-1]
@@ -91,6 +91,17 @@ def test_thermal_bands_bound_the_frequency_over_the_thermal_spread():
         assert fine[first[s]:last[s]].sum(axis=0).max() <= bands[s]
     # the bands are at least the cold bound of each species (their sum at least the mixture's)
     assert grid.nu_star >= grid.nu_total[:cells + 1].max()
+    # The local bounds (a null event decided before the target is drawn) bound ν_s over every relative energy
+    # reachable from the electron's cell, (√ε ∓ 8 √(kT/M)·√(m/2e))², on the fine grid; and never exceed the band.
+    fine_eV = np.linspace(0.0, reach_eV, 16 * cells + 1)  # the energies of ``fine``
+    root_margin = math.sqrt(K.ENERGY_PER_SPEED2_eV) * THERMAL_MARGIN_SPEEDS * speed.max()
+    assert local.shape == (cells, len(groups)) and np.all(local <= bands)
+    for c in range(0, cells, 7):
+        low = max(math.sqrt(c * top_eV / cells) - root_margin, 0.0) ** 2
+        high = (math.sqrt((c + 1) * top_eV / cells) + root_margin) ** 2
+        inside = (fine_eV >= low) & (fine_eV <= high)
+        for s in range(len(groups)):
+            assert fine[first[s]:last[s], inside].sum(axis=0).max() <= local[c, s]
 
 
 # --------------------------------------------------------------------------------------------- the sampler
@@ -109,8 +120,10 @@ def test_trial_event_accepts_at_the_maxwellian_mean_relative_speed():
     g = np.sqrt(nodes / K.ENERGY_PER_SPEED2_eV)
     cumulative = np.ascontiguousarray(np.cumsum([c_a * g, np.full_like(g, nu_b), c_c * g], axis=0).T)
     bands = 1.001 * np.array([c_a * top_speed + nu_b, c_c * top_speed])
-    groups = (np.cumsum(bands), np.array([0, 2]), np.array([2, 3]), np.array([a0, a1]))
     inv_cell = (nodes.size - 1) / top_eV
+    cell = int(K.ENERGY_PER_SPEED2_eV * v * v * inv_cell)
+    local = np.tile(bands, (nodes.size - 1, 1))  # no local bound below the bands: every event draws a target
+    groups = (np.cumsum(bands), np.array([0, 2]), np.array([2, 3]), np.array([a0, a1]), local)
     rng = np.random.default_rng(3)
     state = np.random.SeedSequence(17).generate_state(4, np.uint64)
     s0, s1, s2, s3 = (np.uint64(x) for x in state)
@@ -121,8 +134,8 @@ def test_trial_event_accepts_at_the_maxwellian_mean_relative_speed():
     directions *= v / np.linalg.norm(directions, axis=1)[:, None]
     levels = rng.random(n) * groups[0][-1]
     for i in range(n):
-        k, _, _, _, _, flag, *state = K.thermal_trial(levels[i], *directions[i], inv_cell, cumulative, groups,
-                                                      s0, s1, s2, s3)
+        k, _, _, _, _, flag, *state = K.thermal_trial(levels[i], *directions[i], cell, inv_cell, cumulative,
+                                                      groups, s0, s1, s2, s3)
         s0, s1, s2, s3 = (np.uint64(x) for x in state)  # (returned to Python as int: keep the generator's type)
         counts[k if k >= 0 else 3] += 1
         above += flag
@@ -228,15 +241,15 @@ def _assert_thermal(mean, final, counts, temperature_K, sigmas=4.0):
 def test_hard_sphere_of_4_amu_relaxes_to_maxwell_boltzmann():
     # Hard spheres of 4 amu at 300 K without field, started as a Maxwellian at twice the gas temperature: after
     # 8 energy-relaxation times (e^-8 of the start remains) the energies are Maxwell–Boltzmann at T (KS test on
-    # 2048 independent electrons) and the time-averaged mean energy is 3kT/2 within four standard errors (~1 %:
+    # 512 independent electrons) and the time-averaged mean energy is 3kT/2 within four standard errors (~2 %:
     # see the module docstring). The old frequency at the electron speed settled at ~kT.
     mixture = hard_sphere_mixture(4.0, 300.0)
     kT = kT_eV(300.0)
     tau = _energy_relaxation_time_s(mixture, 1.5 * kT)
-    mean, final, counts = _relax_without_field(mixture, 3.0 * kT, 8 * tau, 4 * tau, electrons=2048, replicas=8,
+    mean, final, counts = _relax_without_field(mixture, 3.0 * kT, 8 * tau, 4 * tau, electrons=512, replicas=8,
                                                seed=4, top_eV=30 * kT)
     offset, error = _assert_thermal(mean, final, counts, 300.0)
-    assert error < 0.015
+    assert error < 0.03
 
 
 @pytest.mark.slow
@@ -288,18 +301,22 @@ def test_einstein_relation_for_hard_spheres_at_low_field():
 
 
 @pytest.mark.slow
-@pytest.mark.parametrize("gas, temperature_K, electrons", [("He", 300.0, 512), ("He", 77.0, 512),
-                                                          ("Ar", 300.0, 64), ("Ar", 77.0, 64)])
-def test_shipped_gases_relax_to_thermal_equilibrium(gas, temperature_K, electrons):
+@pytest.mark.parametrize("gas, temperature_K, electrons, precision", [
+    ("He", 300.0, 256, 0.05), ("He", 77.0, 256, 0.05), ("Ar", 300.0, 64, 0.12), ("Ar", 77.0, 64, 0.12)])
+def test_shipped_gases_relax_to_thermal_equilibrium(gas, temperature_K, electrons, precision):
     # Thermal equilibrium without field in the shipped sets (exact: the only steady state), from a Maxwellian at
-    # twice the gas temperature, after 6 energy-relaxation times: Maxwell–Boltzmann at T (KS) and mean 3kT/2
-    # within four standard errors (a few % for the electrons CI can afford, see the module docstring).
+    # twice the gas temperature, after 5 energy-relaxation times: Maxwell–Boltzmann at T (KS) and mean 3kT/2
+    # within four standard errors. CI affords a few hundred electrons (helium: ~3646 collisions per relaxation
+    # time, argon ~36 000), so the standard error is a few % (helium) to ~10 % (argon), see the module docstring;
+    # the 1 % check was run once with longer runs (see the report of issue 18). Targets at rest in the frequency
+    # left helium at ~kT, 33 % low.
     mixture = Mixture({gas: 1.0}, temperature_K=temperature_K)
     kT = kT_eV(temperature_K)
-    tau = max(_energy_relaxation_time_s(mixture, e * kT) for e in (0.5, 1.5, 3.0))
-    mean, final, counts = _relax_without_field(mixture, 3.0 * kT, 6 * tau, 3 * tau, electrons=electrons,
+    tau = _energy_relaxation_time_s(mixture, 1.5 * kT)
+    mean, final, counts = _relax_without_field(mixture, 3.0 * kT, 5 * tau, 3 * tau, electrons=electrons,
                                                replicas=8, seed=21, top_eV=30 * kT)
-    _assert_thermal(mean, final, counts, temperature_K)
+    _, error = _assert_thermal(mean, final, counts, temperature_K)
+    assert error < precision
 
 
 # ------------------------------------------------------------------------------------------ the cold gas path
