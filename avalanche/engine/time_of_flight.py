@@ -10,17 +10,18 @@ Method
   ≥ 1e-9 eV, so σ ∝ ε^-1/2 models have a finite, constant ν. ε_max adapts: when an electron leaves the grid
   during a chunk, ε_max doubles, the tables are rebuilt and the chunk is redone from its saved start
   (no event is lost or biased); during relaxation a grid far above every energy met is halved.
-* Collisions: elastic with exact two-body kinematics in the centre-of-mass frame (recoil m/M); for T > 0 the
-  target velocity is drawn from the Maxwellian at each real elastic collision (the collision frequency uses the
-  electron speed, an O(V²/v²) approximation that is exact for the Maxwell model). Excitation: the threshold
-  is lost (laboratory frame, target at rest). Attachment removes the electron. Ionization adds an electron and
-  shares ε − I by the ``sharing`` rule. Penning transfer (a mixture's ``penning`` groups, :mod:`avalanche.gas.penning`):
-  an excitation of a selected level creates, with its probability r, an electron of energy ε_level − I_B,
-  isotropic, at the excitation's place and time. Three-body processes scale with their species' density over
-  ``reference_density_m3``. Angles are isotropic, or screened Coulomb (Okhrimovskyy et al. 2002) for every
-  process if ``scattering="screened-coulomb"`` or for a process whose file says so; the elastic total cross
-  section is then σ_m / ⟨1 − cos χ⟩, so that the momentum-transfer cross section is preserved, and inelastic
-  scattering uses the same angular form at the post-collision energy.
+* Collisions: elastic with exact two-body kinematics in the centre-of-mass frame (recoil m/M). For T > 0 each trial
+  event draws a target velocity V from the Maxwellian of one species (chosen by its band of ν*) and reads the
+  frequencies at the relative speed |v − V|; a real collision uses that V, in the target's rest frame
+  (:func:`avalanche.kernels.thermal_trial`; Skullerud 1968), so the swarm relaxes to Maxwell–Boltzmann at T.
+  Excitation: the threshold is lost (in the target's frame; at rest in a cold gas). Attachment removes the electron.
+  Ionization adds an electron and shares ε − I by the ``sharing`` rule. Penning transfer (a mixture's ``penning``
+  groups, :mod:`avalanche.gas.penning`): an excitation of a selected level creates, with its probability r, an
+  electron of energy ε_level − I_B, isotropic, at the excitation's place and time. Three-body processes scale with
+  their species' density over ``reference_density_m3``. Angles are isotropic, or screened Coulomb (Okhrimovskyy et
+  al. 2002) for every process if ``scattering="screened-coulomb"`` or for a process whose file says so; the elastic
+  total cross section is then σ_m / ⟨1 − cos χ⟩, so that the momentum-transfer cross section is preserved, and
+  inelastic scattering uses the same angular form at the post-collision energy.
 * R independent replicas (default 16), each a serial simulation with its own xoshiro256** stream derived from
   ``numpy.random.SeedSequence(seed)``, advanced in parallel by numba: results are bitwise identical for any
   number of threads. Python runs the outer loop over chunks (a few tens of trial events per electron):

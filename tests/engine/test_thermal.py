@@ -241,15 +241,15 @@ def _assert_thermal(mean, final, counts, temperature_K, sigmas=4.0):
 def test_hard_sphere_of_4_amu_relaxes_to_maxwell_boltzmann():
     # Hard spheres of 4 amu at 300 K without field, started as a Maxwellian at twice the gas temperature: after
     # 8 energy-relaxation times (e^-8 of the start remains) the energies are Maxwell–Boltzmann at T (KS test on
-    # 512 independent electrons) and the time-averaged mean energy is 3kT/2 within four standard errors (~2 %:
+    # 512 independent electrons) and the time-averaged mean energy is 3kT/2 within four standard errors (~3 %:
     # see the module docstring). The old frequency at the electron speed settled at ~kT.
     mixture = hard_sphere_mixture(4.0, 300.0)
     kT = kT_eV(300.0)
     tau = _energy_relaxation_time_s(mixture, 1.5 * kT)
     mean, final, counts = _relax_without_field(mixture, 3.0 * kT, 8 * tau, 4 * tau, electrons=512, replicas=8,
                                                seed=4, top_eV=30 * kT)
-    offset, error = _assert_thermal(mean, final, counts, 300.0)
-    assert error < 0.03
+    _, error = _assert_thermal(mean, final, counts, 300.0)
+    assert error < 0.04  # expected 0.82 √(2 τ / (4 τ × 512)) ≈ 2.6 % (module docstring)
 
 
 @pytest.mark.slow
