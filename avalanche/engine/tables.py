@@ -200,12 +200,13 @@ def near_equilibrium_energy_eV(table: ProcessTable, number_density_m3: float, re
                                temperature_K: float, ceiling_eV: float) -> float:
     """A start energy [eV] near the steady state of a gas at T > 0 and low E/N, from the elastic energy balance.
 
-    Momentum balance W = eE/(m ν) and energy balance e E W = Σ_k 2 m M_k/(m + M_k)² ν_k (ε − 3kT/2) over the
-    elastic processes give ε = 3kT/2 + (eE)²/(m ν Σ_k 2 m M_k/(m + M_k)² ν_k), with the frequencies read at ε
-    (the two-term balance behind Wannier's ⟨ε⟩ = 3kT/2 + M W²/2; Wannier G H 1953, Bell Syst. Tech. J. 32 170,
-    from memory), solved by fixed-point iteration. Inelastic losses are left out, so the estimate is high where
-    they matter: it is capped at ``ceiling_eV`` (the default start). A start near the steady state saves the
-    energy relaxation of thousands of elastic collisions at low E/N.
+    Momentum balance W = eE/(m ν_m), ν_m = Σ_k M_k/(m + M_k) ν_k, and energy balance
+    e E W = Σ_k 2 m M_k/(m + M_k)² ν_k (ε − 3kT/2) over the elastic processes give
+    ε = 3kT/2 + (eE)²/(m ν_m Σ_k 2 m M_k/(m + M_k)² ν_k), with the frequencies read at ε, solved by fixed-point
+    iteration. For a constant collision frequency (the Maxwell model) this is Wannier's exact
+    ⟨ε⟩ = 3kT/2 + (m + M) W²/2 (Wannier G H 1953, Bell Syst. Tech. J. 32 170, from memory). Inelastic losses
+    are left out, so the estimate is high where they matter: it is capped at ``ceiling_eV`` (the default start).
+    A start near the steady state saves the energy relaxation of thousands of elastic collisions at low E/N.
     """
     kT_eV = BOLTZMANN_J_K * temperature_K / EV_J
     field_V_m = reduced_field_Td * TOWNSEND_V_m2 * number_density_m3
@@ -214,7 +215,7 @@ def near_equilibrium_energy_eV(table: ProcessTable, number_density_m3: float, re
     energy = 1.5 * kT_eV
     for _ in range(60):
         nu = table.frequencies(np.array([energy]))[:, 0]
-        rate = float(nu.sum()) * float(loss @ nu)
+        rate = float(table.target_fraction @ nu) * float(loss @ nu)
         if not rate > 0:
             return ceiling_eV
         new = 1.5 * kT_eV + (ELEMENTARY_CHARGE_C * field_V_m) ** 2 / (ELECTRON_MASS_kg * rate) / EV_J
