@@ -3,7 +3,8 @@
 :class:`ProcessTable` turns the enabled processes of a :class:`~avalanche.gas.mixture.Mixture` into one row per process
 (action code, energy loss, mass ratios, target thermal speed, angular and sharing rules, Penning transfer), and
 :class:`EnergyGrid` tabulates their collision frequencies N_k σ_k(ε) v on a uniform grid with the trial frequency
-ν* of the null-collision method (Skullerud H R 1968, J. Phys. D 1 1567). Used by the time-of-flight engine
+ν* of the null-collision method (Skullerud H R 1968, J. Phys. D 1 1567), extended at T > 0 to bound N σ(g) g over
+the relative speeds g of thermal targets (:func:`avalanche.kernels.thermal_trial`). Used by the time-of-flight engine
 (:mod:`avalanche.engine.time_of_flight`) and the steady-state Townsend mode (:mod:`avalanche.engine.townsend`).
 """
 
@@ -16,7 +17,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from .. import kernels as K
-from ..constants import BOLTZMANN_J_K, EV_J, ATOMIC_MASS_UNIT_kg, ELECTRON_MASS_kg
+from ..constants import BOLTZMANN_J_K, ELEMENTARY_CHARGE_C, EV_J, ATOMIC_MASS_UNIT_kg, ELECTRON_MASS_kg, TOWNSEND_V_m2
 from ..errors import ConfigError, PhysicsWarning
 from ..gas.mixture import Mixture
 from ..gas.penning import kernel_arrays
@@ -29,6 +30,12 @@ ENERGY_FLOOR_eV = 1e-9
 """Cross sections are evaluated at ε ≥ this, so σ ∝ ε^-1/2 gives a finite σ v."""
 TRIAL_MARGIN = 1e-3
 """ν* = (1 + TRIAL_MARGIN) max ν(ε) over the nodes: a bound also between nodes for smooth data."""
+THERMAL_MARGIN_SPEEDS = 8.0
+"""At T > 0 the tables reach up to the relative energy ½ m_e (v_max + THERMAL_MARGIN_SPEEDS √(kT/M))², v_max the
+speed at the top of the electron grid: a Maxwellian target is faster than 8 √(kT/M) with probability ~1e-13."""
+COLD_GAS_GROUPS = (np.zeros(0), np.zeros(0, dtype=np.int64), np.zeros(0, dtype=np.int64), np.zeros(0),
+                   np.zeros((0, 0)))
+"""The kernels' ``thermal_groups`` argument of a cold gas (no target group: targets at rest)."""
 EXTRAPOLATION_WARNING = 0.01
 """A PhysicsWarning is given when more than this fraction of the real collisions fall beyond their tables."""
 
@@ -159,19 +166,98 @@ class ProcessTable:
         return out
 
 
+def target_groups(table: ProcessTable) -> list[tuple[int, int, float]]:
+    """(first row, one-past-last row, thermal speed √(kT/M) [m/s]) of each species' processes (consecutive rows of
+    ``table``, Penning pseudo-rows excluded); empty for a cold gas (T = 0), whose targets are at rest."""
+    groups: list[tuple[int, int, float]] = []
+    for k, (species, kind) in enumerate(zip(table.species, table.kinds, strict=True)):
+        if kind == "penning" or not table.thermal_speed[k] > 0:
+            continue
+        if groups and groups[-1][1] == k and table.species[k - 1] == species:
+            groups[-1] = (groups[-1][0], k + 1, groups[-1][2])
+        else:
+            groups.append((k, k + 1, float(table.thermal_speed[k])))
+    return groups
+
+
+def window_max(values: np.ndarray, low: np.ndarray, high: np.ndarray) -> np.ndarray:
+    """max(values[low[i]:high[i]]) for every i (high > low), from a sparse table of maxima over windows of 2^j
+    (Bender M A & Farach-Colton M 2000, LATIN 2000, LNCS 1776 88: range-minimum queries; from memory)."""
+    levels = [np.asarray(values, dtype=float)]
+    while 2 ** len(levels) <= levels[0].size:
+        width = 2 ** (len(levels) - 1)
+        levels.append(np.maximum(levels[-1][:-width], levels[-1][width:]))
+    j = np.floor(np.log2(high - low)).astype(np.int64)
+    out = np.empty(low.size)
+    for level in np.unique(j):
+        pick = j == level
+        table = levels[level]
+        out[pick] = np.maximum(table[low[pick]], table[high[pick] - 2 ** level])
+    return out
+
+
+def near_equilibrium_energy_eV(table: ProcessTable, number_density_m3: float, reduced_field_Td: float,
+                               temperature_K: float, ceiling_eV: float) -> float:
+    """A start energy [eV] near the steady state of a gas at T > 0 and low E/N, from the elastic energy balance.
+
+    Momentum balance W = eE/(m ν_m), ν_m = Σ_k M_k/(m + M_k) ν_k, and energy balance
+    e E W = Σ_k 2 m M_k/(m + M_k)² ν_k (ε − 3kT/2) over the elastic processes give
+    ε = 3kT/2 + (eE)²/(m ν_m Σ_k 2 m M_k/(m + M_k)² ν_k), with the frequencies read at ε, solved by fixed-point
+    iteration. For a constant collision frequency (the Maxwell model) this is Wannier's exact
+    ⟨ε⟩ = 3kT/2 + (m + M) W²/2 (Wannier G H 1953, Bell Syst. Tech. J. 32 170, from memory). Inelastic losses
+    are left out, so the estimate is high where they matter: it is capped at ``ceiling_eV`` (the default start).
+    A start near the steady state saves the energy relaxation of thousands of elastic collisions at low E/N.
+    """
+    kT_eV = BOLTZMANN_J_K * temperature_K / EV_J
+    field_V_m = reduced_field_Td * TOWNSEND_V_m2 * number_density_m3
+    elastic = np.array([kind == "elastic" for kind in table.kinds])
+    loss = 2.0 * table.electron_fraction * table.target_fraction * elastic
+    energy = 1.5 * kT_eV
+    for _ in range(60):
+        nu = table.frequencies(np.array([energy]))[:, 0]
+        rate = float(table.target_fraction @ nu) * float(loss @ nu)
+        if not rate > 0:
+            return ceiling_eV
+        new = 1.5 * kT_eV + (ELEMENTARY_CHARGE_C * field_V_m) ** 2 / (ELECTRON_MASS_kg * rate) / EV_J
+        new = min(new, ceiling_eV)
+        if abs(new - energy) <= 1e-6 * new:
+            return new
+        energy = math.sqrt(energy * new)  # geometric damping: the map can overshoot where ν changes steeply
+    return energy
+
+
 @dataclass(frozen=True, eq=False)
 class EnergyGrid:
-    """The kernel's collision-frequency tables on nodes i Δε, i = 0 … n_cells, and the trial frequency."""
+    """The kernel's collision-frequency tables on nodes i Δε and the trial frequency.
+
+    Cold gas: nodes i = 0 … n_cells (the electron grid up to ``energy_max_eV``) and ν* = (1 + TRIAL_MARGIN)
+    max ν(ε). Gas at T > 0 (:func:`avalanche.kernels.thermal_trial`): the collision frequencies are read at the
+    relative energy ½ m_e g², g = |v − V|, which exceeds the electron's energy when the target moves against it, so
+    the nodes continue with the same spacing up to (√ε_max + √ε_th)², ε_th = ½ m_e (THERMAL_MARGIN_SPEEDS √(kT/M))²
+    for the lightest species, and each species s gets its own band ν*_s = (1 + TRIAL_MARGIN) max over all these
+    nodes of Σ_{k∈s} N_k σ_k g, a bound of its frequency over the thermal spread of V; ν* = Σ_s ν*_s
+    (``thermal_groups`` holds the band edges). Per electron cell c and species, ``local`` bounds ν_s over the
+    nodes from (√ε_c − √ε_th)² to (√ε_c+1 + √ε_th)² (the relative energies an electron of that cell can meet, with
+    the nodes around them), so that the kernel decides most null events before drawing a target. A frequency
+    above its bound is counted by the kernels (COUNT_ABOVE_BOUND), as in the cold gas.
+    """
 
     energy_max_eV: float
     n_cells: int
     nu_star: float
     nu_total: np.ndarray
     nu_cumulative: np.ndarray
+    thermal_groups: tuple = COLD_GAS_GROUPS
 
     @classmethod
     def build(cls, table: ProcessTable, energy_max_eV: float, n_cells: int) -> EnergyGrid:
         nodes = np.linspace(0.0, energy_max_eV, n_cells + 1)
+        groups = target_groups(table)
+        if groups:
+            margin_eV = K.ENERGY_PER_SPEED2_eV * (THERMAL_MARGIN_SPEEDS * max(g[2] for g in groups)) ** 2
+            cell_eV = energy_max_eV / n_cells
+            extra = math.ceil(((math.sqrt(energy_max_eV) + math.sqrt(margin_eV)) ** 2 - energy_max_eV) / cell_eV) + 1
+            nodes = np.concatenate((nodes, energy_max_eV + cell_eV * np.arange(1, extra + 1)))
         nu = table.frequencies(nodes)
         cumulative = np.ascontiguousarray(np.cumsum(nu, axis=0).T)
         total = np.ascontiguousarray(cumulative[:, -1])
@@ -179,8 +265,23 @@ class EnergyGrid:
         if not peak > 0:
             raise ConfigError("the mixture's collision frequency is zero on the whole energy grid; check the "
                               "cross sections (every process zero?)")
-        return cls(energy_max_eV=float(energy_max_eV), n_cells=int(n_cells), nu_star=peak * (1.0 + TRIAL_MARGIN),
-                   nu_total=total, nu_cumulative=cumulative)
+        if not groups:
+            return cls(energy_max_eV=float(energy_max_eV), n_cells=int(n_cells), nu_star=peak * (1.0 + TRIAL_MARGIN),
+                       nu_total=total, nu_cumulative=cumulative)
+        group_nu = np.array([nu[first:last].sum(axis=0) for first, last, _ in groups])
+        bands = (1.0 + TRIAL_MARGIN) * group_nu.max(axis=1)
+        upper = np.cumsum(bands)
+        # per electron cell [ε_c, ε_c+1]: the relative energies (√ε ∓ √ε_th)² reachable, as whole node ranges
+        root = np.sqrt(nodes[:n_cells + 1])
+        reach = math.sqrt(margin_eV)
+        low = np.floor(np.maximum(root[:-1] - reach, 0.0) ** 2 / cell_eV).astype(np.int64)
+        high = np.minimum(np.ceil((root[1:] + reach) ** 2 / cell_eV).astype(np.int64) + 1, nodes.size)
+        local = np.minimum((1.0 + TRIAL_MARGIN) * np.array([window_max(v, low, high) for v in group_nu]).T, bands)
+        thermal_groups = (upper, np.array([g[0] for g in groups], dtype=np.int64),
+                          np.array([g[1] for g in groups], dtype=np.int64), np.array([g[2] for g in groups]),
+                          np.ascontiguousarray(local))
+        return cls(energy_max_eV=float(energy_max_eV), n_cells=int(n_cells), nu_star=float(upper[-1]),
+                   nu_total=total, nu_cumulative=cumulative, thermal_groups=thermal_groups)
 
     @property
     def inv_cell_eV(self) -> float:

@@ -10,17 +10,18 @@ Method
   ≥ 1e-9 eV, so σ ∝ ε^-1/2 models have a finite, constant ν. ε_max adapts: when an electron leaves the grid
   during a chunk, ε_max doubles, the tables are rebuilt and the chunk is redone from its saved start
   (no event is lost or biased); during relaxation a grid far above every energy met is halved.
-* Collisions: elastic with exact two-body kinematics in the centre-of-mass frame (recoil m/M); for T > 0 the
-  target velocity is drawn from the Maxwellian at each real elastic collision (the collision frequency uses the
-  electron speed, an O(V²/v²) approximation that is exact for the Maxwell model). Excitation: the threshold
-  is lost (laboratory frame, target at rest). Attachment removes the electron. Ionization adds an electron and
-  shares ε − I by the ``sharing`` rule. Penning transfer (a mixture's ``penning`` groups, :mod:`avalanche.gas.penning`):
-  an excitation of a selected level creates, with its probability r, an electron of energy ε_level − I_B,
-  isotropic, at the excitation's place and time. Three-body processes scale with their species' density over
-  ``reference_density_m3``. Angles are isotropic, or screened Coulomb (Okhrimovskyy et al. 2002) for every
-  process if ``scattering="screened-coulomb"`` or for a process whose file says so; the elastic total cross
-  section is then σ_m / ⟨1 − cos χ⟩, so that the momentum-transfer cross section is preserved, and inelastic
-  scattering uses the same angular form at the post-collision energy.
+* Collisions: elastic with exact two-body kinematics in the centre-of-mass frame (recoil m/M). For T > 0 each trial
+  event draws a target velocity V from the Maxwellian of one species (chosen by its band of ν*) and reads the
+  frequencies at the relative speed |v − V|; a real collision uses that V, in the target's rest frame
+  (:func:`avalanche.kernels.thermal_trial`; Skullerud 1968), so the swarm relaxes to Maxwell–Boltzmann at T.
+  Excitation: the threshold is lost (in the target's frame; at rest in a cold gas). Attachment removes the electron.
+  Ionization adds an electron and shares ε − I by the ``sharing`` rule. Penning transfer (a mixture's ``penning``
+  groups, :mod:`avalanche.gas.penning`): an excitation of a selected level creates, with its probability r, an
+  electron of energy ε_level − I_B, isotropic, at the excitation's place and time. Three-body processes scale with
+  their species' density over ``reference_density_m3``. Angles are isotropic, or screened Coulomb (Okhrimovskyy et
+  al. 2002) for every process if ``scattering="screened-coulomb"`` or for a process whose file says so; the elastic
+  total cross section is then σ_m / ⟨1 − cos χ⟩, so that the momentum-transfer cross section is preserved, and
+  inelastic scattering uses the same angular form at the post-collision energy.
 * R independent replicas (default 16), each a serial simulation with its own xoshiro256** stream derived from
   ``numpy.random.SeedSequence(seed)``, advanced in parallel by numba: results are bitwise identical for any
   number of threads. Python runs the outer loop over chunks (a few tens of trial events per electron):
@@ -50,7 +51,7 @@ from __future__ import annotations
 import math
 import time
 import warnings
-from dataclasses import asdict, dataclass
+from dataclasses import asdict, dataclass, replace
 
 import numba
 import numpy as np
@@ -68,6 +69,7 @@ from .estimators import EstimatorContext, energy_distribution, extrapolated_frac
 from .results import ESTIMATE_UNITS, SwarmResult
 from .tables import (  # noqa: F401  (re-exported: the engine's tables are part of its interface)
     ACTIONS,
+    COLD_GAS_GROUPS,
     EXTRAPOLATION_WARNING,
     SCATTERING_MODELS,
     SHARING_RULES,
@@ -77,6 +79,7 @@ from .tables import (  # noqa: F401  (re-exported: the engine's tables are part 
     ProcessTable,
     extrapolation_notice,
     momentum_transfer_fraction,
+    near_equilibrium_energy_eV,
 )
 from .tallies import SwarmTallies
 
@@ -201,7 +204,8 @@ def ensure_compiled() -> None:
                     np.zeros((1, K.N_COUNTS), dtype=np.int64), i2.copy(), i2.copy(), i2.copy(), np.zeros(1),
                     np.zeros(1), np.full(1, -1, dtype=np.int64), 0.0, *(np.zeros(0),) * 4,
                     np.zeros((1, 0, K.N_PHASE_SUMS)),
-                    np.zeros((1, 0, K.N_PHASE_COUNTS), dtype=np.int64), np.zeros((1, 0, 1), dtype=np.int64))
+                    np.zeros((1, 0, K.N_PHASE_COUNTS), dtype=np.int64), np.zeros((1, 0, 1), dtype=np.int64),
+                    COLD_GAS_GROUPS)
 
 
 class _Run:
@@ -253,7 +257,7 @@ class _Run:
                             o.sums, o.counts, o.hist, o.process_counts, o.extrapolated, t.penning_probability,
                             t.penning_energy_eV, t.penning_slot, self.period_s, *self.wave, self.phase_out.sums,
                             self.phase_out.counts,
-                            self.phase_out.process)
+                            self.phase_out.process, g.thermal_groups)
             self.events += int(o.counts[:, K.COUNT_EVENTS].sum())
             self.anomalies["frequency_above_bound"] += int(o.counts[:, K.COUNT_ABOVE_BOUND].sum())
             above = bool(o.counts[:, K.COUNT_ABOVE_GRID].any())
@@ -382,8 +386,9 @@ def swarm(mixture: Mixture | str, reduced_field_Td: float, *, seed=0, precision:
         (:func:`avalanche.engine.drive.load_waveform`).
     **more
         replicas (16), precision_on ('auto' or an estimate name), energy_cells (8192), energy_max_eV (initial grid
-        top, default 10 × initial_energy_eV), energy_limit_eV (1e5, runaway guard), initial_energy_eV (1.0, mean
-        of the initial Maxwellian), events_per_chunk (48, trial events per electron per chunk),
+        top, default 10 × initial_energy_eV), energy_limit_eV (1e5, runaway guard), initial_energy_eV (mean of the
+        initial Maxwellian: 1.0 in a cold gas; at T > 0 the elastic energy balance at E/N, at most 1.0, so that
+        low-field points start near their steady state), events_per_chunk (48, trial events per electron per chunk),
         population_bounds ((0.6, 1.5)), eedf_bins (200), diffusion_skip (4 energy relaxation times),
         diffusion_segment (3 × the skip).
 
@@ -415,6 +420,9 @@ def swarm(mixture: Mixture | str, reduced_field_Td: float, *, seed=0, precision:
         raise ConfigError(f"swarm(): mixture must be a Mixture or a gas string, got {type(mixture).__name__}")
     reduced_field_Td = _positive("reduced_field_Td", reduced_field_Td)
     drive = make_drive(reduced_field_Td, frequency_Hz, phase_bins, dc_offset_Td, waveform)
+    if "initial_energy_eV" not in more and mixture.temperature_K > 0:
+        settings = replace(settings, initial_energy_eV=_thermal_start_eV(mixture, reduced_field_Td + abs(dc_offset_Td),
+                                                                        settings))
     previous = numba.get_num_threads()
     if threads is not None:
         threads = _positive("threads", threads, integer=True)
@@ -434,16 +442,29 @@ def swarm(mixture: Mixture | str, reduced_field_Td: float, *, seed=0, precision:
     return result
 
 
+def _thermal_start_eV(mixture: Mixture, reduced_field_Td: float, settings: Settings) -> float:
+    """The default start energy of a gas at T > 0: the elastic energy balance at E/N (an AC drive: its peak),
+    capped at the cold-gas default ``settings.initial_energy_eV`` (see :func:`near_equilibrium_energy_eV`)."""
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", PhysicsWarning)  # given again when the run builds its tables
+        table = ProcessTable.build(mixture, settings.sharing, settings.scattering)
+    return near_equilibrium_energy_eV(table, mixture.number_density_m3, reduced_field_Td, mixture.temperature_K,
+                                      settings.initial_energy_eV)
+
+
 def _energy_relaxation_time(run: _Run, mean_energy_eV: float, drift_velocity: float, frequency: float) -> float:
     """τ_ε = (⟨ε⟩ − 3kT/2) / (e E W) [s], the time the field takes to supply the swarm's excess energy (exact
     energy relaxation time of the Maxwell model); where that is not positive, the elastic estimate
-    M / (2 m ν) with the mixture's mean mass and the real collision frequency ν."""
+    M / (2 m ν) with the mixture's mean mass and the real collision frequency ν. In a gas at T > 0 the smaller of
+    the two: near thermal equilibrium the excess ⟨ε⟩ − 3kT/2 is small and noisy, while the elastic estimate bounds
+    the relaxation time (inelastic collisions only shorten it)."""
     tau = (mean_energy_eV - 1.5 * run.kT_eV) / (run.field_V_m * drift_velocity)
-    if math.isfinite(tau) and tau > 0:
-        return tau
     fraction = sum(c.fraction * ELECTRON_MASS_kg / (c.cross_sections.mass_amu * ATOMIC_MASS_UNIT_kg)
                    for c in run.mixture.components)
-    return 1.0 / (2.0 * fraction * frequency) if frequency > 0 else math.nan
+    elastic = 1.0 / (2.0 * fraction * frequency) if frequency > 0 else math.nan
+    if math.isfinite(tau) and tau > 0:
+        return min(tau, elastic) if run.kT_eV > 0 and math.isfinite(elastic) else tau
+    return elastic
 
 
 def _shrink_grid(run: _Run, recent_max_eV: float, factor: float) -> None:

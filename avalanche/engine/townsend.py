@@ -61,7 +61,7 @@ from ..gas.crosssections import _did_you_mean
 from ..gas.mixture import Mixture
 from ..kernels import steady_state as S
 from .results import _json_float, _plain
-from .tables import EnergyGrid, ProcessTable, extrapolation_notice
+from .tables import COLD_GAS_GROUPS, EnergyGrid, ProcessTable, extrapolation_notice
 from .townsend_estimators import TALLY_FIELDS, townsend_estimates
 
 TOWNSEND_ESTIMATES: tuple[tuple[str, str, str], ...] = (
@@ -429,7 +429,7 @@ class _Passes:
                            t.electron_fraction, t.target_fraction, t.thermal_speed, t.scatter, t.sharing, t.w_eV,
                            t.table_max_eV, o["crossings"], o["energy_flux"], o["ionizations"], o["attachments"],
                            o["path"], o["counts"], o["process_counts"], o["extrapolated"], o["max_energy"],
-                           t.penning_probability, t.penning_energy_eV, t.penning_slot)
+                           t.penning_probability, t.penning_energy_eV, t.penning_slot, g.thermal_groups)
             counts = o["counts"]
             self.events += int(counts[:, S.COUNT_EVENTS].sum())
             self.anomalies["frequency_above_bound"] += int(counts[:, S.COUNT_ABOVE_BOUND].sum())
@@ -533,7 +533,7 @@ def ensure_compiled() -> None:
                    np.zeros(1, np.int64), np.zeros(1, np.int64), np.zeros(1), np.full(1, np.inf),
                    np.zeros((1, 2), np.int64), np.zeros((1, 2)), i2.copy(), i2.copy(), z2.copy(),
                    np.zeros((1, S.N_COUNTS), np.int64), i2.copy(), i2.copy(), np.zeros(1), np.zeros(1), np.zeros(1),
-                   np.full(1, -1, np.int64))
+                   np.full(1, -1, np.int64), COLD_GAS_GROUPS)
 
 
 def townsend(mixture: Mixture | str, reduced_field_Td: float, *, seed=0, precision: float = 0.02,

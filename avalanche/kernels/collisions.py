@@ -223,16 +223,117 @@ def target_velocity(thermal_speed, s0, s1, s2, s3):
 
 
 @jit
-def select_process(level, c, f, nu_cumulative, n_proc):
-    """Index of the process whose cumulative-frequency interval holds ``level`` [s⁻¹] at grid cell c, fraction f
-    (linear interpolation inside the cell); the last process when ``level`` lies above all but it."""
-    k = 0
-    while k < n_proc - 1:
+def select_process_between(level, c, f, nu_cumulative, first, last):
+    """Index k in [first, last) of the first process whose cumulative frequency, interpolated at grid cell c,
+    fraction f, lies above ``level`` [s⁻¹]; ``last`` − 1 when ``level`` lies above all the others."""
+    k = first
+    while k < last - 1:
         low = nu_cumulative[c, k]
         if level < low + f * (nu_cumulative[c + 1, k] - low):
             break
         k += 1
     return k
+
+
+@jit
+def select_process(level, c, f, nu_cumulative, n_proc):
+    """Index of the process whose cumulative-frequency interval holds ``level`` [s⁻¹] at grid cell c, fraction f
+    (linear interpolation inside the cell); the last process when ``level`` lies above all but it."""
+    return select_process_between(level, c, f, nu_cumulative, 0, n_proc)
+
+
+@jit
+def thermal_trial(level, ux, uy, uz, electron_cell, inv_cell_eV, nu_cumulative, thermal_groups, s0, s1, s2, s3):
+    """One trial event of an electron of velocity (ux, uy, uz) [m/s] in a gas of Maxwellian targets.
+
+    The trial frequency is split into one band per target group (the processes of one species, rows
+    ``first[s]`` … ``last[s]`` − 1 of the tables): ν* = Σ_s ν*_s, with ν*_s ≥ N_s σ_s(g) g for every relative
+    speed g the electron grid and the thermal spread allow (:class:`avalanche.engine.tables.EnergyGrid`). The
+    level u ν* picks the band s (probability ν*_s/ν*); a target velocity V is drawn from the Maxwellian of group
+    s (:func:`target_velocity`), g = |v − V|, and the event is a real collision with group s when the level's
+    position inside the band lies below ν_s(ε_rel) = Σ_{k∈s} N_k σ_k(g) g, the tables read at the relative
+    energy ε_rel = ½ m_e g² (σ as a function of the relative speed, the tables' own convention for a target at
+    rest); the process is selected at the same ε_rel. Each band is an independent thinned Poisson process of
+    rate ν*_s, so the real collisions with species s have the exact rate N_s ⟨σ_s(g) g⟩ over the Maxwellian, and
+    the partner's velocity has the collision-weighted density f_s(V) σ_k(g) g, used unchanged in the
+    kinematics (:func:`scatter_moving_target`). Before V is drawn, a level above the group's local bound (the
+    largest ν_s over the relative energies reachable from the electron's grid cell) is a null event at once: most
+    null events then cost what they cost in a cold gas.
+
+    Parameters
+    ----------
+    level : float
+        u ν* [s⁻¹], u uniform in [0, 1).
+    ux, uy, uz : float
+        Electron velocity [m/s].
+    electron_cell : int
+        Grid cell of the electron's energy, int(ε / Δε) < n_cells.
+    inv_cell_eV : float
+        1 / node spacing of the tables [eV⁻¹].
+    nu_cumulative : ndarray, shape (n_nodes, P)
+        Cumulative process frequencies at the nodes [s⁻¹] (extended above the electron grid by the thermal
+        margin).
+    thermal_groups : tuple of ndarray
+        (upper, first, last, thermal_speed, local), the first four of shape (S,): cumulative band edges
+        Σ_{j≤s} ν*_j [s⁻¹] (the last is ν*), the first and one-past-last process row of each group, its thermal
+        speed √(kT/M) [m/s]; ``local`` (n_cells, S): per electron cell the bound of ν_s over the reachable
+        relative energies [s⁻¹] (≤ the band).
+    s0, s1, s2, s3 : uint64
+        Generator state.
+
+    Returns
+    -------
+    k, tx, ty, tz, energy_rel_eV, above, s0, s1, s2, s3
+        The selected process (−1 for a null event), the target velocity [m/s] (zero for a null event decided
+        before it was drawn), ε_rel [eV], 1 if the frequency exceeded its local bound or ε_rel left the tables (an
+        anomaly; the last node is then used), else 0, and the generator state.
+
+    References
+    ----------
+    Skullerud H R (1968) J. Phys. D 1 1567, doi:10.1088/0022-3727/1/11/423 (null collisions with the trial
+    frequency bounding N σ(g) g over the relative speed of thermal targets). Lin S L & Bardsley J N (1977)
+    J. Chem. Phys. 66 435, doi:10.1063/1.433988 (target velocity sampled from the gas Maxwellian at each trial
+    event; from memory). Lewis P A W & Shedler G S (1979) Nav. Res. Logist. Q. 26 403 (superposition and thinning
+    of Poisson processes; from memory).
+    """
+    upper, group_first, group_last, group_thermal_speed, local = thermal_groups
+    s = 0
+    while s < upper.shape[0] - 1 and level >= upper[s]:
+        s += 1
+    below = upper[s - 1] if s > 0 else 0.0
+    inside = level - below
+    bound = local[electron_cell, s]
+    if inside >= bound:
+        return -1, 0.0, 0.0, 0.0, 0.0, 0, s0, s1, s2, s3
+    tx, ty, tz, s0, s1, s2, s3 = target_velocity(group_thermal_speed[s], s0, s1, s2, s3)
+    gx = ux - tx
+    gy = uy - ty
+    gz = uz - tz
+    energy_rel = ENERGY_PER_SPEED2_eV * (gx * gx + gy * gy + gz * gz)
+    above = 0
+    e_cell = energy_rel * inv_cell_eV
+    last_cell = nu_cumulative.shape[0] - 2
+    if e_cell < last_cell + 1:
+        c = int(e_cell)
+        f = e_cell - c
+    else:
+        above = 1
+        c = last_cell
+        f = 1.0
+    first = group_first[s]
+    last = group_last[s]
+    base = 0.0
+    if first > 0:
+        low = nu_cumulative[c, first - 1]
+        base = low + f * (nu_cumulative[c + 1, first - 1] - low)
+    low = nu_cumulative[c, last - 1]
+    nu = low + f * (nu_cumulative[c + 1, last - 1] - low) - base
+    if nu > bound:
+        above = 1
+    if inside >= nu:
+        return -1, tx, ty, tz, energy_rel, above, s0, s1, s2, s3
+    k = select_process_between(base + inside, c, f, nu_cumulative, first, last)
+    return k, tx, ty, tz, energy_rel, above, s0, s1, s2, s3
 
 
 @jit
@@ -267,28 +368,25 @@ CHILD_PENNING = 2
 
 @jit
 def scatter_electron(kind, k, ux, uy, uz, energy_eV, action_args, s0, s1, s2, s3):
-    """A real, non-attaching collision with process k: the electron's new velocity and the electron it creates.
+    """A real, non-attaching collision with process k and a target at rest: the electron's new velocity and the
+    electron it creates.
 
     ``action_args`` = (loss_eV, electron_fraction, target_fraction, thermal_speed, scatter, sharing, w_eV,
-    penning_probability, penning_energy_eV), the per-process tables. Elastic: two-body kinematics with a
-    Maxwellian target (:func:`target_velocity`); excitation: the threshold is lost, then with probability r_k a
-    Penning transfer creates an electron of ε_level − I_B (:func:`penning_velocity`); ionization: the excess is
-    shared (:func:`ionization_velocities`). Returns (ux, uy, uz, child, wx, wy, wz, s0, s1, s2, s3) with child one
-    of CHILD_NONE, CHILD_IONIZATION, CHILD_PENNING and (wx, wy, wz) the created electron's velocity. The caller
-    stores the child (or aborts its chunk when its store is full: the chunk is then redone from its saved state).
+    penning_probability, penning_energy_eV), the per-process tables (``thermal_speed`` is read by
+    :func:`thermal_trial`, not here). Elastic: two-body kinematics (:func:`elastic_velocity`); excitation: the
+    threshold is lost, then with probability r_k a Penning transfer creates an electron of ε_level − I_B
+    (:func:`penning_velocity`); ionization: the excess is shared (:func:`ionization_velocities`). Returns (ux, uy,
+    uz, child, wx, wy, wz, s0, s1, s2, s3) with child one of CHILD_NONE, CHILD_IONIZATION, CHILD_PENNING and (wx,
+    wy, wz) the created electron's velocity. The caller stores the child (or aborts its chunk when its store is
+    full: the chunk is then redone from its saved state). A moving target: :func:`scatter_moving_target`.
     """
-    (loss, electron_fraction, target_fraction, thermal_speed, scatter, sharing, w_eV, penning_probability,
+    (loss, electron_fraction, target_fraction, _, scatter, sharing, w_eV, penning_probability,
      penning_energy_eV) = action_args
     u, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
     u_phi, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
     phi = TWO_PI * u_phi
     if kind == ACTION_ELASTIC:
-        tx = 0.0
-        ty = 0.0
-        tz = 0.0
-        if thermal_speed[k] > 0.0:
-            tx, ty, tz, s0, s1, s2, s3 = target_velocity(thermal_speed[k], s0, s1, s2, s3)
-        ux, uy, uz = elastic_velocity(ux, uy, uz, tx, ty, tz, electron_fraction[k], target_fraction[k], scatter[k],
+        ux, uy, uz = elastic_velocity(ux, uy, uz, 0.0, 0.0, 0.0, electron_fraction[k], target_fraction[k], scatter[k],
                                       energy_eV, u, phi)
         return ux, uy, uz, CHILD_NONE, 0.0, 0.0, 0.0, s0, s1, s2, s3
     if kind == ACTION_EXCITATION:
@@ -304,3 +402,21 @@ def scatter_electron(kind, k, ux, uy, uz, energy_eV, action_args, s0, s1, s2, s3
     ux, uy, uz, wx, wy, wz, s0, s1, s2, s3 = ionization_velocities(
         ux, uy, uz, energy_eV, loss[k], sharing[k], w_eV[k], scatter[k], u, phi, s0, s1, s2, s3)
     return ux, uy, uz, CHILD_IONIZATION, wx, wy, wz, s0, s1, s2, s3
+
+
+@jit
+def scatter_moving_target(kind, k, ux, uy, uz, tx, ty, tz, energy_rel_eV, action_args, s0, s1, s2, s3):
+    """:func:`scatter_electron` with a target of velocity (tx, ty, tz) [m/s]: the collision is done in the target's
+    rest frame, where the electron moves at g = v − V with the relative energy ``energy_rel_eV`` = ½ m_e g², and the
+    velocities of the electron and of an ionization's ejected electron are shifted back by V (Galilean
+    invariance). Elastic: the exact two-body result v' = m/(m+M) v + M/(m+M) V + M/(m+M) |g| n̂; inelastic: the
+    threshold is lost from the relative energy (the tables' convention for a target at rest). A Penning
+    electron, created by a later transfer, keeps its isotropic velocity. Same returns as :func:`scatter_electron`.
+    """
+    ux, uy, uz, child, wx, wy, wz, s0, s1, s2, s3 = scatter_electron(kind, k, ux - tx, uy - ty, uz - tz,
+                                                                    energy_rel_eV, action_args, s0, s1, s2, s3)
+    if child == CHILD_IONIZATION:
+        wx += tx
+        wy += ty
+        wz += tz
+    return ux + tx, uy + ty, uz + tz, child, wx, wy, wz, s0, s1, s2, s3

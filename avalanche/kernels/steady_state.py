@@ -43,7 +43,9 @@ from .collisions import (
     ENERGY_PER_SPEED2_eV,
     next_uniform,
     scatter_electron,
+    scatter_moving_target,
     select_process,
+    thermal_trial,
 )
 from .jit import jit, jit_parallel
 
@@ -130,7 +132,7 @@ def _pass_replica(r, z, vx, vy, vz, count, bank_vx, bank_vy, bank_vz, bank_count
                   accel, field_V_m, inv_cell_eV, n_cells, nu_star, nu_total, nu_cumulative, action, loss_eV,
                   electron_fraction, target_fraction, thermal_speed, scatter, sharing, w_eV, table_max_eV,
                   crossings, energy_flux, ionizations, attachments, path, counts, process_counts, extrapolated,
-                  max_energy, penning_probability, penning_energy_eV, penning_slot):
+                  max_energy, penning_probability, penning_energy_eV, penning_slot, thermal_groups):
     s0 = rng[r, 0]
     s1 = rng[r, 1]
     s2 = rng[r, 2]
@@ -152,6 +154,10 @@ def _pass_replica(r, z, vx, vy, vz, count, bank_vx, bank_vy, bank_vz, bank_count
     for c in range(N_COUNTS):
         counts[r, c] = 0
     inv_nu_star = 1.0 / nu_star
+    thermal = thermal_groups[0].shape[0] > 0  # T > 0: collisions sampled at the relative speed (thermal_trial)
+    tx = 0.0  # the target velocity of the current trial event (thermal only)
+    ty = 0.0
+    tz = 0.0
     action_args = (loss_eV, electron_fraction, target_fraction, thermal_speed, scatter, sharing, w_eV,
                    penning_probability, penning_energy_eV)
     top_energy = 0.0
@@ -197,20 +203,28 @@ def _pass_replica(r, z, vx, vy, vz, count, bank_vx, bank_vy, bank_vz, bank_count
             counts[r, COUNT_EVENTS] += 1
             u, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
             level = u * nu_star
-            c = int(e_cell)
-            f = e_cell - c
-            low = nu_total[c]
-            nu = low + f * (nu_total[c + 1] - low)
-            if nu > nu_star:
-                counts[r, COUNT_ABOVE_BOUND] += 1
-            if level >= nu:
-                continue  # null collision
-            k = select_process(level, c, f, nu_cumulative, n_proc)
-            if energy < loss_eV[k]:
+            if thermal:  # a Maxwellian target drawn for this event; frequencies at the relative energy
+                k, tx, ty, tz, collision_energy, above, s0, s1, s2, s3 = thermal_trial(
+                    level, ux, uy, uz, int(e_cell), inv_cell_eV, nu_cumulative, thermal_groups, s0, s1, s2, s3)
+                counts[r, COUNT_ABOVE_BOUND] += above
+                if k < 0:
+                    continue  # null collision
+            else:  # cold gas: targets at rest
+                c = int(e_cell)
+                f = e_cell - c
+                low = nu_total[c]
+                nu = low + f * (nu_total[c + 1] - low)
+                if nu > nu_star:
+                    counts[r, COUNT_ABOVE_BOUND] += 1
+                if level >= nu:
+                    continue  # null collision
+                k = select_process(level, c, f, nu_cumulative, n_proc)
+                collision_energy = energy
+            if collision_energy < loss_eV[k]:
                 continue  # below the threshold inside its grid cell: rejected like a null event
             counts[r, COUNT_REAL] += 1
             process_counts[r, k] += 1
-            if energy > table_max_eV[k]:
+            if collision_energy > table_max_eV[k]:
                 extrapolated[r, k] += 1
             slab = int(math.floor(pz / spacing_m))
             kind = action[k]
@@ -222,8 +236,12 @@ def _pass_replica(r, z, vx, vy, vz, count, bank_vx, bank_vy, bank_vz, bank_count
             if kind != ACTION_ELASTIC and kind != ACTION_EXCITATION and kind != ACTION_IONIZATION:
                 status = 3
                 break
-            ux, uy, uz, child, wx, wy, wz, s0, s1, s2, s3 = scatter_electron(kind, k, ux, uy, uz, energy, action_args,
-                                                                            s0, s1, s2, s3)
+            if thermal:
+                ux, uy, uz, child, wx, wy, wz, s0, s1, s2, s3 = scatter_moving_target(
+                    kind, k, ux, uy, uz, tx, ty, tz, collision_energy, action_args, s0, s1, s2, s3)
+            else:
+                ux, uy, uz, child, wx, wy, wz, s0, s1, s2, s3 = scatter_electron(kind, k, ux, uy, uz, energy,
+                                                                                action_args, s0, s1, s2, s3)
             if child != CHILD_NONE:
                 if n >= capacity:
                     status = 2
@@ -257,7 +275,7 @@ def advance_pass(z, vx, vy, vz, count, bank_vx, bank_vy, bank_vz, bank_count, rn
                  field_V_m, inv_cell_eV, n_cells, nu_star, nu_total, nu_cumulative, action, loss_eV,
                  electron_fraction, target_fraction, thermal_speed, scatter, sharing, w_eV, table_max_eV,
                  crossings, energy_flux, ionizations, attachments, path, counts, process_counts, extrapolated,
-                 max_energy, penning_probability, penning_energy_eV, penning_slot):
+                 max_energy, penning_probability, penning_energy_eV, penning_slot, thermal_groups):
     """Follow every replica's electrons until each is banked at ``z_next``, absorbed at z = 0 or attached.
 
     Each replica is a serial simulation with its own xoshiro256** state (results do not depend on the number of
@@ -296,10 +314,15 @@ def advance_pass(z, vx, vy, vz, count, bank_vx, bank_vy, bank_vz, bank_count, rn
         Out: real collisions per process, and those beyond the process's table.
     max_energy : ndarray, shape (R,)
         Out: the largest energy met at a trial event [eV].
+    penning_probability, penning_energy_eV, penning_slot : ndarray, shape (P,)
+        Penning transfer per process, as for :func:`avalanche.kernels.advance_chunk`.
+    thermal_groups : tuple of ndarray
+        The target groups of a gas at T > 0 (empty arrays for a cold gas), as for
+        :func:`avalanche.kernels.advance_chunk`.
     """
     for r in prange(z.shape[0]):
         _pass_replica(r, z, vx, vy, vz, count, bank_vx, bank_vy, bank_vz, bank_count, rng, z_next, spacing_m,
                       accel, field_V_m, inv_cell_eV, n_cells, nu_star, nu_total, nu_cumulative, action, loss_eV,
                       electron_fraction, target_fraction, thermal_speed, scatter, sharing, w_eV, table_max_eV,
                       crossings, energy_flux, ionizations, attachments, path, counts, process_counts,
-                      extrapolated, max_energy, penning_probability, penning_energy_eV, penning_slot)
+                      extrapolated, max_energy, penning_probability, penning_energy_eV, penning_slot, thermal_groups)

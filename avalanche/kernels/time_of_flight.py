@@ -42,7 +42,9 @@ from .collisions import (
     ENERGY_PER_SPEED2_eV,
     next_uniform,
     scatter_electron,
+    scatter_moving_target,
     select_process,
+    thermal_trial,
 )
 from .flight import (
     field_flight,
@@ -72,7 +74,7 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
                      target_fraction, thermal_speed, scatter, sharing, w_eV, table_max_eV, reference,
                      tally_positions, hist_inv_width_eV, sums, counts, hist, process_counts, extrapolated,
                      penning_probability, penning_energy_eV, penning_slot, period_s, wave_time, wave_accel,
-                     wave_F, wave_G, phase_sums, phase_counts, phase_process):
+                     wave_F, wave_G, phase_sums, phase_counts, phase_process, thermal_groups):
     s0 = rng[r, 0]
     s1 = rng[r, 1]
     s2 = rng[r, 2]
@@ -117,6 +119,10 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
     above_bound = 0
     status = 0  # 0: fine, 1: above the energy grid, 2: particle store full
     inv_nu_star = 1.0 / nu_star
+    thermal = thermal_groups[0].shape[0] > 0  # T > 0: collisions sampled at the relative speed (thermal_trial)
+    tx = 0.0  # the target velocity of the current trial event (thermal only)
+    ty = 0.0
+    tz = 0.0
     action_args = (loss_eV, electron_fraction, target_fraction, thermal_speed, scatter, sharing, w_eV,
                    penning_probability, penning_energy_eV)
     n = count[r]
@@ -190,22 +196,30 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
                 eedf_overflow += 1
             u, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
             level = u * nu_star
-            c = int(e_cell)
-            f = e_cell - c
-            low = nu_total[c]
-            nu = low + f * (nu_total[c + 1] - low)
-            if nu > nu_star:
-                above_bound += 1
-            if level >= nu:
-                continue  # null collision
-            k = select_process(level, c, f, nu_cumulative, n_proc)
-            if energy < loss_eV[k]:
+            if thermal:  # a Maxwellian target drawn for this event; frequencies at the relative energy
+                k, tx, ty, tz, collision_energy, above, s0, s1, s2, s3 = thermal_trial(
+                    level, ux, uy, uz, int(e_cell), inv_cell_eV, nu_cumulative, thermal_groups, s0, s1, s2, s3)
+                above_bound += above
+                if k < 0:
+                    continue  # null collision
+            else:  # cold gas: targets at rest
+                c = int(e_cell)
+                f = e_cell - c
+                low = nu_total[c]
+                nu = low + f * (nu_total[c + 1] - low)
+                if nu > nu_star:
+                    above_bound += 1
+                if level >= nu:
+                    continue  # null collision
+                k = select_process(level, c, f, nu_cumulative, n_proc)
+                collision_energy = energy
+            if collision_energy < loss_eV[k]:
                 continue  # inside the threshold's grid cell but below the threshold: rejected like a null event
             real += 1
             process_counts[r, k] += 1
             if ac:
                 bin_process[pb, k] += 1
-            if energy > table_max_eV[k]:
+            if collision_energy > table_max_eV[k]:
                 extrapolated[r, k] += 1
             kind = action[k]
             if kind == ACTION_ATTACHMENT:
@@ -214,8 +228,12 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
                 if ac:
                     bin_counts[pb, PHASE_REMOVED] += 1
                 break
-            ux, uy, uz, child, wx, wy, wz, s0, s1, s2, s3 = scatter_electron(kind, k, ux, uy, uz, energy, action_args,
-                                                                            s0, s1, s2, s3)
+            if thermal:
+                ux, uy, uz, child, wx, wy, wz, s0, s1, s2, s3 = scatter_moving_target(
+                    kind, k, ux, uy, uz, tx, ty, tz, collision_energy, action_args, s0, s1, s2, s3)
+            else:
+                ux, uy, uz, child, wx, wy, wz, s0, s1, s2, s3 = scatter_electron(kind, k, ux, uy, uz, energy,
+                                                                                action_args, s0, s1, s2, s3)
             if child != CHILD_NONE:
                 if n >= capacity:
                     status = 2
@@ -275,7 +293,7 @@ def advance_chunk(x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc, acce
                   target_fraction, thermal_speed, scatter, sharing, w_eV, table_max_eV, reference,
                   tally_positions, hist_inv_width_eV, sums, counts, hist, process_counts, extrapolated,
                   penning_probability, penning_energy_eV, penning_slot, period_s, wave_time, wave_accel, wave_F,
-                  wave_G, phase_sums, phase_counts, phase_process):
+                  wave_G, phase_sums, phase_counts, phase_process, thermal_groups):
     """Advance every replica's electrons from time ``t0`` to ``t1`` [s] (one chunk), in parallel over replicas.
 
     Each replica is a serial simulation with its own generator state, so the result does not depend on the
@@ -301,9 +319,9 @@ def advance_chunk(x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc, acce
         The energy grid: node i is at i / inv_cell_eV [eV], i = 0 … n_cells.
     nu_star : float
         Trial collision frequency [s⁻¹], ≥ every value of ``nu_total``.
-    nu_total : ndarray, shape (n_cells + 1,)
-        Total collision frequency at the nodes [s⁻¹].
-    nu_cumulative : ndarray, shape (n_cells + 1, P)
+    nu_total : ndarray, shape (n_nodes,)
+        Total collision frequency at the nodes [s⁻¹] (n_nodes = n_cells + 1 for a cold gas).
+    nu_cumulative : ndarray, shape (n_nodes, P)
         Cumulative collision frequencies of the P processes at the nodes [s⁻¹].
     action, loss_eV, electron_fraction, target_fraction, thermal_speed, scatter, sharing, w_eV, table_max_eV :
         Per-process tables: action code, energy loss [eV], m/(m+M), M/(m+M), target thermal speed √(kT/M)
@@ -331,6 +349,12 @@ def advance_chunk(x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc, acce
         (R, B_φ, P)
         AC outputs, overwritten when ``period_s`` > 0: per phase bin of t mod T the columns PHASE_*, and the real
         collisions per process.
+    thermal_groups : tuple of ndarray, each of shape (S,)
+        Gas temperature T > 0: (band edges [s⁻¹], first row, one-past-last row, thermal speed √(kT/M) [m/s]) of the
+        S target groups (species), see :func:`avalanche.kernels.thermal_trial`; each trial event then draws a
+        target velocity and reads the tables at the relative energy, which may reach above the electron grid
+        (``nu_total``, ``nu_cumulative`` then have more than n_cells + 1 rows). Empty arrays for a cold gas
+        (targets at rest, tables read at the electron energy).
 
     Notes
     -----
@@ -347,4 +371,4 @@ def advance_chunk(x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc, acce
                          electron_fraction, target_fraction, thermal_speed, scatter, sharing, w_eV, table_max_eV,
                          reference, tally_positions, hist_inv_width_eV, sums, counts, hist, process_counts,
                          extrapolated, penning_probability, penning_energy_eV, penning_slot, period_s, wave_time,
-                         wave_accel, wave_F, wave_G, phase_sums, phase_counts, phase_process)
+                         wave_accel, wave_F, wave_G, phase_sums, phase_counts, phase_process, thermal_groups)

@@ -12,6 +12,7 @@ import pytest
 import scipy.constants as sc
 
 from avalanche import ConfigError, Mixture, model_gas
+from avalanche.engine.tables import COLD_GAS_GROUPS
 from avalanche.engine.townsend import Layout, initial_velocities, make_townsend_settings, townsend
 from avalanche.engine.townsend_estimators import growth_rate, relaxation_start, townsend_estimates
 from avalanche.kernels import steady_state as S
@@ -38,7 +39,8 @@ def _ballistic(z0, vz0, z_next, vx0=0.0, planes=11):
                    np.zeros(1, np.int64), np.zeros(1), np.zeros(1), np.ones(1), np.zeros(1), np.zeros(1, np.int64),
                    np.zeros(1, np.int64), np.zeros(1), np.full(1, np.inf), out["crossings"], out["energy_flux"],
                    out["ionizations"], out["attachments"], out["path"], out["counts"], out["process_counts"],
-                   out["extrapolated"], out["max_energy"], np.zeros(1), np.zeros(1), np.full(1, -1, np.int64))
+                   out["extrapolated"], out["max_energy"], np.zeros(1), np.zeros(1), np.full(1, -1, np.int64),
+                   COLD_GAS_GROUPS)
     out["bank_vz"] = bank[2][0, 0]
     out["bank_count"] = int(bank_count[0])
     return out

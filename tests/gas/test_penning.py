@@ -14,6 +14,7 @@ from scipy import stats
 from avalanche import Mixture
 from avalanche import kernels as K
 from avalanche.cli.main import main
+from avalanche.engine.tables import COLD_GAS_GROUPS
 from avalanche.engine.time_of_flight import ProcessTable, swarm
 from avalanche.errors import ConfigError
 from avalanche.gas.penning import applicable_penning, ionization_energy_eV, parse_penning, split_key
@@ -182,7 +183,8 @@ def _one_level_chunk(probability: float, electrons: int = 2000):
                     table.table_max_eV, np.zeros((1, 3)), False, 1.0, sums, counts, hist, process_counts,
                     extrapolated, table.penning_probability, table.penning_energy_eV, table.penning_slot,
                     0.0, *(np.zeros(0),) * 4, np.zeros((1, 0, K.N_PHASE_SUMS)),  # DC: no drive period, no phases
-                    np.zeros((1, 0, K.N_PHASE_COUNTS), dtype=np.int64), np.zeros((1, 0, P), dtype=np.int64))
+                    np.zeros((1, 0, K.N_PHASE_COUNTS), dtype=np.int64), np.zeros((1, 0, P), dtype=np.int64),
+                    COLD_GAS_GROUPS)
     n = int(count[0])
     energy = K.ENERGY_PER_SPEED2_eV * (vx[0, :n] ** 2 + vy[0, :n] ** 2 + vz[0, :n] ** 2)
     cos_theta = vz[0, :n] / np.sqrt(vx[0, :n] ** 2 + vy[0, :n] ** 2 + vz[0, :n] ** 2)
