@@ -79,7 +79,42 @@ def _swarm_configure(p) -> None:
                    help="AC: periodic waveform as a two-column CSV (phase fraction or time_s, value), peak = --en")
     p.add_argument("--phase-bins", type=int, default=None, help="AC: phase bins per period (32)")
     p.add_argument("--dc-offset", type=float, default=None, metavar="TD", help="AC: DC part E_dc/N [Td] (0)")
+    p.add_argument("--magnetic-field", type=magnetic_field_value, default=None, metavar="B",
+                   help='magnetic field: tesla ("0.5" or "0.5T") or reduced B/N in Hx ("300Hx"); default none')
+    p.add_argument("--angle", type=float, default=None, metavar="DEG",
+                   help="angle between E and B [deg], 0 to 180 (90: crossed fields, the default)")
     output_arguments(p)
+
+
+def magnetic_field_value(text: str) -> tuple[str, float]:
+    """Parse ``--magnetic-field``: ``("T", value)`` for "0.5" or "0.5T", ``("Hx", value)`` for "300Hx".
+
+    Raises
+    ------
+    argparse.ArgumentTypeError
+        Not a number with an optional unit T or Hx.
+    """
+    import argparse
+
+    raw = text.strip()
+    unit = "Hx" if raw.lower().endswith("hx") else "T"
+    number = raw[:-2] if unit == "Hx" else (raw[:-1] if raw.lower().endswith("t") else raw)
+    try:
+        return unit, float(number)
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"--magnetic-field {text!r}: give a number in tesla (0.5 or 0.5T) or a "
+                                         "reduced field in Hx (300Hx)") from None
+
+
+def magnetic_options(args) -> dict:
+    """The magnetic keyword arguments of :func:`avalanche.swarm` from ``--magnetic-field`` and ``--angle``."""
+    options = {}
+    if args.magnetic_field is not None:
+        unit, value = args.magnetic_field
+        options["reduced_magnetic_field_Hx" if unit == "Hx" else "magnetic_field_T"] = value
+    if args.angle is not None:
+        options["field_angle_deg"] = args.angle
+    return options
 
 
 @command("swarm", "simulate one swarm point: transport, rate and Townsend coefficients with errors",
@@ -89,7 +124,8 @@ def _swarm(args) -> int:
 
     options = point_options(args, frequency_Hz=args.frequency, waveform=args.waveform,
                             phase_bins=args.phase_bins, dc_offset_Td=args.dc_offset)
-    result = swarm(mixture_from_args(args), args.en, seed=args.seed, precision=args.precision, **options)
+    result = swarm(mixture_from_args(args), args.en, seed=args.seed, precision=args.precision, **options,
+                   **magnetic_options(args))
     report_point(args, result)
     return 0
 

@@ -194,9 +194,9 @@ def per_replica_quantities(t: SwarmTallies, ctx: EstimatorContext) -> dict[str, 
 def _flux_tensor(t: SwarmTallies) -> np.ndarray:
     """Symmetrised flux diffusion tensor D_ij = ⟨r_i v_j⟩ − ⟨r_i⟩⟨v_j⟩ [m²/s], (R, 3, 3), frame components."""
     n = t["mature_events"].astype(float)[:, None, None]
-    mean_r = t["mature_position_sum"][:, :, None] / n
-    mean_v = t["mature_velocity_sum"][:, None, :] / n
     with np.errstate(invalid="ignore", divide="ignore"):
+        mean_r = t["mature_position_sum"][:, :, None] / n
+        mean_v = t["mature_velocity_sum"][:, None, :] / n
         d = t["mature_position_velocity_sum"] / n - mean_r * mean_v
     return 0.5 * (d + np.swapaxes(d, 1, 2))
 
