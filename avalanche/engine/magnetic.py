@@ -64,9 +64,15 @@ class MagneticField:
         return ELEMENTARY_CHARGE_C * self.magnetic_field_T / ELECTRON_MASS_kg
 
     def kernel_array(self) -> np.ndarray:
-        """The kernel's ``magnetic`` argument (b_x, b_y, b_z, ω_c): unit vector of B in kernel coordinates and ω_c."""
+        """The kernel's ``magnetic`` argument (b_x, b_z, ω_c): B's unit vector (b_x, 0, b_z) in kernel coordinates
+        and ω_c."""
         psi = math.radians(self.field_angle_deg)
-        return np.array([-math.sin(psi), 0.0, -math.cos(psi), self.cyclotron_frequency])
+        return np.array([-math.sin(psi), -math.cos(psi), self.cyclotron_frequency])
+
+    def unit_vector(self) -> np.ndarray:
+        """B / |B| in kernel coordinates (x, y, z)."""
+        bx, bz, _ = self.kernel_array()
+        return np.array([bx, 0.0, bz])
 
     def describe(self) -> dict:
         """Plain data for the run's inputs."""
@@ -75,7 +81,7 @@ class MagneticField:
                 "axes": list(AXES)}
 
 
-NO_FIELD = np.zeros(4)
+NO_FIELD = np.zeros(3)
 """The kernel's ``magnetic`` argument without a magnetic field (ω_c = 0: the field-free flights)."""
 
 

@@ -210,7 +210,7 @@ def ensure_compiled() -> None:
                     np.zeros(1), np.full(1, -1, dtype=np.int64), 0.0, *(np.zeros(0),) * 4,
                     np.zeros((1, 0, K.N_PHASE_SUMS)),
                     np.zeros((1, 0, K.N_PHASE_COUNTS), dtype=np.int64), np.zeros((1, 0, 1), dtype=np.int64),
-                    np.zeros(4))
+                    np.zeros(3))
 
 
 class _Run:

@@ -103,46 +103,65 @@ def sine_flight(tau, accel_dc, accel_ac, omega, cos0, sin0):
 # ------------------------------------------------------------------------------------- magnetic field
 
 @jit
-def gyration_factors(delta):
-    """The reduced turn functions of a flight turned by δ = ω_c τ [rad] about the magnetic field.
+def gyration_coefficients(tau, omega_c):
+    """The turn of a flight of τ [s] about a magnetic field of cyclotron frequency ω_c [rad s⁻¹].
 
-    f₁ = sin δ / δ, f₂ = (1 − cos δ)/δ², f₃ = (δ − sin δ)/δ³, g₄ = (δ²/2 − 1 + cos δ)/δ⁴, each tending to a
-    finite limit (1, 1/2, 1/6, 1/24) as δ → 0. For δ ≤ ``SINE_SERIES_LIMIT`` they come from their Taylor series
-    in δ², four terms each (the first omitted term is below 1e-16 of the sum), so such a flight costs no
-    trigonometric call and δ = 0 is exact; above it, from the library's sin and cos (c = 2 sin²(δ/2)).
+    Returns c = 1 − cos δ, sin δ (δ = ω_c τ) and the integrals of the rotation k₁ = sin δ/ω_c,
+    k₂ = (1 − cos δ)/ω_c, k₃ = (1 − cos δ)/ω_c², k₄ = (δ − sin δ)/ω_c² (finite as ω_c → 0: τ, 0, τ²/2, 0). For
+    δ ≤ ``SINE_SERIES_LIMIT`` they come from the Taylor series of f₁ = sin δ/δ, f₂ = (1 − cos δ)/δ²,
+    f₃ = (δ − sin δ)/δ³ in δ², three terms each (the first omitted term, δ⁶/5040 or less, is below 1e-19 of the
+    sum), so such a flight costs no trigonometric call or division and δ = 0 is exact; above it, from sin and cos
+    of δ/2 (1 − cos δ = 2 sin²(δ/2), sin δ = 2 sin(δ/2) cos(δ/2)), where δ − sin δ loses at most 6/δ² < 2.4e3 ulp.
     """
-    d2 = delta * delta
+    delta = omega_c * tau
     if delta <= SINE_SERIES_LIMIT:
-        d4 = d2 * d2
-        f1 = (1.0 - d2 * (1.0 / 6.0)) + d4 * (1.0 / 120.0 - d2 * (1.0 / 5040.0))
-        f2 = (1.0 / 2.0 - d2 * (1.0 / 24.0)) + d4 * (1.0 / 720.0 - d2 * (1.0 / 40320.0))
-        f3 = (1.0 / 6.0 - d2 * (1.0 / 120.0)) + d4 * (1.0 / 5040.0 - d2 * (1.0 / 362880.0))
-        g4 = (1.0 / 24.0 - d2 * (1.0 / 720.0)) + d4 * (1.0 / 40320.0 - d2 * (1.0 / 3628800.0))
-        return f1, f2, f3, g4
-    half = math.sin(0.5 * delta)
-    c = 2.0 * half * half
-    sin_delta = math.sin(delta)
-    return sin_delta / delta, c / d2, (delta - sin_delta) / (d2 * delta), (0.5 * d2 - c) / (d2 * d2)
+        d2 = delta * delta
+        f1 = 1.0 - d2 * (1.0 / 6.0 - d2 * (1.0 / 120.0))
+        f2 = 0.5 - d2 * (1.0 / 24.0 - d2 * (1.0 / 720.0))
+        f3 = 1.0 / 6.0 - d2 * (1.0 / 120.0 - d2 * (1.0 / 5040.0))
+        return d2 * f2, delta * f1, tau * f1, tau * delta * f2, tau * tau * f2, tau * tau * delta * f3
+    half_sin = math.sin(0.5 * delta)
+    c = 2.0 * half_sin * half_sin
+    sin_d = 2.0 * half_sin * math.cos(0.5 * delta)
+    inv = 1.0 / omega_c
+    return c, sin_d, sin_d * inv, c * inv, c * inv * inv, (delta - sin_d) * inv * inv
 
 
 @jit
-def magnetic_flight(tau, vx, vy, vz, ax, ay, az, jx, jy, jz, bx, by, bz, omega_c):
-    """Exact free flight in a uniform magnetic field and the acceleration a + j s (s: time into the flight).
+def jerk_coefficients(tau, omega_c):
+    """k₅ = (δ − sin δ)/ω_c³ and k₆ = (δ²/2 − 1 + cos δ)/ω_c³ of a flight of τ [s] (δ = ω_c τ): the response to a
+    linearly changing field (:func:`magnetic_flight`); Taylor series below ``SINE_SERIES_LIMIT`` as in
+    :func:`gyration_coefficients` (the reduced g₄ = k₆ ω_c³/δ⁴ = 1/24 − δ²/720 + δ⁴/40320)."""
+    delta = omega_c * tau
+    tau3 = tau * tau * tau
+    if delta <= SINE_SERIES_LIMIT:
+        d2 = delta * delta
+        return (tau3 * (1.0 / 6.0 - d2 * (1.0 / 120.0 - d2 * (1.0 / 5040.0))),
+                tau3 * delta * (1.0 / 24.0 - d2 * (1.0 / 720.0 - d2 * (1.0 / 40320.0))))
+    half_sin = math.sin(0.5 * delta)
+    inv3 = 1.0 / (omega_c * omega_c * omega_c)
+    return (delta - math.sin(delta)) * inv3, (0.5 * delta * delta - 2.0 * half_sin * half_sin) * inv3
 
-    The motion obeys dv/ds = a + j s + Ω × v with Ω = ω_c b̂ (for an electron Ω = e B / m, the cyclotron
-    frequency ω_c = e|B|/m times the unit vector b̂ of B: −e v × B / m = Ω × v). Along b̂ the motion is uniformly
-    accelerated; across it the velocity turns about b̂ at ω_c while the forces add the E×B-type drift b̂ × a / ω_c
-    and its response to j. With δ = ω_c τ, the factors f₁, f₂, f₃, g₄ of :func:`gyration_factors`, v∥ = (v·b̂) b̂,
-    v⊥ = v − v∥ and likewise for a and j:
 
-        v(τ) = v∥ + a∥ τ + j∥ τ²/2 + v⊥ cos δ + (b̂×v) sin δ + a⊥ τ f₁ + (b̂×a) τ δ f₂ + j⊥ τ² f₂ + (b̂×j) τ² δ f₃,
-        Δr = v∥ τ + a∥ τ²/2 + j∥ τ³/6 + v⊥ τ f₁ + (b̂×v) τ δ f₂ + a⊥ τ² f₂ + (b̂×a) τ² δ f₃ + j⊥ τ³ f₃
-             + (b̂×j) τ³ δ g₄,
+@jit
+def magnetic_flight(tau, vx, vy, vz, accel, jerk, bx, bz, omega_c):
+    """Exact free flight in a uniform magnetic field and the acceleration (accel + jerk s) along +z, s the time into
+    the flight.
 
-    the integrals ∫₀^τ R(u) x (τ − u)ⁿ/n! du of the rotation R(u) about b̂ by ω_c u, written without cancelling
-    differences: as ω_c → 0 they tend to the field-free flight, and for a constant field (j = 0) they are the
-    closed form "gyration + E×B drift + acceleration along B" (e.g. Jackson J D 1999, Classical
-    Electrodynamics, 3rd ed., Wiley, §12.3; from memory).
+    The motion obeys dv/ds = a + j s + Ω × v with a = accel ẑ, j = jerk ẑ and Ω = ω_c b̂ (for an electron
+    −e v × B / m = Ω × v with Ω = e B/m: ω_c = e|B|/m, b̂ the unit vector of B), b̂ = (b_x, 0, b_z) in the x–z
+    plane (any direction reduces to this by a rotation about the field axis z). Along b̂ the motion is uniformly
+    accelerated; across it the velocity turns about b̂ at ω_c while the force adds the E×B drift b̂ × a / ω_c and
+    its response to j. With δ = ω_c τ, the coefficients c = 1 − cos δ, k₁ … k₄ of :func:`gyration_coefficients`
+    and k₅, k₆ of :func:`jerk_coefficients`, x∥ = (x·b̂) b̂ and x⊥ = x − x∥:
+
+        v(τ) = v − c v⊥ + (b̂×v) sin δ + a∥ τ + a⊥ k₁ + (b̂×a) k₂ + j∥ τ²/2 + j⊥ k₃ + (b̂×j) k₄,
+        Δr = v∥ τ + v⊥ k₁ + (b̂×v) k₂ + a∥ τ²/2 + a⊥ k₃ + (b̂×a) k₄ + j∥ τ³/6 + j⊥ k₅ + (b̂×j) k₆,
+
+    the integrals ∫₀^τ R(u) x (τ − u)ⁿ/n! du of the rotation R(u) about b̂ by ω_c u. For a constant field (j = 0)
+    this is the closed form "gyration + E×B drift + acceleration along B" (e.g. Jackson J D 1999, Classical
+    Electrodynamics, 3rd ed., Wiley, §12.3; from memory); as ω_c → 0 it tends to the field-free flight without
+    cancellation.
 
     Parameters
     ----------
@@ -150,48 +169,48 @@ def magnetic_flight(tau, vx, vy, vz, ax, ay, az, jx, jy, jz, bx, by, bz, omega_c
         Flight duration [s], ≥ 0.
     vx, vy, vz : float
         Velocity at the start [m s⁻¹].
-    ax, ay, az, jx, jy, jz : float
-        Acceleration at the start [m s⁻²] and its constant rate of change [m s⁻³] (0 for a constant field).
-    bx, by, bz : float
-        Unit vector of the magnetic field's Ω = −q B/m direction (for electrons, that of B).
+    accel, jerk : float
+        Acceleration along +z at the start [m s⁻²] and its constant rate of change [m s⁻³] (0 for a constant field).
+    bx, bz : float
+        Unit vector b̂ = (b_x, 0, b_z) of Ω (for electrons, of B).
     omega_c : float
-        Cyclotron frequency |q| B / m [rad s⁻¹], > 0.
+        Cyclotron frequency [rad s⁻¹], > 0.
 
     Returns
     -------
     (float, float, float, float, float, float)
         Velocity at the end [m s⁻¹] and displacement [m].
     """
-    delta = omega_c * tau
-    f1, f2, f3, g4 = gyration_factors(delta)
-    tau2 = tau * tau
-    tau3 = tau2 * tau
-    cos_d = 1.0 - delta * delta * f2
-    sin_d = delta * f1
-    k1 = tau * f1          # ∫ cos, ∫ (τ−u) cos / τ …: coefficients shared by velocity and displacement
-    k2 = tau * delta * f2
-    k3 = tau2 * f2
-    k4 = tau2 * delta * f3
-    k5 = tau3 * f3
-    k6 = tau3 * delta * g4
-    vb = vx * bx + vy * by + vz * bz
-    ab = ax * bx + ay * by + az * bz
-    jb = jx * bx + jy * by + jz * bz
-    par_v = vb + ab * tau + 0.5 * jb * tau2
-    par_r = vb * tau + 0.5 * ab * tau2 + jb * tau3 / 6.0
-    # perpendicular parts and the cross products b̂ × (·)
-    pvx, pvy, pvz = vx - vb * bx, vy - vb * by, vz - vb * bz
-    pax, pay, paz = ax - ab * bx, ay - ab * by, az - ab * bz
-    pjx, pjy, pjz = jx - jb * bx, jy - jb * by, jz - jb * bz
-    cvx, cvy, cvz = by * vz - bz * vy, bz * vx - bx * vz, bx * vy - by * vx
-    cax, cay, caz = by * az - bz * ay, bz * ax - bx * az, bx * ay - by * ax
-    cjx, cjy, cjz = by * jz - bz * jy, bz * jx - bx * jz, bx * jy - by * jx
-    nvx = par_v * bx + pvx * cos_d + cvx * sin_d + pax * k1 + cax * k2 + pjx * k3 + cjx * k4
-    nvy = par_v * by + pvy * cos_d + cvy * sin_d + pay * k1 + cay * k2 + pjy * k3 + cjy * k4
-    nvz = par_v * bz + pvz * cos_d + cvz * sin_d + paz * k1 + caz * k2 + pjz * k3 + cjz * k4
-    dx = par_r * bx + pvx * k1 + cvx * k2 + pax * k3 + cax * k4 + pjx * k5 + cjx * k6
-    dy = par_r * by + pvy * k1 + cvy * k2 + pay * k3 + cay * k4 + pjy * k5 + cjy * k6
-    dz = par_r * bz + pvz * k1 + cvz * k2 + paz * k3 + caz * k4 + pjz * k5 + cjz * k6
+    c, sin_d, k1, k2, k3, k4 = gyration_coefficients(tau, omega_c)
+    vb = vx * bx + vz * bz
+    pvx = vx - vb * bx  # v⊥
+    pvz = vz - vb * bz
+    cvx = -bz * vy  # b̂ × v
+    cvy = bz * vx - bx * vz
+    cvz = bx * vy
+    ab = accel * bz  # a∥ = ab b̂, a⊥ = (−ab b_x, 0, accel − ab b_z), b̂ × a = (0, −b_x accel, 0)
+    par_v = ab * tau
+    par_r = vb * tau + 0.5 * ab * tau * tau
+    pax = -ab * bx
+    paz = accel - ab * bz
+    nvx = vx - c * pvx + sin_d * cvx + par_v * bx + pax * k1
+    nvy = vy - c * vy + sin_d * cvy - bx * accel * k2
+    nvz = vz - c * pvz + sin_d * cvz + par_v * bz + paz * k1
+    dx = par_r * bx + pvx * k1 + cvx * k2 + pax * k3
+    dy = vy * k1 + cvy * k2 - bx * accel * k4
+    dz = par_r * bz + pvz * k1 + cvz * k2 + paz * k3
+    if jerk != 0.0:  # AC drives only
+        k5, k6 = jerk_coefficients(tau, omega_c)
+        jb = jerk * bz
+        pjx = -jb * bx
+        pjz = jerk - jb * bz
+        tau2 = tau * tau
+        nvx += 0.5 * jb * tau2 * bx + pjx * k3
+        nvy -= bx * jerk * k4
+        nvz += 0.5 * jb * tau2 * bz + pjz * k3
+        dx += jb * tau2 * tau / 6.0 * bx + pjx * k5
+        dy -= bx * jerk * k6
+        dz += jb * tau2 * tau / 6.0 * bz + pjz * k5
     return nvx, nvy, nvz, dx, dy, dz
 
 
@@ -214,7 +233,7 @@ def accel_and_slope(t, accel_dc, accel_ac, omega, phase, period, wave_time, wave
 
 @jit
 def magnetic_field_flight(t, tau, vx, vy, vz, accel_dc, accel_ac, omega, phase, period, wave_time, wave_accel,
-                          bx, by, bz, omega_c):
+                          bx, bz, omega_c):
     """A free flight from t to t + τ [s] in the magnetic field (b̂, ω_c) and the electric acceleration a(t) along +z.
 
     A constant field (``accel_ac`` = 0, no waveform) is exact (:func:`magnetic_flight` with j = 0). A periodic
@@ -227,10 +246,9 @@ def magnetic_field_flight(t, tau, vx, vy, vz, accel_dc, accel_ac, omega, phase, 
     a node has an error of order |Δa'| τ² (Δa' the change of slope at the node).
     """
     if accel_ac == 0.0 and wave_time.shape[0] == 0:
-        return magnetic_flight(tau, vx, vy, vz, 0.0, 0.0, accel_dc, 0.0, 0.0, 0.0, bx, by, bz, omega_c)
+        return magnetic_flight(tau, vx, vy, vz, accel_dc, 0.0, bx, bz, omega_c)
     a_mid, slope = accel_and_slope(t + 0.5 * tau, accel_dc, accel_ac, omega, phase, period, wave_time, wave_accel)
-    return magnetic_flight(tau, vx, vy, vz, 0.0, 0.0, a_mid - 0.5 * tau * slope, 0.0, 0.0, slope, bx, by, bz,
-                           omega_c)
+    return magnetic_flight(tau, vx, vy, vz, a_mid - 0.5 * tau * slope, slope, bx, bz, omega_c)
 
 
 # ------------------------------------------------------------------------- AC: tabulated waveform, phases

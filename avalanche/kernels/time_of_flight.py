@@ -112,11 +112,10 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
     bin_counts = np.zeros((n_phase if ac else 0, N_PHASE_COUNTS), dtype=np.int64)
     bin_process = np.zeros((n_phase if ac else 0, n_proc), dtype=np.int64)
     # -- end AC block --
-    # -- magnetic block: B ≠ 0 only (magnetic = (b_x, b_y, b_z, ω_c)); ω_c = 0 takes the field-free flights --
+    # -- magnetic block: B ≠ 0 only (magnetic = (b_x, b_z, ω_c)); ω_c = 0 takes the field-free flights --
     bx = magnetic[0]
-    by = magnetic[1]
-    bz = magnetic[2]
-    omega_c = magnetic[3]
+    bz = magnetic[1]
+    omega_c = magnetic[2]
     has_b = omega_c > 0.0
     sum_vx = 0.0
     sum_vy = 0.0
@@ -176,7 +175,7 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
                 tau = t1 - t
             if has_b:  # magnetic: exact gyration (AC drives: tangent field over the flight, see the function)
                 ux, uy, uz, dx, dy, dz = magnetic_field_flight(t, tau, ux, uy, uz, accel_dc, accel_ac, omega, phase,
-                                                               period_s, wave_time, wave_accel, bx, by, bz, omega_c)
+                                                               period_s, wave_time, wave_accel, bx, bz, omega_c)
                 px += dx
                 py += dy
                 pz += dz
@@ -405,11 +404,12 @@ def advance_chunk(x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc, acce
         (R, B_φ, P)
         AC outputs, overwritten when ``period_s`` > 0: per phase bin of t mod T the columns PHASE_*, and the real
         collisions per process.
-    magnetic : ndarray, shape (4,)
-        Magnetic field: (b_x, b_y, b_z, ω_c), the unit vector of e B/m and the cyclotron frequency e|B|/m
-        [rad s⁻¹]; ω_c = 0 (no field) runs exactly the field-free flights and leaves the columns SUM_VX … SUM_ZVY
-        of ``sums`` at 0. With ω_c > 0 every flight is :func:`magnetic_field_flight` (exact for a constant
-        electric field) and those columns are filled (the position ones only with ``tally_positions``).
+    magnetic : ndarray, shape (3,)
+        Magnetic field: (b_x, b_z, ω_c), the unit vector (b_x, 0, b_z) of B (in the x–z plane, see
+        :mod:`avalanche.engine.magnetic`) and the cyclotron frequency e|B|/m [rad s⁻¹]; ω_c = 0 (no field) runs
+        exactly the field-free flights and leaves the columns SUM_VX … SUM_ZVY of ``sums`` at 0. With ω_c > 0
+        every flight is :func:`magnetic_field_flight` (exact for a constant electric field) and those columns are
+        filled (the position ones only with ``tally_positions``).
 
     Notes
     -----
