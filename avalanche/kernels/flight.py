@@ -106,12 +106,14 @@ def sine_flight(tau, accel_dc, accel_ac, omega, cos0, sin0):
 def gyration_coefficients(tau, omega_c):
     """The turn of a flight of τ [s] about a magnetic field of cyclotron frequency ω_c [rad s⁻¹].
 
-    Returns c = 1 − cos δ, sin δ (δ = ω_c τ) and the integrals of the rotation k₁ = sin δ/ω_c,
-    k₂ = (1 − cos δ)/ω_c, k₃ = (1 − cos δ)/ω_c², k₄ = (δ − sin δ)/ω_c² (finite as ω_c → 0: τ, 0, τ²/2, 0). For
+    Returns c = 1 − cos δ, sin δ (δ = ω_c τ), the integrals of the rotation k₁ = sin δ/ω_c, k₂ = (1 − cos δ)/ω_c,
+    k₃ = (1 − cos δ)/ω_c², k₄ = (δ − sin δ)/ω_c², and the differences q₁ = τ − k₁ = (δ − sin δ)/ω_c,
+    q₂ = τ²/2 − k₃ = (δ²/2 − 1 + cos δ)/ω_c² (all finite as ω_c → 0: 0, 0, τ, 0, τ²/2, 0, 0, 0). For
     δ ≤ ``SINE_SERIES_LIMIT`` they come from the Taylor series of f₁ = sin δ/δ, f₂ = (1 − cos δ)/δ²,
-    f₃ = (δ − sin δ)/δ³ in δ², three terms each (the first omitted term, δ⁶/5040 or less, is below 1e-19 of the
-    sum), so such a flight costs no trigonometric call or division and δ = 0 is exact; above it, from sin and cos
-    of δ/2 (1 − cos δ = 2 sin²(δ/2), sin δ = 2 sin(δ/2) cos(δ/2)), where δ − sin δ loses at most 6/δ² < 2.4e3 ulp.
+    f₃ = (δ − sin δ)/δ³, g₄ = (δ²/2 − 1 + cos δ)/δ⁴ in δ², three terms each (the first omitted term, δ⁶/5040 of
+    f₁ or less, is below 1e-19 of the sum), so such a flight costs no trigonometric call or division and δ = 0 is
+    exact; above it, from sin and cos of δ/2 (1 − cos δ = 2 sin²(δ/2), sin δ = 2 sin(δ/2) cos(δ/2)), where the
+    differences δ − sin δ and δ²/2 − (1 − cos δ) lose at most 12/δ² < 5e3 ulp.
     """
     delta = omega_c * tau
     if delta <= SINE_SERIES_LIMIT:
@@ -119,28 +121,17 @@ def gyration_coefficients(tau, omega_c):
         f1 = 1.0 - d2 * (1.0 / 6.0 - d2 * (1.0 / 120.0))
         f2 = 0.5 - d2 * (1.0 / 24.0 - d2 * (1.0 / 720.0))
         f3 = 1.0 / 6.0 - d2 * (1.0 / 120.0 - d2 * (1.0 / 5040.0))
-        return d2 * f2, delta * f1, tau * f1, tau * delta * f2, tau * tau * f2, tau * tau * delta * f3
+        g4 = 1.0 / 24.0 - d2 * (1.0 / 720.0 - d2 * (1.0 / 40320.0))
+        tau2 = tau * tau
+        return (d2 * f2, delta * f1, tau * f1, tau * delta * f2, tau2 * f2, tau2 * delta * f3, tau * d2 * f3,
+                tau2 * d2 * g4)
     half_sin = math.sin(0.5 * delta)
     c = 2.0 * half_sin * half_sin
     sin_d = 2.0 * half_sin * math.cos(0.5 * delta)
     inv = 1.0 / omega_c
-    return c, sin_d, sin_d * inv, c * inv, c * inv * inv, (delta - sin_d) * inv * inv
-
-
-@jit
-def jerk_coefficients(tau, omega_c):
-    """k₅ = (δ − sin δ)/ω_c³ and k₆ = (δ²/2 − 1 + cos δ)/ω_c³ of a flight of τ [s] (δ = ω_c τ): the response to a
-    linearly changing field (:func:`magnetic_flight`); Taylor series below ``SINE_SERIES_LIMIT`` as in
-    :func:`gyration_coefficients` (the reduced g₄ = k₆ ω_c³/δ⁴ = 1/24 − δ²/720 + δ⁴/40320)."""
-    delta = omega_c * tau
-    tau3 = tau * tau * tau
-    if delta <= SINE_SERIES_LIMIT:
-        d2 = delta * delta
-        return (tau3 * (1.0 / 6.0 - d2 * (1.0 / 120.0 - d2 * (1.0 / 5040.0))),
-                tau3 * delta * (1.0 / 24.0 - d2 * (1.0 / 720.0 - d2 * (1.0 / 40320.0))))
-    half_sin = math.sin(0.5 * delta)
-    inv3 = 1.0 / (omega_c * omega_c * omega_c)
-    return (delta - math.sin(delta)) * inv3, (0.5 * delta * delta - 2.0 * half_sin * half_sin) * inv3
+    inv2 = inv * inv
+    return (c, sin_d, sin_d * inv, c * inv, c * inv2, (delta - sin_d) * inv2, (delta - sin_d) * inv,
+            (0.5 * delta * delta - c) * inv2)
 
 
 @jit
@@ -152,16 +143,19 @@ def magnetic_flight(tau, vx, vy, vz, accel, jerk, bx, bz, omega_c):
     −e v × B / m = Ω × v with Ω = e B/m: ω_c = e|B|/m, b̂ the unit vector of B), b̂ = (b_x, 0, b_z) in the x–z
     plane (any direction reduces to this by a rotation about the field axis z). Along b̂ the motion is uniformly
     accelerated; across it the velocity turns about b̂ at ω_c while the force adds the E×B drift b̂ × a / ω_c and
-    its response to j. With δ = ω_c τ, the coefficients c = 1 − cos δ, k₁ … k₄ of :func:`gyration_coefficients`
-    and k₅, k₆ of :func:`jerk_coefficients`, x∥ = (x·b̂) b̂ and x⊥ = x − x∥:
+    its response to j. With δ = ω_c τ, the coefficients of :func:`gyration_coefficients`, x∥ = (x·b̂) b̂ and
+    x⊥ = x − x∥:
 
         v(τ) = v − c v⊥ + (b̂×v) sin δ + a∥ τ + a⊥ k₁ + (b̂×a) k₂ + j∥ τ²/2 + j⊥ k₃ + (b̂×j) k₄,
         Δr = v∥ τ + v⊥ k₁ + (b̂×v) k₂ + a∥ τ²/2 + a⊥ k₃ + (b̂×a) k₄ + j∥ τ³/6 + j⊥ k₅ + (b̂×j) k₆,
 
-    the integrals ∫₀^τ R(u) x (τ − u)ⁿ/n! du of the rotation R(u) about b̂ by ω_c u. For a constant field (j = 0)
-    this is the closed form "gyration + E×B drift + acceleration along B" (e.g. Jackson J D 1999, Classical
-    Electrodynamics, 3rd ed., Wiley, §12.3; from memory); as ω_c → 0 it tends to the field-free flight without
-    cancellation.
+    (k₅ = (δ − sin δ)/ω_c³, k₆ = (δ²/2 − 1 + cos δ)/ω_c³), the integrals ∫₀^τ R(u) x (τ − u)ⁿ/n! du of the
+    rotation R(u) about b̂ by ω_c u. For a constant field (j = 0) this is the closed form "gyration + E×B drift +
+    acceleration along B" (e.g. Jackson J D 1999, Classical Electrodynamics, 3rd ed., Wiley, §12.3; from memory).
+    It is evaluated as v(τ) = M v + m, Δr = K v + n with the 3 × 3 matrices M = I − c P⊥ + sin δ [b̂×],
+    K = k₁ P⊥ + k₂ [b̂×] + τ b̂b̂ᵀ (P⊥ = I − b̂b̂ᵀ) and vectors m, n built from τ alone, so the chain from one
+    collision's velocity to the next is a product and a short sum; written with q₁ = τ − k₁ and q₂ = τ²/2 − k₃, it
+    tends to the field-free flight as ω_c → 0 without cancellation.
 
     Parameters
     ----------
@@ -181,36 +175,39 @@ def magnetic_flight(tau, vx, vy, vz, accel, jerk, bx, bz, omega_c):
     (float, float, float, float, float, float)
         Velocity at the end [m s⁻¹] and displacement [m].
     """
-    c, sin_d, k1, k2, k3, k4 = gyration_coefficients(tau, omega_c)
-    vb = vx * bx + vz * bz
-    pvx = vx - vb * bx  # v⊥
-    pvz = vz - vb * bz
-    cvx = -bz * vy  # b̂ × v
-    cvy = bz * vx - bx * vz
-    cvz = bx * vy
-    ab = accel * bz  # a∥ = ab b̂, a⊥ = (−ab b_x, 0, accel − ab b_z), b̂ × a = (0, −b_x accel, 0)
-    par_v = ab * tau
-    par_r = vb * tau + 0.5 * ab * tau * tau
-    pax = -ab * bx
-    paz = accel - ab * bz
-    nvx = vx - c * pvx + sin_d * cvx + par_v * bx + pax * k1
-    nvy = vy - c * vy + sin_d * cvy - bx * accel * k2
-    nvz = vz - c * pvz + sin_d * cvz + par_v * bz + paz * k1
-    dx = par_r * bx + pvx * k1 + cvx * k2 + pax * k3
-    dy = vy * k1 + cvy * k2 - bx * accel * k4
-    dz = par_r * bz + pvz * k1 + cvz * k2 + paz * k3
-    if jerk != 0.0:  # AC drives only
-        k5, k6 = jerk_coefficients(tau, omega_c)
-        jb = jerk * bz
-        pjx = -jb * bx
-        pjz = jerk - jb * bz
-        tau2 = tau * tau
-        nvx += 0.5 * jb * tau2 * bx + pjx * k3
-        nvy -= bx * jerk * k4
-        nvz += 0.5 * jb * tau2 * bz + pjz * k3
-        dx += jb * tau2 * tau / 6.0 * bx + pjx * k5
-        dy -= bx * jerk * k6
-        dz += jb * tau2 * tau / 6.0 * bz + pjz * k5
+    c, sin_d, k1, k2, k3, k4, q1, q2 = gyration_coefficients(tau, omega_c)
+    bxx = bx * bx
+    bzz = bz * bz
+    bxz = bx * bz
+    one_c = 1.0 - c
+    m_xz = c * bxz
+    m_xy = sin_d * bz
+    m_yz = sin_d * bx
+    k_xz = q1 * bxz
+    k_xy = k2 * bz
+    k_yz = k2 * bx
+    # a = accel ẑ: a∥ = accel b_z b̂, a⊥ = accel (ẑ − b_z b̂), b̂ × a = accel (0, −b_x, 0)
+    mx = accel * k_xz
+    my = -accel * bx * k2
+    mz = accel * (k1 + bzz * q1)
+    nx = accel * bxz * q2
+    ny = -accel * bx * k4
+    nz = accel * (k3 + bzz * q2)
+    if jerk != 0.0:  # AC drives only: j∥ τ²/2 + j⊥ k₃ + (b̂×j) k₄ and j∥ τ³/6 + j⊥ k₅ + (b̂×j) k₆
+        q3 = tau * tau * tau / 6.0 - (k4 / omega_c)  # τ³/6 − k₅
+        k6 = q2 / omega_c
+        mx += jerk * bxz * q2
+        my -= jerk * bx * k4
+        mz += jerk * (k3 + bzz * q2)
+        nx += jerk * bxz * q3
+        ny -= jerk * bx * k6
+        nz += jerk * (k4 / omega_c + bzz * q3)
+    nvx = ((one_c + c * bxx) * vx - m_xy * vy) + (m_xz * vz + mx)
+    nvy = (m_xy * vx + one_c * vy) + (my - m_yz * vz)
+    nvz = (m_xz * vx + m_yz * vy) + ((one_c + c * bzz) * vz + mz)
+    dx = ((k1 + q1 * bxx) * vx - k_xy * vy) + (k_xz * vz + nx)
+    dy = (k_xy * vx + k1 * vy) + (ny - k_yz * vz)
+    dz = (k_xz * vx + k_yz * vy) + ((k1 + q1 * bzz) * vz + nz)
     return nvx, nvy, nvz, dx, dy, dz
 
 

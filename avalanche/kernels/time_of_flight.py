@@ -60,6 +60,7 @@ from .flight import (
     field_flight,
     instantaneous_accel,
     magnetic_field_flight,
+    magnetic_flight,
     phase_bin,
     sine_flight,
     table_flight,
@@ -174,8 +175,12 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
             if last:
                 tau = t1 - t
             if has_b:  # magnetic: exact gyration (AC drives: tangent field over the flight, see the function)
-                ux, uy, uz, dx, dy, dz = magnetic_field_flight(t, tau, ux, uy, uz, accel_dc, accel_ac, omega, phase,
-                                                               period_s, wave_time, wave_accel, bx, bz, omega_c)
+                if ac:
+                    ux, uy, uz, dx, dy, dz = magnetic_field_flight(t, tau, ux, uy, uz, accel_dc, accel_ac, omega,
+                                                                   phase, period_s, wave_time, wave_accel, bx, bz,
+                                                                   omega_c)
+                else:
+                    ux, uy, uz, dx, dy, dz = magnetic_flight(tau, ux, uy, uz, accel_dc, 0.0, bx, bz, omega_c)
                 px += dx
                 py += dy
                 pz += dz
