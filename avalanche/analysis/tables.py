@@ -300,8 +300,9 @@ class SwarmTable:
                    checksums=dict(described.get("checksums", {})))
 
     @classmethod
-    def from_results(cls, results, mixture: str | int | None = None, frequency_Hz: float | None = None
-                     ) -> SwarmTable:
+    def from_results(cls, results, mixture: str | int | None = None, frequency_Hz: float | None = None,
+                     magnetic_field_T: float | None = None, reduced_magnetic_field_Hx: float | None = None,
+                     field_angle_deg: float | None = None) -> SwarmTable:
         """Table of one mixture and frequency of a sweep's results file.
 
         Parameters
@@ -312,6 +313,9 @@ class SwarmTable:
             Mixture label or index; needed when the sweep has several.
         frequency_Hz : float, optional
             Drive frequency [Hz] (0 for DC); needed when the sweep has several.
+        magnetic_field_T, reduced_magnetic_field_Hx, field_angle_deg : float, optional
+            The magnetic field (in T or as B/N in Hx) and its angle to E [deg]; needed when the sweep has several
+            (the vector results against E/N for several B: :class:`avalanche.analysis.magnetic.MagneticDriftTable`).
 
         Only finished points enter; missing and failed ones are listed in :attr:`notes`. The points' full results
         (EEDFs, phase-resolved data) are not read here; :attr:`point_index` locates them for
@@ -339,6 +343,7 @@ class SwarmTable:
         if float(frequency_Hz) not in frequencies:
             raise ConfigError(f"{source}: no points at frequency {frequency_Hz!r} Hz; the sweep has {frequencies} Hz")
         rows &= grid["frequency_Hz"] == float(frequency_Hz)
+        rows &= _magnetic_rows(grid, rows, source, magnetic_field_T, reduced_magnetic_field_Hx, field_angle_deg)
         done = rows & (grid["status"] == STATUS_OK)
         notes = [f"{np.count_nonzero(rows & (grid['status'] == status))} point(s) {status}, left out"
                  for status in ("failed", "missing") if np.any(rows & (grid["status"] == status))]
@@ -358,6 +363,29 @@ class SwarmTable:
                    composition=dict(spec.get("composition", {})) or None, source=source,
                    units=dict(results.units), parameters=dict(spec.get("parameters", {})),
                    checksums=dict(results.checksums), point_index=grid["index"][done], notes=notes)
+
+
+def _magnetic_rows(grid, rows, source: str, tesla, hx, angle) -> np.ndarray:
+    """The rows of one magnetic field and angle (all rows for a sweep without a magnetic grid)."""
+    if "magnetic_field_T" not in (grid.dtype.names or ()):
+        return np.ones(len(grid), dtype=bool)
+    column, value = ("reduced_magnetic_field_Hx", hx) if hx is not None else ("magnetic_field_T", tesla)
+    fields = sorted(set(grid[column][rows].tolist()))
+    if value is None:
+        if len(fields) > 1:
+            raise ConfigError(f"{source}: the sweep has several magnetic fields {fields} ({column}); choose one")
+        value = fields[0]
+    if float(value) not in fields:
+        raise ConfigError(f"{source}: no points at {column} = {value!r}; the sweep has {fields}")
+    chosen = grid[column] == float(value)
+    angles = sorted(set(grid["field_angle_deg"][rows & chosen].tolist()))
+    if angle is None:
+        if len(angles) > 1:
+            raise ConfigError(f"{source}: the sweep has several angles between E and B {angles} deg; choose one")
+        angle = angles[0]
+    if float(angle) not in angles:
+        raise ConfigError(f"{source}: no points at field_angle_deg = {angle!r}; the sweep has {angles} deg")
+    return chosen & (grid["field_angle_deg"] == float(angle))
 
 
 def _choose_mixture(labels: Sequence[str], mixture, source: str) -> int:

@@ -6,6 +6,8 @@ import numpy as np
 import pytest
 
 from avalanche import open_results, run_sweep
+from avalanche.analysis.magnetic import MagneticDriftTable
+from avalanche.analysis.tables import SwarmTable
 from avalanche.errors import ConfigError
 from avalanche.sweep.runfile import parse_runfile, point_seed
 
@@ -73,3 +75,12 @@ def test_a_magnetic_sweep_stores_its_grid_and_vector_results(tmp_path):
     assert point.magnetic is not None and point.inputs["magnetic_field"]["reduced_magnetic_field_Hx"] == 100.0
     assert point.drift_velocity_vector[1].value > 0  # E×B drift (common practice)
     assert res.point(0).magnetic is None
+    # the drift table of the file: one curve per B, the numbers of the points' payloads
+    table = MagneticDriftTable.from_results(res)
+    assert list(table.curves) == [0.0, pytest.approx(1.0, rel=1e-12)]
+    assert table.curves[list(table.curves)[1]]["drift_velocity_ExB"][0][1] == point.drift_velocity_vector[1].value
+    # the scalar table needs one field: the choices are named, and a chosen one gives its E/N curve
+    with pytest.raises(ConfigError, match="several magnetic fields"):
+        SwarmTable.from_results(res)
+    scalar = SwarmTable.from_results(res, reduced_magnetic_field_Hx=100.0)
+    assert list(scalar.point_index) == [2, 3]
