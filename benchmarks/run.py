@@ -393,7 +393,7 @@ def figure_magnetic(state: dict, budget: Budget) -> list[Row]:
     rate = per_core_rate(result)
     ratio = rate / free_rate
     target, verdict = judge("magnetic_ratio", ratio)
-    return [Row(f"avalanche events/s per core, Reid ramp 12 Td, B = {MAGNETIC_FIELD_T:g} T crossed", f"{rate:.3g}"),
+    return [Row(f"magnetic: events/s per core, Reid ramp 12 Td, B = {MAGNETIC_FIELD_T:g} T crossed", f"{rate:.3g}"),
             Row("  (its Lorentz angle [deg])", estimate_text(result.lorentz_angle_deg)),
             Row("events/s with B / without B", f"{ratio:.3g}", target, verdict)]
 
