@@ -13,6 +13,7 @@ from .flight import (  # noqa: F401
     field_flight,
     gyration_coefficients,
     instantaneous_accel,
+    jerk_coefficients,
     magnetic_field_flight,
     magnetic_flight,
     phase_bin,

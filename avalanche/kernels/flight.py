@@ -106,14 +106,13 @@ def sine_flight(tau, accel_dc, accel_ac, omega, cos0, sin0):
 def gyration_coefficients(tau, omega_c):
     """The turn of a flight of τ [s] about a magnetic field of cyclotron frequency ω_c [rad s⁻¹].
 
-    Returns c = 1 − cos δ, sin δ (δ = ω_c τ), the integrals of the rotation k₁ = sin δ/ω_c, k₂ = (1 − cos δ)/ω_c,
-    k₃ = (1 − cos δ)/ω_c², k₄ = (δ − sin δ)/ω_c², and the differences q₁ = τ − k₁ = (δ − sin δ)/ω_c,
-    q₂ = τ²/2 − k₃ = (δ²/2 − 1 + cos δ)/ω_c² (all finite as ω_c → 0: 0, 0, τ, 0, τ²/2, 0, 0, 0). For
-    δ ≤ ``SINE_SERIES_LIMIT`` they come from the Taylor series of f₁ = sin δ/δ, f₂ = (1 − cos δ)/δ²,
-    f₃ = (δ − sin δ)/δ³, g₄ = (δ²/2 − 1 + cos δ)/δ⁴ in δ², three terms each (the first omitted term, δ⁶/5040 of
-    f₁ or less, is below 1e-19 of the sum), so such a flight costs no trigonometric call or division and δ = 0 is
-    exact; above it, from sin and cos of δ/2 (1 − cos δ = 2 sin²(δ/2), sin δ = 2 sin(δ/2) cos(δ/2)), where the
-    differences δ − sin δ and δ²/2 − (1 − cos δ) lose at most 12/δ² < 5e3 ulp.
+    Returns cos δ, sin δ (δ = ω_c τ) and the integrals of the rotation k₁ + i k₂ = ∫₀^τ e^{iω_c u} du,
+    k₃ + i k₄ = ∫₀^τ (τ − u) e^{iω_c u} du: k₁ = sin δ/ω_c, k₂ = (1 − cos δ)/ω_c, k₃ = (1 − cos δ)/ω_c²,
+    k₄ = (δ − sin δ)/ω_c² (finite as ω_c → 0: τ, 0, τ²/2, 0). For δ ≤ ``SINE_SERIES_LIMIT`` they come from the
+    Taylor series of f₁ = sin δ/δ, f₂ = (1 − cos δ)/δ², f₃ = (δ − sin δ)/δ³ in δ², three terms each (the first
+    omitted term, δ⁶/5040 of f₁ or less, is below 1e-19 of the sum), so such a flight costs no trigonometric call
+    or division and δ = 0 is exact; above it, from sin and cos of δ/2 (1 − cos δ = 2 sin²(δ/2), sin δ =
+    2 sin(δ/2) cos(δ/2)), where δ − sin δ loses at most 6/δ² < 2.4e3 ulp.
     """
     delta = omega_c * tau
     if delta <= SINE_SERIES_LIMIT:
@@ -121,17 +120,30 @@ def gyration_coefficients(tau, omega_c):
         f1 = 1.0 - d2 * (1.0 / 6.0 - d2 * (1.0 / 120.0))
         f2 = 0.5 - d2 * (1.0 / 24.0 - d2 * (1.0 / 720.0))
         f3 = 1.0 / 6.0 - d2 * (1.0 / 120.0 - d2 * (1.0 / 5040.0))
-        g4 = 1.0 / 24.0 - d2 * (1.0 / 720.0 - d2 * (1.0 / 40320.0))
-        tau2 = tau * tau
-        return (d2 * f2, delta * f1, tau * f1, tau * delta * f2, tau2 * f2, tau2 * delta * f3, tau * d2 * f3,
-                tau2 * d2 * g4)
+        k1 = tau * f1
+        k3 = tau * tau * f2
+        return 1.0 - d2 * f2, delta * f1, k1, delta * tau * f2, k3, delta * tau * tau * f3
     half_sin = math.sin(0.5 * delta)
     c = 2.0 * half_sin * half_sin
     sin_d = 2.0 * half_sin * math.cos(0.5 * delta)
     inv = 1.0 / omega_c
-    inv2 = inv * inv
-    return (c, sin_d, sin_d * inv, c * inv, c * inv2, (delta - sin_d) * inv2, (delta - sin_d) * inv,
-            (0.5 * delta * delta - c) * inv2)
+    return 1.0 - c, sin_d, sin_d * inv, c * inv, c * inv * inv, (delta - sin_d) * inv * inv
+
+
+@jit
+def jerk_coefficients(tau, omega_c):
+    """k₅ + i k₆ = ∫₀^τ (τ − u)²/2 e^{iω_c u} du of a flight of τ [s]: k₅ = (δ − sin δ)/ω_c³,
+    k₆ = (δ²/2 − 1 + cos δ)/ω_c³ (δ = ω_c τ), the response to a linearly changing field; Taylor series of
+    k₅/τ³ = 1/6 − δ²/120 + δ⁴/5040 and k₆/(τ³δ) = 1/24 − δ²/720 + δ⁴/40320 below ``SINE_SERIES_LIMIT``."""
+    delta = omega_c * tau
+    tau3 = tau * tau * tau
+    if delta <= SINE_SERIES_LIMIT:
+        d2 = delta * delta
+        return (tau3 * (1.0 / 6.0 - d2 * (1.0 / 120.0 - d2 * (1.0 / 5040.0))),
+                tau3 * delta * (1.0 / 24.0 - d2 * (1.0 / 720.0 - d2 * (1.0 / 40320.0))))
+    half_sin = math.sin(0.5 * delta)
+    inv3 = 1.0 / (omega_c * omega_c * omega_c)
+    return (delta - math.sin(delta)) * inv3, (0.5 * delta * delta - 2.0 * half_sin * half_sin) * inv3
 
 
 @jit
@@ -141,21 +153,18 @@ def magnetic_flight(tau, vx, vy, vz, accel, jerk, bx, bz, omega_c):
 
     The motion obeys dv/ds = a + j s + Ω × v with a = accel ẑ, j = jerk ẑ and Ω = ω_c b̂ (for an electron
     −e v × B / m = Ω × v with Ω = e B/m: ω_c = e|B|/m, b̂ the unit vector of B), b̂ = (b_x, 0, b_z) in the x–z
-    plane (any direction reduces to this by a rotation about the field axis z). Along b̂ the motion is uniformly
-    accelerated; across it the velocity turns about b̂ at ω_c while the force adds the E×B drift b̂ × a / ω_c and
-    its response to j. With δ = ω_c τ, the coefficients of :func:`gyration_coefficients`, x∥ = (x·b̂) b̂ and
-    x⊥ = x − x∥:
+    plane (any direction reduces to this by a rotation about the field axis z). In the frame (ê₁, ê₂, b̂) with
+    ê₁ = (b_z, 0, −b_x), ê₂ = ŷ (right-handed, ê₁ × ê₂ = b̂) the motion along b̂ is uniformly accelerated,
+    v∥' = v∥ + a∥ τ + j∥ τ²/2, Δr∥ = v∥ τ + a∥ τ²/2 + j∥ τ³/6, and the perpendicular velocity w = w₁ + i w₂ obeys
+    dw/ds = i ω_c w + a₁ + j₁ s (a₁ = a·ê₁, the force has no ê₂ part), so that
 
-        v(τ) = v − c v⊥ + (b̂×v) sin δ + a∥ τ + a⊥ k₁ + (b̂×a) k₂ + j∥ τ²/2 + j⊥ k₃ + (b̂×j) k₄,
-        Δr = v∥ τ + v⊥ k₁ + (b̂×v) k₂ + a∥ τ²/2 + a⊥ k₃ + (b̂×a) k₄ + j∥ τ³/6 + j⊥ k₅ + (b̂×j) k₆,
+        w(τ) = w e^{iδ} + a₁ (k₁ + i k₂) + j₁ (k₃ + i k₄),
+        Δr⊥ = w (k₁ + i k₂) + a₁ (k₃ + i k₄) + j₁ (k₅ + i k₆),
 
-    (k₅ = (δ − sin δ)/ω_c³, k₆ = (δ²/2 − 1 + cos δ)/ω_c³), the integrals ∫₀^τ R(u) x (τ − u)ⁿ/n! du of the
-    rotation R(u) about b̂ by ω_c u. For a constant field (j = 0) this is the closed form "gyration + E×B drift +
-    acceleration along B" (e.g. Jackson J D 1999, Classical Electrodynamics, 3rd ed., Wiley, §12.3; from memory).
-    It is evaluated as v(τ) = M v + m, Δr = K v + n with the 3 × 3 matrices M = I − c P⊥ + sin δ [b̂×],
-    K = k₁ P⊥ + k₂ [b̂×] + τ b̂b̂ᵀ (P⊥ = I − b̂b̂ᵀ) and vectors m, n built from τ alone, so the chain from one
-    collision's velocity to the next is a product and a short sum; written with q₁ = τ − k₁ and q₂ = τ²/2 − k₃, it
-    tends to the field-free flight as ω_c → 0 without cancellation.
+    with δ = ω_c τ and the integrals of :func:`gyration_coefficients` and :func:`jerk_coefficients`: the
+    gyration, the E×B drift (a₁ k₂ → a₁ τ × the drift E×B/B² as δ grows) and the acceleration along B of the
+    classical closed form (e.g. Jackson J D 1999, Classical Electrodynamics, 3rd ed., Wiley, §12.3; from memory).
+    As ω_c → 0 it tends to the field-free flight without cancellation.
 
     Parameters
     ----------
@@ -175,40 +184,29 @@ def magnetic_flight(tau, vx, vy, vz, accel, jerk, bx, bz, omega_c):
     (float, float, float, float, float, float)
         Velocity at the end [m s⁻¹] and displacement [m].
     """
-    c, sin_d, k1, k2, k3, k4, q1, q2 = gyration_coefficients(tau, omega_c)
-    bxx = bx * bx
-    bzz = bz * bz
-    bxz = bx * bz
-    one_c = 1.0 - c
-    m_xz = c * bxz
-    m_xy = sin_d * bz
-    m_yz = sin_d * bx
-    k_xz = q1 * bxz
-    k_xy = k2 * bz
-    k_yz = k2 * bx
-    # a = accel ẑ: a∥ = accel b_z b̂, a⊥ = accel (ẑ − b_z b̂), b̂ × a = accel (0, −b_x, 0)
-    mx = accel * k_xz
-    my = -accel * bx * k2
-    mz = accel * (k1 + bzz * q1)
-    nx = accel * bxz * q2
-    ny = -accel * bx * k4
-    nz = accel * (k3 + bzz * q2)
-    if jerk != 0.0:  # AC drives only: j∥ τ²/2 + j⊥ k₃ + (b̂×j) k₄ and j∥ τ³/6 + j⊥ k₅ + (b̂×j) k₆
-        q3 = tau * tau * tau / 6.0 - (k4 / omega_c)  # τ³/6 − k₅
-        k6 = q2 / omega_c
-        mx += jerk * bxz * q2
-        my -= jerk * bx * k4
-        mz += jerk * (k3 + bzz * q2)
-        nx += jerk * bxz * q3
-        ny -= jerk * bx * k6
-        nz += jerk * (k4 / omega_c + bzz * q3)
-    nvx = ((one_c + c * bxx) * vx - m_xy * vy) + (m_xz * vz + mx)
-    nvy = (m_xy * vx + one_c * vy) + (my - m_yz * vz)
-    nvz = (m_xz * vx + m_yz * vy) + ((one_c + c * bzz) * vz + mz)
-    dx = ((k1 + q1 * bxx) * vx - k_xy * vy) + (k_xz * vz + nx)
-    dy = (k_xy * vx + k1 * vy) + (ny - k_yz * vz)
-    dz = (k_xz * vx + k_yz * vy) + ((k1 + q1 * bzz) * vz + nz)
-    return nvx, nvy, nvz, dx, dy, dz
+    cos_d, sin_d, k1, k2, k3, k4 = gyration_coefficients(tau, omega_c)
+    v_par = bx * vx + bz * vz
+    w1 = bz * vx - bx * vz
+    a_par = accel * bz
+    a1 = -accel * bx
+    new_par = v_par + a_par * tau
+    r_par = (v_par + 0.5 * a_par * tau) * tau
+    new_w1 = (w1 * cos_d - vy * sin_d) + a1 * k1
+    new_w2 = (vy * cos_d + w1 * sin_d) + a1 * k2
+    r1 = (w1 * k1 - vy * k2) + a1 * k3
+    r2 = (vy * k1 + w1 * k2) + a1 * k4
+    if jerk != 0.0:  # AC drives only
+        k5, k6 = jerk_coefficients(tau, omega_c)
+        j_par = jerk * bz
+        j1 = -jerk * bx
+        new_par += 0.5 * j_par * tau * tau
+        r_par += j_par * tau * tau * tau / 6.0
+        new_w1 += j1 * k3
+        new_w2 += j1 * k4
+        r1 += j1 * k5
+        r2 += j1 * k6
+    return (new_par * bx + new_w1 * bz, new_w2, new_par * bz - new_w1 * bx,
+            r_par * bx + r1 * bz, r2, r_par * bz - r1 * bx)
 
 
 @jit
