@@ -3,6 +3,7 @@ the gas and point arguments they share."""
 
 from __future__ import annotations
 
+from .common import magnetic_field_value, magnetic_selection
 from .registry import SAFETY_NOTE, command, print_json
 
 
@@ -86,37 +87,6 @@ def _swarm_configure(p) -> None:
     output_arguments(p)
 
 
-def magnetic_field_value(text: str) -> tuple[str, float]:
-    """Parse ``--magnetic-field``: ``("T", value)`` for "0.5" or "0.5T", ``("Hx", value)`` for "300Hx".
-
-    Raises
-    ------
-    argparse.ArgumentTypeError
-        Not a number with an optional unit T or Hx.
-    """
-    import argparse
-
-    raw = text.strip()
-    unit = "Hx" if raw.lower().endswith("hx") else "T"
-    number = raw[:-2] if unit == "Hx" else (raw[:-1] if raw.lower().endswith("t") else raw)
-    try:
-        return unit, float(number)
-    except ValueError:
-        raise argparse.ArgumentTypeError(f"--magnetic-field {text!r}: give a number in tesla (0.5 or 0.5T) or a "
-                                         "reduced field in Hx (300Hx)") from None
-
-
-def magnetic_options(args) -> dict:
-    """The magnetic keyword arguments of :func:`avalanche.swarm` from ``--magnetic-field`` and ``--angle``."""
-    options = {}
-    if args.magnetic_field is not None:
-        unit, value = args.magnetic_field
-        options["reduced_magnetic_field_Hx" if unit == "Hx" else "magnetic_field_T"] = value
-    if args.angle is not None:
-        options["field_angle_deg"] = args.angle
-    return options
-
-
 @command("swarm", "simulate one swarm point: transport, rate and Townsend coefficients with errors",
          configure=_swarm_configure)
 def _swarm(args) -> int:
@@ -125,7 +95,7 @@ def _swarm(args) -> int:
     options = point_options(args, frequency_Hz=args.frequency, waveform=args.waveform,
                             phase_bins=args.phase_bins, dc_offset_Td=args.dc_offset)
     result = swarm(mixture_from_args(args), args.en, seed=args.seed, precision=args.precision, **options,
-                   **magnetic_options(args))
+                   **magnetic_selection(args))
     report_point(args, result)
     return 0
 

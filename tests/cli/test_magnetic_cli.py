@@ -35,3 +35,26 @@ def test_swarm_command_names_a_bad_magnetic_field(capsys):
         main(["swarm", "--gas", "maxwell", "--en", "1", "--magnetic-field", "lots"])
     assert exc.value.code == 2
     assert "--magnetic-field 'lots'" in capsys.readouterr().err
+
+
+def test_plot_and_table_of_a_magnetic_sweep(capsys, tmp_path):
+    from avalanche import run_sweep
+
+    run = tmp_path / "reid-b.toml"
+    run.write_text('[sweep]\nseed = 3\n[gas]\nmixture = "reid-ramp"\ntemperature_K = 0\nnumber_density_m3 = 1e25\n'
+                   '[grid]\nreduced_field_Td = [6, 12]\nreduced_magnetic_field_Hx = [0, 100]\n'
+                   '[engine]\nmax_events = 2e5\nelectrons = 256\nprecision = 0.05\n')
+    out = tmp_path / "reid-b.h5"
+    assert run_sweep(run, workers=1, out=out, quiet=True).complete
+    assert main(["table", str(out), "--magnetic"]) == 0
+    text = capsys.readouterr().out
+    rows = [line for line in text.splitlines() if not line.startswith("#")]
+    assert rows[0].split(",")[:4] == ["magnetic_field_T", "reduced_magnetic_field_Hx", "reduced_field_Td",
+                                      "drift_velocity_E"] and len(rows) == 5
+    # the scalar table needs one field when the sweep has several: the choices are named, one line, exit 1
+    assert main(["table", str(out)]) == 1
+    assert "several magnetic fields" in capsys.readouterr().err
+    assert main(["table", str(out), "--magnetic-field", "100Hx"]) == 0
+    capsys.readouterr()
+    assert main(["plot", str(out), "--out", str(tmp_path / "fig"), "--format", "png", "--eedf", "none"]) == 0
+    assert (tmp_path / "fig" / "reid-b_magnetic.png").exists()
