@@ -370,22 +370,22 @@ def _magnetic_rows(grid, rows, source: str, tesla, hx, angle) -> np.ndarray:
     if "magnetic_field_T" not in (grid.dtype.names or ()):
         return np.ones(len(grid), dtype=bool)
     column, value = ("reduced_magnetic_field_Hx", hx) if hx is not None else ("magnetic_field_T", tesla)
-    fields = sorted(set(grid[column][rows].tolist()))
+    chosen = rows & (grid[column] == _pick(grid[column][rows], value, column, "magnetic fields", source))
+    angle = _pick(grid["field_angle_deg"][chosen], angle, "field_angle_deg", "angles between E and B", source)
+    return chosen & (grid["field_angle_deg"] == angle)
+
+
+def _pick(present: np.ndarray, value, column: str, what: str, source: str) -> float:
+    """``value`` if the sweep has it in ``column`` (``present``), or the only one there is; else a ConfigError
+    naming the choices."""
+    choices = sorted(set(present.tolist()))
     if value is None:
-        if len(fields) > 1:
-            raise ConfigError(f"{source}: the sweep has several magnetic fields {fields} ({column}); choose one")
-        value = fields[0]
-    if float(value) not in fields:
-        raise ConfigError(f"{source}: no points at {column} = {value!r}; the sweep has {fields}")
-    chosen = grid[column] == float(value)
-    angles = sorted(set(grid["field_angle_deg"][rows & chosen].tolist()))
-    if angle is None:
-        if len(angles) > 1:
-            raise ConfigError(f"{source}: the sweep has several angles between E and B {angles} deg; choose one")
-        angle = angles[0]
-    if float(angle) not in angles:
-        raise ConfigError(f"{source}: no points at field_angle_deg = {angle!r}; the sweep has {angles} deg")
-    return chosen & (grid["field_angle_deg"] == float(angle))
+        if len(choices) > 1:
+            raise ConfigError(f"{source}: the sweep has several {what} {choices} ({column}); choose one")
+        return choices[0]
+    if float(value) not in choices:
+        raise ConfigError(f"{source}: no points at {column} = {value!r}; the sweep has {choices}")
+    return float(value)
 
 
 def _choose_mixture(labels: Sequence[str], mixture, source: str) -> int:

@@ -216,12 +216,7 @@ def accel_and_slope(t, accel_dc, accel_ac, omega, phase, period, wave_time, wave
     if wave_time.shape[0] == 0:
         theta = omega * t + phase
         return accel_dc + accel_ac * math.sin(theta), accel_ac * omega * math.cos(theta)
-    s = t - math.floor(t / period) * period
-    i = np.searchsorted(wave_time, s, side="right") - 1
-    if i >= wave_time.shape[0] - 1:
-        i = wave_time.shape[0] - 2
-    if i < 0:
-        i = 0
+    s, i = wave_interval(t, period, wave_time)
     slope = (wave_accel[i + 1] - wave_accel[i]) / (wave_time[i + 1] - wave_time[i])
     return accel_dc + wave_accel[i] + slope * (s - wave_time[i]), slope
 
@@ -304,16 +299,23 @@ def table_flight(t, tau, accel_dc, period, wave_time, wave_accel, wave_F, wave_G
 
 
 @jit
-def instantaneous_accel(t, accel_dc, accel_ac, omega, phase, period, wave_time, wave_accel):
-    """a(t) [m s⁻²]: a_dc + a_ac sin(ωt + φ), or a_dc + the tabulated waveform at t mod T when it is given."""
-    if wave_time.shape[0] == 0:
-        return accel_dc + accel_ac * math.sin(omega * t + phase)
+def wave_interval(t, period, wave_time):
+    """s = t mod T [s] and the index i of the waveform node interval [wave_time[i], wave_time[i + 1]) holding it."""
     s = t - math.floor(t / period) * period
     i = np.searchsorted(wave_time, s, side="right") - 1
     if i >= wave_time.shape[0] - 1:
         i = wave_time.shape[0] - 2
     if i < 0:
         i = 0
+    return s, i
+
+
+@jit
+def instantaneous_accel(t, accel_dc, accel_ac, omega, phase, period, wave_time, wave_accel):
+    """a(t) [m s⁻²]: a_dc + a_ac sin(ωt + φ), or a_dc + the tabulated waveform at t mod T when it is given."""
+    if wave_time.shape[0] == 0:
+        return accel_dc + accel_ac * math.sin(omega * t + phase)
+    s, i = wave_interval(t, period, wave_time)
     f = (s - wave_time[i]) / (wave_time[i + 1] - wave_time[i])
     return accel_dc + wave_accel[i] + f * (wave_accel[i + 1] - wave_accel[i])
 
