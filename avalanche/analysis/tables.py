@@ -303,8 +303,9 @@ class SwarmTable:
                    checksums=dict(described.get("checksums", {})))
 
     @classmethod
-    def from_results(cls, results, mixture: str | int | None = None, frequency_Hz: float | None = None
-                     ) -> SwarmTable:
+    def from_results(cls, results, mixture: str | int | None = None, frequency_Hz: float | None = None,
+                     magnetic_field_T: float | None = None, reduced_magnetic_field_Hx: float | None = None,
+                     field_angle_deg: float | None = None) -> SwarmTable:
         """Table of one mixture and frequency of a sweep's results file.
 
         Parameters
@@ -315,6 +316,9 @@ class SwarmTable:
             Mixture label or index; needed when the sweep has several.
         frequency_Hz : float, optional
             Drive frequency [Hz] (0 for DC); needed when the sweep has several.
+        magnetic_field_T, reduced_magnetic_field_Hx, field_angle_deg : float, optional
+            The magnetic field (in T or as B/N in Hx) and its angle to E [deg]; needed when the sweep has several
+            (the vector results against E/N for several B: :class:`avalanche.analysis.magnetic.MagneticDriftTable`).
 
         Notes
         -----
@@ -344,6 +348,7 @@ class SwarmTable:
         if float(frequency_Hz) not in frequencies:
             raise ConfigError(f"{source}: no points at frequency {frequency_Hz!r} Hz; the sweep has {frequencies} Hz")
         rows &= grid["frequency_Hz"] == float(frequency_Hz)
+        rows &= _magnetic_rows(grid, rows, source, magnetic_field_T, reduced_magnetic_field_Hx, field_angle_deg)
         done = rows & (grid["status"] == STATUS_OK)
         notes = [f"{np.count_nonzero(rows & (grid['status'] == status))} point(s) {status}, left out"
                  for status in ("failed", "missing") if np.any(rows & (grid["status"] == status))]
@@ -363,6 +368,29 @@ class SwarmTable:
                    composition=dict(spec.get("composition", {})) or None, source=source,
                    units=dict(results.units), parameters=dict(spec.get("parameters", {})),
                    checksums=dict(results.checksums), point_index=grid["index"][done], notes=notes)
+
+
+def _magnetic_rows(grid, rows, source: str, tesla, hx, angle) -> np.ndarray:
+    """The rows of one magnetic field and angle (all rows for a sweep without a magnetic grid)."""
+    if "magnetic_field_T" not in (grid.dtype.names or ()):
+        return np.ones(len(grid), dtype=bool)
+    column, value = ("reduced_magnetic_field_Hx", hx) if hx is not None else ("magnetic_field_T", tesla)
+    chosen = rows & (grid[column] == _pick(grid[column][rows], value, column, "magnetic fields", source))
+    angle = _pick(grid["field_angle_deg"][chosen], angle, "field_angle_deg", "angles between E and B", source)
+    return chosen & (grid["field_angle_deg"] == angle)
+
+
+def _pick(present: np.ndarray, value, column: str, what: str, source: str) -> float:
+    """``value`` if the sweep has it in ``column`` (``present``), or the only one there is; else a ConfigError
+    naming the choices."""
+    choices = sorted(set(present.tolist()))
+    if value is None:
+        if len(choices) > 1:
+            raise ConfigError(f"{source}: the sweep has several {what} {choices} ({column}); choose one")
+        return choices[0]
+    if float(value) not in choices:
+        raise ConfigError(f"{source}: no points at {column} = {value!r}; the sweep has {choices}")
+    return float(value)
 
 
 def _choose_mixture(labels: Sequence[str], mixture, source: str) -> int:

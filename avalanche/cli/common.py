@@ -45,6 +45,43 @@ def results_arguments(p, positional: bool = True) -> None:
     p.add_argument("--mixture", default=None, help="mixture label or index, when the sweep has several")
     p.add_argument("--frequency", type=float, default=None, metavar="HZ",
                    help="drive frequency [Hz] of the points to use, when the sweep has several (0 = DC)")
+    p.add_argument("--magnetic-field", type=magnetic_field_value, default=None, metavar="B",
+                   help='magnetic field of the points to use ("0.5T" or "300Hx"), when the sweep has several')
+    p.add_argument("--angle", type=float, default=None, metavar="DEG",
+                   help="angle between E and B [deg] of the points to use, when the sweep has several")
+
+
+def magnetic_field_value(text: str) -> tuple[str, float]:
+    """Parse ``--magnetic-field``: ``("T", value)`` for "0.5" or "0.5T", ``("Hx", value)`` for "300Hx".
+
+    Raises
+    ------
+    argparse.ArgumentTypeError
+        Not a number with an optional unit T or Hx.
+    """
+    import argparse
+
+    raw = text.strip()
+    unit = "Hx" if raw.lower().endswith("hx") else "T"
+    number = raw[:-2] if unit == "Hx" else (raw[:-1] if raw.lower().endswith("t") else raw)
+    try:
+        return unit, float(number)
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"--magnetic-field {text!r}: give a number in tesla (0.5 or 0.5T) or a "
+                                         "reduced field in Hx (300Hx)") from None
+
+
+def magnetic_selection(args) -> dict:
+    """The magnetic keywords (``magnetic_field_T`` or ``reduced_magnetic_field_Hx``, ``field_angle_deg``) given by
+    ``--magnetic-field`` and ``--angle``, for :func:`avalanche.swarm` and
+    :meth:`~avalanche.analysis.tables.SwarmTable.from_results`."""
+    out = {}
+    if getattr(args, "magnetic_field", None) is not None:
+        unit, value = args.magnetic_field
+        out["reduced_magnetic_field_Hx" if unit == "Hx" else "magnetic_field_T"] = value
+    if getattr(args, "angle", None) is not None:
+        out["field_angle_deg"] = args.angle
+    return out
 
 
 def open_file(path):
@@ -62,7 +99,16 @@ def load_table(results, args, command_name: str, default_lowest_frequency: bool 
             frequency = frequencies[0]
             note(f"avalanche {command_name}: the sweep has frequencies {frequencies} Hz; using {frequency:g} Hz "
                   "(choose with --frequency)")
-    table = SwarmTable.from_results(results, mixture=args.mixture, frequency_Hz=frequency)
+    selection = magnetic_selection(args)
+    chosen = {"magnetic_field_T", "reduced_magnetic_field_Hx"} & set(selection)
+    if default_lowest_frequency and not chosen:
+        index = mixture_index(results, args.mixture)
+        fields = sorted(set(results.grid["magnetic_field_T"][results.grid["mixture_index"] == index].tolist()))
+        if len(fields) > 1:
+            selection["magnetic_field_T"] = fields[0]
+            note(f"avalanche {command_name}: the sweep has magnetic fields {fields} T; the swarm panels use "
+                 f"{fields[0]:g} T (choose with --magnetic-field)")
+    table = SwarmTable.from_results(results, mixture=args.mixture, frequency_Hz=frequency, **selection)
     for message in table.notes:
         note(f"avalanche {command_name}: {results.path}: {message}")
     return table

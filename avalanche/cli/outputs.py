@@ -12,6 +12,7 @@ from pathlib import Path
 
 import numpy as np
 
+from ..analysis.magnetic import MagneticDriftTable
 from ..analysis.tables import SwarmTable, fluid_table
 from ..errors import ConfigError
 from .common import (
@@ -122,6 +123,7 @@ def _handbook_note(figure, table: SwarmTable, handbook: str | None) -> None:
 def _plot(args) -> int:
     from ..plots import (
         plot_eedf,
+        plot_magnetic_drift,
         plot_phase_resolved,
         plot_sst_profiles,
         plot_swarm_parameters,
@@ -161,6 +163,9 @@ def _plot(args) -> int:
         curves = phase_curves(results, mixture_index(results, args.mixture), phase_field)
         if curves:
             written += save_figure(plot_phase_resolved(curves), out / f"{stem}_phase", formats)
+        if np.any(results.grid["magnetic_field_T"] > 0):  # W components and Lorentz angle for every B
+            drift = MagneticDriftTable.from_results(results, args.mixture, args.frequency, args.angle)
+            written += save_figure(plot_magnetic_drift(drift), out / f"{stem}_magnetic", formats)
     show_warnings(caught, "plot")
     for path in written:
         print(f"wrote {path}")
@@ -183,12 +188,24 @@ def _table_configure(p) -> None:
     p.add_argument("--digits", type=int, default=7, metavar="N",
                    help="significant digits of the values (default 7); 0 writes the shortest exact round-trip form")
     p.add_argument("--quantity", default=None, metavar="LIST", help="comma list of quantities (default: all)")
+    p.add_argument("--magnetic", action="store_true",
+                   help="instead: the drift velocity components (E, ExB, third) and Lorentz angle against E/N for "
+                        "every magnetic field of the sweep (CSV)")
 
 
 @command("table", "write a fluid-model table of coefficients with errors and units (CSV or text)",
          configure=_table_configure)
 def _table(args) -> int:
     results = open_file(args.results)
+    if args.magnetic:
+        text = MagneticDriftTable.from_results(results, args.mixture, args.frequency, args.angle).to_csv()
+        if args.out is None:
+            sys.stdout.write(text)
+        else:
+            Path(args.out).parent.mkdir(parents=True, exist_ok=True)
+            Path(args.out).write_text(text, encoding="utf-8")
+            print(f"wrote {args.out} (drift velocity components and Lorentz angle, csv)")
+        return 0
     table = load_table(results, args, "table")
     fluid = fluid_table(table, against=args.against, quantities=split_list(args.quantity))
     fmt = args.table_format or ("text" if args.out and Path(args.out).suffix.lower() in (".txt", ".dat") else "csv")

@@ -3,6 +3,7 @@ the gas and point arguments they share."""
 
 from __future__ import annotations
 
+from .common import magnetic_field_value, magnetic_selection
 from .registry import SAFETY_NOTE, command, print_json
 
 
@@ -79,6 +80,10 @@ def _swarm_configure(p) -> None:
                    help="AC: periodic waveform as a two-column CSV (phase fraction or time_s, value), peak = --en")
     p.add_argument("--phase-bins", type=int, default=None, help="AC: phase bins per period (32)")
     p.add_argument("--dc-offset", type=float, default=None, metavar="TD", help="AC: DC part E_dc/N [Td] (0)")
+    p.add_argument("--magnetic-field", type=magnetic_field_value, default=None, metavar="B",
+                   help='magnetic field: tesla ("0.5" or "0.5T") or reduced B/N in Hx ("300Hx"); default none')
+    p.add_argument("--angle", type=float, default=None, metavar="DEG",
+                   help="angle between E and B [deg], 0 to 180 (90: crossed fields, the default)")
     output_arguments(p)
 
 
@@ -89,7 +94,8 @@ def _swarm(args) -> int:
 
     options = point_options(args, frequency_Hz=args.frequency, waveform=args.waveform,
                             phase_bins=args.phase_bins, dc_offset_Td=args.dc_offset)
-    result = swarm(mixture_from_args(args), args.en, seed=args.seed, precision=args.precision, **options)
+    result = swarm(mixture_from_args(args), args.en, seed=args.seed, precision=args.precision, **options,
+                   **magnetic_selection(args))
     report_point(args, result)
     return 0
 

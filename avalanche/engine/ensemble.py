@@ -90,6 +90,23 @@ class Ensemble:
         out[n < 2, :5] = np.nan
         return out
 
+    def position_moments(self) -> np.ndarray:
+        """Per replica (R, 12): the mean position (x̄, ȳ, z̄) and the position covariance matrix (3 × 3, row-major,
+        with n − 1; NaN for n < 2), for the diffusion tensor of magnetic-field runs."""
+        n = self.count.astype(float)
+        top = int(self.count.max())
+        live = np.arange(top)[None, :] < self.count[:, None]
+        out = np.empty((self.replicas, 12))
+        with np.errstate(invalid="ignore", divide="ignore"):
+            positions = np.stack([np.where(live, getattr(self, name)[:, :top], 0.0) for name in ("x", "y", "z")],
+                                 axis=1)
+            mean = positions.sum(axis=2) / n[:, None]
+            deviation = np.where(live[:, None, :], positions - mean[:, :, None], 0.0)
+            out[:, :3] = mean
+            out[:, 3:] = (np.einsum("rit,rjt->rij", deviation, deviation) / (n - 1)[:, None, None]).reshape(-1, 9)
+        out[n < 2] = np.nan
+        return out
+
     def reset_positions(self) -> None:
         """Move every live electron to the origin (only live entries are touched: memory stays ∝ electrons)."""
         for name in ("x", "y", "z"):

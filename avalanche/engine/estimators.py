@@ -31,6 +31,12 @@ averages of the swarm because the trial events are Poisson in time)
   nonlinear, alpha_N − eta_N differs slightly from effective_alpha_N. The simple estimates beside them are
   alpha_N_simple = ν_ion/(N W_bulk) and eta_N_simple = ν_att/(N W_bulk).
 * mobility N μ = N W_bulk / E [V⁻¹ m⁻¹ s⁻¹]; characteristic energy D_T/μ (bulk values) [eV].
+* magnetic field (:mod:`avalanche.engine.magnetic`; frame ê_E, ê_E×B, ê_3): flux drift vector W = ⟨v⟩, bulk
+  drift vector d⟨r⟩/dt; flux diffusion tensor D_ij = ⟨r_i v_j⟩ − ⟨r_i⟩⟨v_j⟩, symmetrised (only its symmetric
+  part enters the diffusion equation ∂n/∂t = … + D_ij ∂_i ∂_j n; e.g. Robson R E 2006, Introductory Transport
+  Theory for Charged Particles in Gases, World Scientific, ch. on transport in E×B fields, from memory); bulk
+  tensor D_ij = ½ d cov(r_i, r_j)/dt; Lorentz angle θ_L = angle between W and ê_E, atan2(√(W_E×B² + W_3²), W_E);
+  the transverse flux N D_T is then ½ (D_E×B,E×B + D_33) of the flux tensor (centred with ⟨v_⊥⟩ ≠ 0).
 * EEDF f(ε) per bin: the fraction of trial events in the bin divided by ∫_bin ε^½ dε, so that ∫ f ε^½ dε = 1
   over the histogram plus the overflow [eV^-3/2].
 """
@@ -41,7 +47,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .results import EnergyDistribution, Estimate
+from .results import ArrayEstimate, EnergyDistribution, Estimate
 from .tallies import SwarmTallies
 
 
@@ -155,6 +161,9 @@ def per_replica_quantities(t: SwarmTallies, ctx: EstimatorContext) -> dict[str, 
     w_mature = _ratio(t["mature_vz_sum"], t["mature_events"])
     dl_flux = _ratio(t["mature_zvz_sum"] - w_mature * t["mature_z_sum"], t["mature_events"])
     dt_flux = 0.5 * _ratio(t["mature_xyv_sum"], t["mature_events"])
+    if t.magnetic:  # the drift has transverse components: the centred tensor's transverse diagonal
+        flux = _flux_tensor(t)
+        dt_flux = 0.5 * (flux[:, 1, 1] + flux[:, 2, 2])
     mobility_N = w_bulk * N / ctx.field_V_m
     q = {
         "mean_energy_eV": _ratio(t["energy_sum_eV"], t["events"]),
@@ -180,6 +189,43 @@ def per_replica_quantities(t: SwarmTallies, ctx: EstimatorContext) -> dict[str, 
         "collision_frequency": _ratio(t["real_collisions"], exposure),
     }
     return q
+
+
+def _flux_tensor(t: SwarmTallies) -> np.ndarray:
+    """Symmetrised flux diffusion tensor D_ij = ⟨r_i v_j⟩ − ⟨r_i⟩⟨v_j⟩ [m²/s], (R, 3, 3), frame components."""
+    n = t["mature_events"].astype(float)[:, None, None]
+    with np.errstate(invalid="ignore", divide="ignore"):
+        mean_r = t["mature_position_sum"][:, :, None] / n
+        mean_v = t["mature_velocity_sum"][:, None, :] / n
+        d = t["mature_position_velocity_sum"] / n - mean_r * mean_v
+    return 0.5 * (d + np.swapaxes(d, 1, 2))
+
+
+def _magnetic_quantities(t: SwarmTallies, ctx: EstimatorContext) -> dict[str, np.ndarray]:
+    """The vector and tensor quantities of a magnetic-field run for each set of sums in ``t``."""
+    w = _ratio(t["velocity_sum"], t["events"].astype(float)[:, None])
+    magnitude = np.sqrt(np.sum(w * w, axis=1))
+    return {
+        "drift_velocity_vector": w,
+        "drift_velocity_bulk_vector": _ratio(t["position_mean_increment_m"], t["mature_time_s"][:, None]),
+        "drift_velocity_magnitude": magnitude,
+        "lorentz_angle_deg": np.degrees(np.arctan2(np.hypot(w[:, 1], w[:, 2]), w[:, 0])),
+        "diffusion_tensor_N_flux": ctx.number_density_m3 * _flux_tensor(t),
+        "diffusion_tensor_N_bulk": ctx.number_density_m3 * 0.5 * _ratio(t["position_covariance_increment_m2"],
+                                                                        t["mature_time_s"][:, None, None]),
+    }
+
+
+def magnetic_estimates(t: SwarmTallies, ctx: EstimatorContext) -> dict[str, ArrayEstimate | Estimate]:
+    """Drift velocity vectors (flux, bulk) [m/s], |W| [m/s], Lorentz angle [deg] and diffusion tensors N D (flux,
+    bulk) [m⁻¹ s⁻¹] of a magnetic-field run, with jackknife errors; frame (E, E×B, third)."""
+    full = _magnetic_quantities(pooled(t), ctx)
+    loo = _magnetic_quantities(leave_one_out(t), ctx)
+    out: dict[str, ArrayEstimate | Estimate] = {}
+    for name in full:
+        value, error = jackknife(full[name], loo[name])
+        out[name] = Estimate(float(value), float(error)) if np.ndim(value) == 0 else ArrayEstimate(value, error)
+    return out
 
 
 def _rates(t: SwarmTallies, ctx: EstimatorContext) -> np.ndarray:

@@ -42,6 +42,29 @@ class Estimate:
 
 
 @dataclass(frozen=True, eq=False)
+class ArrayEstimate:
+    """Monte Carlo estimates of the components of a vector or tensor: ``value`` and ``stderr`` (ndarrays of one
+    shape, same units); ``est[i]`` or ``est[i, j]`` is the :class:`Estimate` of one component."""
+
+    value: np.ndarray
+    stderr: np.ndarray
+
+    def __getitem__(self, index) -> Estimate:
+        return Estimate(float(self.value[index]), float(self.stderr[index]))
+
+    def to_dict(self) -> dict:
+        """``{"value": nested lists, "stderr": nested lists}`` (NaN becomes None)."""
+        return {"value": _plain(np.asarray(self.value)), "stderr": _plain(np.asarray(self.stderr))}
+
+
+MAGNETIC_UNITS = {"drift_velocity_vector": "m/s", "drift_velocity_bulk_vector": "m/s",
+                  "drift_velocity_magnitude": "m/s", "lorentz_angle_deg": "deg",
+                  "diffusion_tensor_N_flux": "1/(m s)", "diffusion_tensor_N_bulk": "1/(m s)"}
+"""Units of the vector and tensor results (components in the frame E, E×B, third of
+:mod:`avalanche.engine.magnetic`)."""
+
+
+@dataclass(frozen=True, eq=False)
 class EnergyDistribution:
     """The electron energy distribution function f(ε), normalised so that ∫ f(ε) ε^½ dε = 1 [eV^-3/2].
 
@@ -153,6 +176,9 @@ class SwarmResult:
     regime : dict or None
         AC runs: ``omega_over_nu_m``, ``omega_over_nu_energy``, ``verdict``, ``statement``, ``effective_field_Td``
         and the frequencies they derive from (see :func:`avalanche.engine.ac.regime`).
+    magnetic : dict or None
+        Magnetic-field runs: the estimates of :data:`MAGNETIC_UNITS` by name (from the tallies); None without a
+        field, where the properties below follow from the axial symmetry about E.
     """
 
     reduced_field_Td: float
@@ -174,6 +200,7 @@ class SwarmResult:
     phase_resolved: dict | None = None
     regime: dict | None = None
     phase_tallies: object | None = None
+    magnetic: dict | None = None
 
     def __getattr__(self, name: str):
         estimates = self.__dict__.get("estimates")
@@ -183,6 +210,68 @@ class SwarmResult:
 
     def __dir__(self):
         return sorted(set(super().__dir__()) | set(self.estimates))
+
+    def _vector(self, name: str, along_E: str) -> tuple[Estimate, Estimate, Estimate]:
+        if self.magnetic is not None:
+            return tuple(self.magnetic[name][i] for i in range(3))
+        return (self.estimates[along_E], Estimate(0.0, 0.0), Estimate(0.0, 0.0))
+
+    @property
+    def drift_velocity_vector(self) -> tuple[Estimate, Estimate, Estimate]:
+        """Flux drift velocity ⟨v⟩ [m/s]: components along E (the electrons' drift direction, > 0), E×B and the third
+        axis (see :mod:`avalanche.engine.magnetic`). Without a magnetic field (W_flux, 0, 0) by symmetry."""
+        return self._vector("drift_velocity_vector", "drift_velocity_flux")
+
+    @property
+    def drift_velocity_bulk_vector(self) -> tuple[Estimate, Estimate, Estimate]:
+        """Bulk drift velocity d⟨r⟩/dt [m/s] in the same frame; without a magnetic field (W_bulk, 0, 0)."""
+        return self._vector("drift_velocity_bulk_vector", "drift_velocity_bulk")
+
+    @property
+    def drift_velocity_magnitude(self) -> Estimate:
+        """|⟨v⟩| [m/s] (the flux drift velocity without a magnetic field)."""
+        return self.magnetic["drift_velocity_magnitude"] if self.magnetic else self.estimates["drift_velocity_flux"]
+
+    @property
+    def lorentz_angle_deg(self) -> Estimate:
+        """Angle between the flux drift velocity and the electric force [deg]; 0 without a magnetic field."""
+        return self.magnetic["lorentz_angle_deg"] if self.magnetic else Estimate(0.0, 0.0)
+
+    def _tensor(self, name: str, kind: str) -> ArrayEstimate:
+        if self.magnetic is not None:
+            return self.magnetic[name]
+        long, trans = self.estimates[f"long_diffusion_N_{kind}"], self.estimates[f"trans_diffusion_N_{kind}"]
+        return ArrayEstimate(np.diag([long.value, trans.value, trans.value]),
+                             np.diag([long.stderr, trans.stderr, trans.stderr]))
+
+    @property
+    def diffusion_tensor_N_flux(self) -> ArrayEstimate:
+        """N D (flux, symmetrised) [m⁻¹ s⁻¹], 3 × 3 in the frame (E, E×B, third); without a magnetic field
+        diag(N D_L, N D_T, N D_T)."""
+        return self._tensor("diffusion_tensor_N_flux", "flux")
+
+    @property
+    def diffusion_tensor_N_bulk(self) -> ArrayEstimate:
+        """N D (bulk) [m⁻¹ s⁻¹], 3 × 3 in the frame (E, E×B, third); without a magnetic field diag(N D_L, N D_T,
+        N D_T)."""
+        return self._tensor("diffusion_tensor_N_bulk", "bulk")
+
+    def magnetic_dict(self) -> dict:
+        """The magnetic-field part of :meth:`to_dict`: the field, the drift vectors (lists of three
+        ``{"value", "stderr"}``), |W|, the Lorentz angle and the diffusion tensors (``{"value": 3×3, "stderr":
+        3×3}``)."""
+        field = self.inputs.get("magnetic_field") or {}
+        return {
+            "magnetic_field_T": float(field.get("magnetic_field_T", 0.0)),
+            "reduced_magnetic_field_Hx": float(field.get("reduced_magnetic_field_Hx", 0.0)),
+            "field_angle_deg": _json_float(field.get("field_angle_deg", math.nan)),
+            "drift_velocity_vector": [e.to_dict() for e in self.drift_velocity_vector],
+            "drift_velocity_bulk_vector": [e.to_dict() for e in self.drift_velocity_bulk_vector],
+            "drift_velocity_magnitude": self.drift_velocity_magnitude.to_dict(),
+            "lorentz_angle_deg": self.lorentz_angle_deg.to_dict(),
+            "diffusion_tensor_N_flux": self.diffusion_tensor_N_flux.to_dict(),
+            "diffusion_tensor_N_bulk": self.diffusion_tensor_N_bulk.to_dict(),
+            "frame_axes": ["E", "ExB", "third"]}
 
     @property
     def precision_quantity(self) -> str:
@@ -200,7 +289,9 @@ class SwarmResult:
                     "relaxation_time_s": float(self.relaxation_time_s), "sampled_time_s": float(self.sampled_time_s),
                     "extrapolated_fraction": float(self.extrapolated_fraction),
                     "anomalies": _plain(self.anomalies), "inputs": _plain(self.inputs),
-                    "units": dict(ESTIMATE_UNITS, rate_coefficients="m3/s")})
+                    "units": dict(ESTIMATE_UNITS, rate_coefficients="m3/s", **MAGNETIC_UNITS,
+                                  magnetic_field_T="T", reduced_magnetic_field_Hx="Hx", field_angle_deg="deg")})
+        out.update(self.magnetic_dict())
         if self.phase is not None:
             out["phase"] = [float(v) for v in self.phase]
             out["phase_resolved"] = {k: v.to_dict() for k, v in (self.phase_resolved or {}).items()}
@@ -227,11 +318,28 @@ class SwarmResult:
         lines.append(f"  events {self.events:.4g} (real + null), cpu {self.cpu_seconds:.3g} s, "
                      f"wall {self.wall_seconds:.3g} s, stop: {self.stop_reason}, relaxation "
                      f"{self.relaxation_time_s:.3g} s, sampled {self.sampled_time_s:.3g} s")
+        if self.magnetic is not None:
+            lines += self._magnetic_lines()
         if self.extrapolated_fraction > 0:
             lines.append(f"  {100 * self.extrapolated_fraction:.2g} % of collisions beyond a cross-section table")
         if self.phase is not None:
             lines += self._ac_lines()
         return "\n".join(lines)
+
+    def _magnetic_lines(self) -> list[str]:
+        """The magnetic section of :meth:`format_table`: the field, drift vector, Lorentz angle and tensors."""
+        field = self.inputs.get("magnetic_field", {})
+        w = self.drift_velocity_vector
+        lines = [f"magnetic field {field.get('magnetic_field_T', math.nan):.4g} T "
+                 f"({field.get('reduced_magnetic_field_Hx', math.nan):.4g} Hx) at "
+                 f"{field.get('field_angle_deg', 0):g} deg to E; frame (E, ExB, third)",
+                 f"  drift velocity vector [m/s]  {w[0]} | {w[1]} | {w[2]}",
+                 f"  |W| {self.drift_velocity_magnitude} m/s, Lorentz angle {self.lorentz_angle_deg} deg"]
+        for name in ("diffusion_tensor_N_flux", "diffusion_tensor_N_bulk"):
+            t = getattr(self, name)
+            rows = "; ".join(" ".join(f"{t.value[i, j]:.4g}" for j in range(3)) for i in range(3))
+            lines.append(f"  {name} [1/(m s)]  {rows}")
+        return lines
 
     def _ac_lines(self, rows: int = 8) -> list[str]:
         """The AC section of :meth:`format_table`: the regime and a compact phase table (``rows`` bins)."""

@@ -15,6 +15,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from .. import kernels as K
+from .magnetic import to_frame_tensors, to_frame_vectors
 
 # name: (dtype, trailing shape key, units, description). Shape keys: "" → (R,), "P" → (R, P), "B" → (R, B).
 FIELDS: dict[str, tuple[type, str, str, str]] = {
@@ -40,6 +41,18 @@ FIELDS: dict[str, tuple[type, str, str, str]] = {
     "z_var_increment_m2": (np.float64, "", "m2", "sum of the change of var(z) during the chunk"),
     "xy_var_increment_m2": (np.float64, "", "m2", "sum of the change of var(x) + var(y) during the chunk"),
 }
+MAGNETIC_FIELDS: dict[str, tuple[type, str, str, str]] = {
+    "velocity_sum": (np.float64, "3", "m/s", "sum of the velocity at trial events (frame E, ExB, third)"),
+    "mature_velocity_sum": (np.float64, "3", "m/s", "sum of the velocity at the position-moment events"),
+    "mature_position_sum": (np.float64, "3", "m", "sum of r - r_ref at those events"),
+    "mature_position_velocity_sum": (np.float64, "3x3", "m2/s", "sum of (r_i - r_ref,i) v_j at those events"),
+    "position_mean_increment_m": (np.float64, "3", "m", "sum over those chunks of the change of <r>"),
+    "position_covariance_increment_m2": (np.float64, "3x3", "m2",
+                                         "sum over those chunks of the change of the covariance of r"),
+}
+"""Magnetic-field runs only (present in their tallies, absent otherwise): the vector and tensor sums, in the frame
+(E, E×B, third) of :mod:`avalanche.engine.magnetic`. Shape keys: "3" → (R, 3), "3x3" → (R, 3, 3)."""
+_TRAILING = {"": (), "3": (3,), "3x3": (3, 3)}
 
 
 @dataclass(eq=False)
@@ -60,11 +73,18 @@ class SwarmTallies:
             raise ValueError(f"tallies lack the fields {sorted(missing)}")
 
     @classmethod
-    def zeros(cls, replicas: int, processes: int, bins: int) -> SwarmTallies:
-        """Empty tallies for ``replicas`` replicas, ``processes`` processes and ``bins`` energy bins."""
-        trailing = {"": (), "P": (processes,), "B": (bins,)}
+    def zeros(cls, replicas: int, processes: int, bins: int, magnetic: bool = False) -> SwarmTallies:
+        """Empty tallies for ``replicas`` replicas, ``processes`` processes and ``bins`` energy bins (with the
+        :data:`MAGNETIC_FIELDS` if ``magnetic``)."""
+        trailing = dict(_TRAILING, P=(processes,), B=(bins,))
+        fields = {**FIELDS, **MAGNETIC_FIELDS} if magnetic else FIELDS
         return cls({name: np.zeros((replicas, *trailing[key]), dtype=dtype)
-                    for name, (dtype, key, _, _) in FIELDS.items()})
+                    for name, (dtype, key, _, _) in fields.items()})
+
+    @property
+    def magnetic(self) -> bool:
+        """Whether these are the tallies of a magnetic-field run (they hold :data:`MAGNETIC_FIELDS`)."""
+        return "velocity_sum" in self.arrays
 
     @property
     def replicas(self) -> int:
@@ -89,13 +109,18 @@ class SwarmTallies:
         a["process_counts"] += process_counts
         a["extrapolated_counts"] += extrapolated
         a["eedf_counts"] += hist
+        if self.magnetic:
+            a["velocity_sum"] += to_frame_vectors(sums[:, K.SUM_VELOCITY])
 
     def add_mature_chunk(self, sums: np.ndarray, counts: np.ndarray, duration_s: float, start_moments: np.ndarray,
-                         end_moments: np.ndarray) -> None:
+                         end_moments: np.ndarray, start_positions: np.ndarray | None = None,
+                         end_positions: np.ndarray | None = None) -> None:
         """Add one chunk to the position-moment sums.
 
         ``start_moments`` and ``end_moments`` have shape (R, 3): <z>, var(z), var(x) + var(y) of each replica's
-        ensemble at the chunk start (after population control) and end (before it).
+        ensemble at the chunk start (after population control) and end (before it). Magnetic-field runs also give
+        ``start_positions`` and ``end_positions`` (R, 12): the mean position (3) and the position covariance (3 × 3,
+        row-major) in kernel coordinates (:meth:`avalanche.engine.ensemble.Ensemble.position_moments`).
         """
         a = self.arrays
         a["mature_events"] += counts[:, K.COUNT_EVENTS]
@@ -108,10 +133,17 @@ class SwarmTallies:
         a["z_mean_increment_m"] += change[:, 0]
         a["z_var_increment_m2"] += change[:, 1]
         a["xy_var_increment_m2"] += change[:, 2]
+        if self.magnetic:
+            a["mature_velocity_sum"] += to_frame_vectors(sums[:, K.SUM_VELOCITY])
+            a["mature_position_sum"] += to_frame_vectors(sums[:, K.SUM_POSITION])
+            a["mature_position_velocity_sum"] += to_frame_tensors(sums[:, np.array(K.SUM_POSITION_VELOCITY)])
+            moved = end_positions - start_positions
+            a["position_mean_increment_m"] += to_frame_vectors(moved[:, :3])
+            a["position_covariance_increment_m2"] += to_frame_tensors(moved[:, 3:].reshape(-1, 3, 3))
 
     def accumulate(self, other: SwarmTallies) -> None:
         """Add the sums of ``other`` (the same replicas continued) to these, in place."""
-        for name in FIELDS:
+        for name in self.arrays:
             self.arrays[name] += other.arrays[name]
 
     def copy(self) -> SwarmTallies:
@@ -122,4 +154,5 @@ def combine(tallies: Sequence[SwarmTallies]) -> SwarmTallies:
     """Stack the replicas of independent runs (different seeds, same settings) into one set of tallies."""
     if not tallies:
         raise ValueError("combine() needs at least one SwarmTallies")
-    return SwarmTallies({name: np.concatenate([t.arrays[name] for t in tallies], axis=0) for name in FIELDS})
+    names = [name for name in tallies[0].arrays if all(name in t.arrays for t in tallies)]
+    return SwarmTallies({name: np.concatenate([t.arrays[name] for t in tallies], axis=0) for name in names})

@@ -65,7 +65,15 @@ from ..gas.mixture import Mixture
 from . import ac
 from .drive import Drive, make_drive
 from .ensemble import Ensemble
-from .estimators import EstimatorContext, energy_distribution, extrapolated_fraction, rate_coefficients, swarm_estimates
+from .estimators import (
+    EstimatorContext,
+    energy_distribution,
+    extrapolated_fraction,
+    magnetic_estimates,
+    rate_coefficients,
+    swarm_estimates,
+)
+from .magnetic import NO_FIELD, MagneticField, make_magnetic
 from .results import ESTIMATE_UNITS, SwarmResult
 from .tables import (  # noqa: F401  (re-exported: the engine's tables are part of its interface)
     ACTIONS,
@@ -205,14 +213,17 @@ def ensure_compiled() -> None:
                     np.zeros(1), np.full(1, -1, dtype=np.int64), 0.0, *(np.zeros(0),) * 4,
                     np.zeros((1, 0, K.N_PHASE_SUMS)),
                     np.zeros((1, 0, K.N_PHASE_COUNTS), dtype=np.int64), np.zeros((1, 0, 1), dtype=np.int64),
-                    COLD_GAS_GROUPS)
+                    COLD_GAS_GROUPS, np.zeros(3))
 
 
 class _Run:
     """The outer loop of one swarm point."""
 
-    def __init__(self, mixture: Mixture, reduced_field_Td: float, settings: Settings, drive: Drive | None = None):
+    def __init__(self, mixture: Mixture, reduced_field_Td: float, settings: Settings, drive: Drive | None = None,
+                 magnetic: MagneticField | None = None):
         self.settings = settings
+        self.magnetic = magnetic  # None: no magnetic field, the kernel flies the field-free path
+        self.magnetic_kernel = magnetic.kernel_array() if magnetic is not None else NO_FIELD
         self.mixture = mixture
         self.table = ProcessTable.build(mixture, settings.sharing, settings.scattering)
         self.field_V_m = reduced_field_Td * TOWNSEND_V_m2 * mixture.number_density_m3
@@ -257,7 +268,7 @@ class _Run:
                             o.sums, o.counts, o.hist, o.process_counts, o.extrapolated, t.penning_probability,
                             t.penning_energy_eV, t.penning_slot, self.period_s, *self.wave, self.phase_out.sums,
                             self.phase_out.counts,
-                            self.phase_out.process, g.thermal_groups)
+                            self.phase_out.process, g.thermal_groups, self.magnetic_kernel)
             self.events += int(o.counts[:, K.COUNT_EVENTS].sum())
             self.anomalies["frequency_above_bound"] += int(o.counts[:, K.COUNT_ABOVE_BOUND].sum())
             above = bool(o.counts[:, K.COUNT_ABOVE_GRID].any())
@@ -342,8 +353,9 @@ def _stationary(series: _Series, now: float) -> tuple[bool, float, float, float]
             float(np.mean(values["real"])))
 
 
-def swarm(mixture: Mixture | str, reduced_field_Td: float, *, seed=0, precision: float = 0.01,
-          electrons: int = 16384, max_events: int = 1_000_000_000, sharing: str = "opb",
+def swarm(mixture: Mixture | str, reduced_field_Td: float, magnetic_field_T: float = 0.0,
+          field_angle_deg: float = 90.0, *, reduced_magnetic_field_Hx: float | None = None, seed=0,
+          precision: float = 0.01, electrons: int = 16384, max_events: int = 1_000_000_000, sharing: str = "opb",
           scattering: str = "isotropic", threads: int | None = None, frequency_Hz: float | None = None,
           phase_bins: int = 32, dc_offset_Td: float = 0.0, waveform=None, **more) -> SwarmResult:
     """Swarm parameters of electrons in ``mixture`` at reduced field ``reduced_field_Td`` (DC or AC), by Monte Carlo.
@@ -354,6 +366,17 @@ def swarm(mixture: Mixture | str, reduced_field_Td: float, *, seed=0, precision:
         The gas (a string is passed to :class:`~avalanche.gas.mixture.Mixture`: 300 K, 1 atm).
     reduced_field_Td : float
         E/N [Td] (1 Td = 1e-21 V m²), > 0.
+    magnetic_field_T : float
+        |B| [T], ≥ 0, constant and uniform (0: no magnetic field, exactly the field-free run). Flights are the
+        exact motion in E and B (:func:`avalanche.kernels.magnetic_flight`); with an AC drive, see
+        :func:`avalanche.kernels.magnetic_field_flight` for the stated error. The result then has
+        ``drift_velocity_vector``, ``lorentz_angle_deg``, the diffusion tensors and ``magnetic`` in the frame
+        (E, E×B, third) of :mod:`avalanche.engine.magnetic`; the scalar estimates keep their meaning along E (the
+        transverse D_T is the mean of the two transverse diagonal components).
+    field_angle_deg : float
+        Angle between E and B [deg], 0 … 180 (90: crossed fields; 0: B parallel to E).
+    reduced_magnetic_field_Hx : float, optional
+        B/N [Hx] (1 Hx = 1e-27 T m³) instead of ``magnetic_field_T``.
     seed : int or tuple of int
         Master seed; replica streams derive from ``numpy.random.SeedSequence(seed)``. A tuple such as
         ``(master, point)`` gives independent streams for the points of a sweep.
@@ -423,6 +446,8 @@ def swarm(mixture: Mixture | str, reduced_field_Td: float, *, seed=0, precision:
     if "initial_energy_eV" not in more and mixture.temperature_K > 0:
         settings = replace(settings, initial_energy_eV=_thermal_start_eV(mixture, reduced_field_Td + abs(dc_offset_Td),
                                                                         settings))
+    magnetic = make_magnetic(magnetic_field_T, field_angle_deg, reduced_magnetic_field_Hx,
+                             number_density_m3=mixture.number_density_m3)
     previous = numba.get_num_threads()
     if threads is not None:
         threads = _positive("threads", threads, integer=True)
@@ -433,7 +458,7 @@ def swarm(mixture: Mixture | str, reduced_field_Td: float, *, seed=0, precision:
     try:
         ensure_compiled()
         cpu0, wall0 = time.process_time(), time.perf_counter()
-        run = _Run(mixture, reduced_field_Td, settings, drive)
+        run = _Run(mixture, reduced_field_Td, settings, drive, magnetic)
         result = _simulate(run, reduced_field_Td)
         result.cpu_seconds = time.process_time() - cpu0
         result.wall_seconds = time.perf_counter() - wall0
@@ -481,7 +506,9 @@ def _shrink_grid(run: _Run, recent_max_eV: float, factor: float) -> None:
 
 def _simulate(run: _Run, reduced_field_Td: float) -> SwarmResult:
     s, ens = run.settings, run.ens
-    tallies = SwarmTallies.zeros(s.replicas, len(run.table.processes), s.eedf_bins)
+    tallies = SwarmTallies.zeros(s.replicas, len(run.table.processes), s.eedf_bins, magnetic=run.magnetic is not None)
+    # magnetic: the full position moments (mean, covariance) at chunk starts and ends, for the bulk tensor
+    moments = ens.position_moments if run.magnetic is not None else (lambda: None)
     series = _Series(s.replicas)
     t = 0.0
     sampling = False
@@ -489,6 +516,7 @@ def _simulate(run: _Run, reduced_field_Td: float) -> SwarmResult:
     ionized = False
     nu_eff = 0.0
     start = ens.moments()
+    start_b = moments()
     mature_from = window_end = math.inf
     skip = segment = math.nan
     stop_reason = "max_events"
@@ -504,6 +532,7 @@ def _simulate(run: _Run, reduced_field_Td: float) -> SwarmResult:
                                  t + slack >= mature_from)
         t_start, t, dt = t, t_end, t_end - t
         end = ens.moments()
+        end_b = moments()
         sums, counts = out.sums, out.counts
         exposure = sums[:, K.SUM_EXPOSURE]
         net = counts[:, K.COUNT_CREATED].sum() - counts[:, K.COUNT_REMOVED].sum()
@@ -556,12 +585,14 @@ def _simulate(run: _Run, reduced_field_Td: float) -> SwarmResult:
             if drive is not None:
                 phase_tallies.add(run.phase_out)
             if t_start + slack >= mature_from:
-                tallies.add_mature_chunk(sums, counts, dt, start[:, 2:5], end[:, 2:5])
+                tallies.add_mature_chunk(sums, counts, dt, start[:, 2:5], end[:, 2:5], start_b, end_b)
         if ens.control():
             run.anomalies["population_controls"] += 1
             start = ens.moments()
+            start_b = moments()
         else:
             start = end
+            start_b = end_b
         if sampling and t + slack >= window_end:
             estimates = swarm_estimates(tallies, _context(run, tallies))
             if drive is not None:
@@ -572,6 +603,7 @@ def _simulate(run: _Run, reduced_field_Td: float) -> SwarmResult:
         if sampling and (t + slack >= window_end or not math.isfinite(window_end)):
             ens.reset_positions()
             start = ens.moments()
+            start_b = moments()
             mature_from = t + skip
             window_end = mature_from + segment
         if run.events >= s.max_events and tallies["events"].sum() > 0 and boundary:
@@ -631,13 +663,16 @@ def _result(run: _Run, reduced_field_Td: float, tallies: SwarmTallies, series: _
         "provenance": {c.name: c.cross_sections.provenance for c in mix.components},
         "threads": numba.get_num_threads(), "windows": run.windows,
     }
+    if run.magnetic is not None:
+        inputs["magnetic_field"] = run.magnetic.describe()
     return SwarmResult(
         reduced_field_Td=float(reduced_field_Td), estimates=estimates,
         rate_coefficients=rate_coefficients(tallies, ctx),
         eedf=energy_distribution(tallies, ctx), events=int(run.events), cpu_seconds=0.0, wall_seconds=0.0,
         stop_reason=stop_reason, relaxation_time_s=float(relaxation_time),
         sampled_time_s=float(tallies["sampled_time_s"][0]), extrapolated_fraction=extrapolated_fraction(tallies),
-        anomalies=anomalies, inputs=inputs, time_series=time_series, tallies=tallies)
+        anomalies=anomalies, inputs=inputs, time_series=time_series, tallies=tallies,
+        magnetic=magnetic_estimates(tallies, ctx) if run.magnetic is not None else None)
 
 
 def dc_equivalent(mixture, result, **swarm_options):

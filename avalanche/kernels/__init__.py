@@ -7,6 +7,18 @@ The names below are the kernel interface the engine uses as ``K.name``; the stea
 
 from .collisions import *  # noqa: F403
 from .collisions import ENERGY_PER_SPEED2_eV  # noqa: F401  (not matched by * : lower-case unit suffix)
-from .flight import SINE_SERIES_LIMIT, field_flight, instantaneous_accel, phase_bin, sine_flight, table_flight  # noqa: F401
+from .flight import (  # noqa: F401
+    SINE_SERIES_LIMIT,
+    accel_and_slope,
+    field_flight,
+    gyration_coefficients,
+    instantaneous_accel,
+    jerk_coefficients,
+    magnetic_field_flight,
+    magnetic_flight,
+    phase_bin,
+    sine_flight,
+    table_flight,
+)
 from .jit import JIT_OPTIONS, jit, jit_parallel  # noqa: F401
 from .time_of_flight import advance_chunk  # noqa: F401

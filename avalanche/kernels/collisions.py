@@ -61,7 +61,26 @@ SUM_Z = 3               # Σ (z − z_ref) [m]
 SUM_XYV = 4             # Σ (x − x_ref) v_x + (y − y_ref) v_y [m²/s]
 SUM_EXPOSURE = 5        # ∫ n dt over the chunk [s] (electron-seconds, unweighted)
 SUM_MAX_ENERGY = 6      # largest energy met at an event or a chunk end [eV] (a maximum, not a sum)
-N_SUMS = 7
+# Magnetic field only (left 0 without one): the other velocity components and the full position–velocity moments.
+SUM_VX = 7              # Σ v_x [m/s]
+SUM_VY = 8              # Σ v_y [m/s]
+SUM_X = 9               # Σ (x − x_ref) [m]          (this and the following: position tallies only)
+SUM_Y = 10              # Σ (y − y_ref) [m]
+SUM_XVX = 11            # Σ (x − x_ref) v_x [m²/s]
+SUM_XVY = 12            # Σ (x − x_ref) v_y [m²/s]
+SUM_XVZ = 13            # Σ (x − x_ref) v_z [m²/s]
+SUM_YVX = 14            # Σ (y − y_ref) v_x [m²/s]
+SUM_YVY = 15            # Σ (y − y_ref) v_y [m²/s]
+SUM_YVZ = 16            # Σ (y − y_ref) v_z [m²/s]
+SUM_ZVX = 17            # Σ (z − z_ref) v_x [m²/s]
+SUM_ZVY = 18            # Σ (z − z_ref) v_y [m²/s]
+N_SUMS = 19
+SUM_VELOCITY = (SUM_VX, SUM_VY, SUM_VZ)
+"""Columns of Σ (v_x, v_y, v_z)."""
+SUM_POSITION = (SUM_X, SUM_Y, SUM_Z)
+"""Columns of Σ (x, y, z) − r_ref."""
+SUM_POSITION_VELOCITY = ((SUM_XVX, SUM_XVY, SUM_XVZ), (SUM_YVX, SUM_YVY, SUM_YVZ), (SUM_ZVX, SUM_ZVY, SUM_ZVZ))
+"""Columns of Σ (r_i − r_ref,i) v_j, row i, column j (x, y, z)."""
 # Columns of the per-replica integer counters of one chunk.
 COUNT_EVENTS = 0        # trial events (real and null)
 COUNT_REAL = 1          # real collisions

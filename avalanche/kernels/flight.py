@@ -1,4 +1,5 @@
-"""Numba kernels of the free flight between collisions: uniform, sinusoidal and tabulated periodic fields.
+"""Numba kernels of the free flight between collisions: uniform, sinusoidal and tabulated periodic fields, with or
+without a uniform magnetic field.
 
 An electron between two trial events moves ballistically in the field E(t) along z; these functions give its
 velocity change and displacement exactly (closed forms for a constant and a sinusoidal field, piecewise
@@ -99,6 +100,147 @@ def sine_flight(tau, accel_dc, accel_ac, omega, cos0, sin0):
     return dv, dz, cos0 - turn_cos, sin0 + turn_sin
 
 
+# ------------------------------------------------------------------------------------- magnetic field
+
+@jit
+def gyration_coefficients(tau, omega_c):
+    """The turn of a flight of τ [s] about a magnetic field of cyclotron frequency ω_c [rad s⁻¹].
+
+    Returns cos δ, sin δ (δ = ω_c τ) and the integrals of the rotation k₁ + i k₂ = ∫₀^τ e^{iω_c u} du,
+    k₃ + i k₄ = ∫₀^τ (τ − u) e^{iω_c u} du: k₁ = sin δ/ω_c, k₂ = (1 − cos δ)/ω_c, k₃ = (1 − cos δ)/ω_c²,
+    k₄ = (δ − sin δ)/ω_c² (finite as ω_c → 0: τ, 0, τ²/2, 0). For δ ≤ ``SINE_SERIES_LIMIT`` they come from the
+    Taylor series of f₁ = sin δ/δ, f₂ = (1 − cos δ)/δ², f₃ = (δ − sin δ)/δ³ in δ², three terms each (the first
+    omitted term, δ⁶/5040 of f₁ or less, is below 1e-19 of the sum), so such a flight costs no trigonometric call
+    or division and δ = 0 is exact; above it, from sin and cos of δ/2 (1 − cos δ = 2 sin²(δ/2), sin δ =
+    2 sin(δ/2) cos(δ/2)), where δ − sin δ loses at most 6/δ² < 2.4e3 ulp.
+    """
+    delta = omega_c * tau
+    if delta <= SINE_SERIES_LIMIT:
+        d2 = delta * delta
+        f1 = 1.0 - d2 * (1.0 / 6.0 - d2 * (1.0 / 120.0))
+        f2 = 0.5 - d2 * (1.0 / 24.0 - d2 * (1.0 / 720.0))
+        f3 = 1.0 / 6.0 - d2 * (1.0 / 120.0 - d2 * (1.0 / 5040.0))
+        k1 = tau * f1
+        k3 = tau * tau * f2
+        return 1.0 - d2 * f2, delta * f1, k1, delta * tau * f2, k3, delta * tau * tau * f3
+    half_sin = math.sin(0.5 * delta)
+    c = 2.0 * half_sin * half_sin
+    sin_d = 2.0 * half_sin * math.cos(0.5 * delta)
+    inv = 1.0 / omega_c
+    return 1.0 - c, sin_d, sin_d * inv, c * inv, c * inv * inv, (delta - sin_d) * inv * inv
+
+
+@jit
+def jerk_coefficients(tau, omega_c):
+    """k₅ + i k₆ = ∫₀^τ (τ − u)²/2 e^{iω_c u} du of a flight of τ [s]: k₅ = (δ − sin δ)/ω_c³,
+    k₆ = (δ²/2 − 1 + cos δ)/ω_c³ (δ = ω_c τ), the response to a linearly changing field; Taylor series of
+    k₅/τ³ = 1/6 − δ²/120 + δ⁴/5040 and k₆/(τ³δ) = 1/24 − δ²/720 + δ⁴/40320 below ``SINE_SERIES_LIMIT``."""
+    delta = omega_c * tau
+    tau3 = tau * tau * tau
+    if delta <= SINE_SERIES_LIMIT:
+        d2 = delta * delta
+        return (tau3 * (1.0 / 6.0 - d2 * (1.0 / 120.0 - d2 * (1.0 / 5040.0))),
+                tau3 * delta * (1.0 / 24.0 - d2 * (1.0 / 720.0 - d2 * (1.0 / 40320.0))))
+    half_sin = math.sin(0.5 * delta)
+    inv3 = 1.0 / (omega_c * omega_c * omega_c)
+    return (delta - math.sin(delta)) * inv3, (0.5 * delta * delta - 2.0 * half_sin * half_sin) * inv3
+
+
+@jit
+def magnetic_flight(tau, vx, vy, vz, accel, jerk, bx, bz, omega_c):
+    """Exact free flight in a uniform magnetic field and the acceleration (accel + jerk s) along +z, s the time into
+    the flight.
+
+    The motion obeys dv/ds = a + j s + Ω × v with a = accel ẑ, j = jerk ẑ and Ω = ω_c b̂ (for an electron
+    −e v × B / m = Ω × v with Ω = e B/m: ω_c = e|B|/m, b̂ the unit vector of B), b̂ = (b_x, 0, b_z) in the x–z
+    plane (any direction reduces to this by a rotation about the field axis z). In the frame (ê₁, ê₂, b̂) with
+    ê₁ = (b_z, 0, −b_x), ê₂ = ŷ (right-handed, ê₁ × ê₂ = b̂) the motion along b̂ is uniformly accelerated,
+    v∥' = v∥ + a∥ τ + j∥ τ²/2, Δr∥ = v∥ τ + a∥ τ²/2 + j∥ τ³/6, and the perpendicular velocity w = w₁ + i w₂ obeys
+    dw/ds = i ω_c w + a₁ + j₁ s (a₁ = a·ê₁, the force has no ê₂ part), so that
+
+        w(τ) = w e^{iδ} + a₁ (k₁ + i k₂) + j₁ (k₃ + i k₄),
+        Δr⊥ = w (k₁ + i k₂) + a₁ (k₃ + i k₄) + j₁ (k₅ + i k₆),
+
+    with δ = ω_c τ and the integrals of :func:`gyration_coefficients` and :func:`jerk_coefficients`: the
+    gyration, the E×B drift (a₁ k₂ → a₁ τ × the drift E×B/B² as δ grows) and the acceleration along B of the
+    classical closed form (e.g. Jackson J D 1999, Classical Electrodynamics, 3rd ed., Wiley, §12.3; from memory).
+    As ω_c → 0 it tends to the field-free flight without cancellation.
+
+    Parameters
+    ----------
+    tau : float
+        Flight duration [s], ≥ 0.
+    vx, vy, vz : float
+        Velocity at the start [m s⁻¹].
+    accel, jerk : float
+        Acceleration along +z at the start [m s⁻²] and its constant rate of change [m s⁻³] (0 for a constant field).
+    bx, bz : float
+        Unit vector b̂ = (b_x, 0, b_z) of Ω (for electrons, of B).
+    omega_c : float
+        Cyclotron frequency [rad s⁻¹], > 0.
+
+    Returns
+    -------
+    (float, float, float, float, float, float)
+        Velocity at the end [m s⁻¹] and displacement [m].
+    """
+    cos_d, sin_d, k1, k2, k3, k4 = gyration_coefficients(tau, omega_c)
+    v_par = bx * vx + bz * vz
+    w1 = bz * vx - bx * vz
+    a_par = accel * bz
+    a1 = -accel * bx
+    new_par = v_par + a_par * tau
+    r_par = (v_par + 0.5 * a_par * tau) * tau
+    new_w1 = (w1 * cos_d - vy * sin_d) + a1 * k1
+    new_w2 = (vy * cos_d + w1 * sin_d) + a1 * k2
+    r1 = (w1 * k1 - vy * k2) + a1 * k3
+    r2 = (vy * k1 + w1 * k2) + a1 * k4
+    if jerk != 0.0:  # AC drives only
+        k5, k6 = jerk_coefficients(tau, omega_c)
+        j_par = jerk * bz
+        j1 = -jerk * bx
+        new_par += 0.5 * j_par * tau * tau
+        r_par += j_par * tau * tau * tau / 6.0
+        new_w1 += j1 * k3
+        new_w2 += j1 * k4
+        r1 += j1 * k5
+        r2 += j1 * k6
+    return (new_par * bx + new_w1 * bz, new_w2, new_par * bz - new_w1 * bx,
+            r_par * bx + r1 * bz, r2, r_par * bz - r1 * bx)
+
+
+@jit
+def accel_and_slope(t, accel_dc, accel_ac, omega, phase, period, wave_time, wave_accel):
+    """a(t) [m s⁻²] of :func:`instantaneous_accel` and its time derivative da/dt [m s⁻³] (for a tabulated
+    waveform, the slope of the node interval holding t)."""
+    if wave_time.shape[0] == 0:
+        theta = omega * t + phase
+        return accel_dc + accel_ac * math.sin(theta), accel_ac * omega * math.cos(theta)
+    s, i = wave_interval(t, period, wave_time)
+    slope = (wave_accel[i + 1] - wave_accel[i]) / (wave_time[i + 1] - wave_time[i])
+    return accel_dc + wave_accel[i] + slope * (s - wave_time[i]), slope
+
+
+@jit
+def magnetic_field_flight(t, tau, vx, vy, vz, accel_dc, accel_ac, omega, phase, period, wave_time, wave_accel,
+                          bx, bz, omega_c):
+    """A free flight from t to t + τ [s] in the magnetic field (b̂, ω_c) and the electric acceleration a(t) along +z.
+
+    A constant field (``accel_ac`` = 0, no waveform) is exact (:func:`magnetic_flight` with j = 0). A periodic
+    drive is replaced over the flight by its tangent at mid-flight m = t + τ/2, a(m) + a'(m)(s − m), flown exactly.
+    The neglected rest a''(m)(s − m)²/2 + … gives, to leading order in τ, a velocity error a'' τ³/24 and a
+    displacement error a'' τ⁴/48 (the integrals of (s − m)²/2 over the flight, once and twice); for a sine of
+    amplitude a_ac and angular frequency Ω: |δv| ≤ a_ac Ω² τ³/24 and |δr| ≤ a_ac Ω² τ⁴/48, a fraction (Ωτ)²/24 of
+    the field's impulse a_ac τ. With a null-collision trial frequency ν* ≫ Ω, (Ωτ)² is 2 (Ω/ν*)² on average.
+    A tabulated waveform is exact for a flight inside one node interval (a(s) is linear there); a flight across
+    a node has an error of order |Δa'| τ² (Δa' the change of slope at the node).
+    """
+    if accel_ac == 0.0 and wave_time.shape[0] == 0:
+        return magnetic_flight(tau, vx, vy, vz, accel_dc, 0.0, bx, bz, omega_c)
+    a_mid, slope = accel_and_slope(t + 0.5 * tau, accel_dc, accel_ac, omega, phase, period, wave_time, wave_accel)
+    return magnetic_flight(tau, vx, vy, vz, a_mid - 0.5 * tau * slope, slope, bx, bz, omega_c)
+
+
 # ------------------------------------------------------------------------- AC: tabulated waveform, phases
 # (AC block: everything between here and "collision kinematics" serves periodic drives; DC runs never enter it.)
 
@@ -157,16 +299,23 @@ def table_flight(t, tau, accel_dc, period, wave_time, wave_accel, wave_F, wave_G
 
 
 @jit
-def instantaneous_accel(t, accel_dc, accel_ac, omega, phase, period, wave_time, wave_accel):
-    """a(t) [m s⁻²]: a_dc + a_ac sin(ωt + φ), or a_dc + the tabulated waveform at t mod T when it is given."""
-    if wave_time.shape[0] == 0:
-        return accel_dc + accel_ac * math.sin(omega * t + phase)
+def wave_interval(t, period, wave_time):
+    """s = t mod T [s] and the index i of the waveform node interval [wave_time[i], wave_time[i + 1]) holding it."""
     s = t - math.floor(t / period) * period
     i = np.searchsorted(wave_time, s, side="right") - 1
     if i >= wave_time.shape[0] - 1:
         i = wave_time.shape[0] - 2
     if i < 0:
         i = 0
+    return s, i
+
+
+@jit
+def instantaneous_accel(t, accel_dc, accel_ac, omega, phase, period, wave_time, wave_accel):
+    """a(t) [m s⁻²]: a_dc + a_ac sin(ωt + φ), or a_dc + the tabulated waveform at t mod T when it is given."""
+    if wave_time.shape[0] == 0:
+        return accel_dc + accel_ac * math.sin(omega * t + phase)
+    s, i = wave_interval(t, period, wave_time)
     f = (s - wave_time[i]) / (wave_time[i + 1] - wave_time[i])
     return accel_dc + wave_accel[i] + f * (wave_accel[i + 1] - wave_accel[i])
 

@@ -35,9 +35,21 @@ from .collisions import (
     SUM_ENERGY,
     SUM_EXPOSURE,
     SUM_MAX_ENERGY,
+    SUM_VX,
+    SUM_VY,
     SUM_VZ,
+    SUM_X,
+    SUM_XVX,
+    SUM_XVY,
+    SUM_XVZ,
     SUM_XYV,
+    SUM_Y,
+    SUM_YVX,
+    SUM_YVY,
+    SUM_YVZ,
     SUM_Z,
+    SUM_ZVX,
+    SUM_ZVY,
     SUM_ZVZ,
     ENERGY_PER_SPEED2_eV,
     next_uniform,
@@ -49,6 +61,8 @@ from .collisions import (
 from .flight import (
     field_flight,
     instantaneous_accel,
+    magnetic_field_flight,
+    magnetic_flight,
     phase_bin,
     sine_flight,
     table_flight,
@@ -74,7 +88,7 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
                      target_fraction, thermal_speed, scatter, sharing, w_eV, table_max_eV, reference,
                      tally_positions, hist_inv_width_eV, sums, counts, hist, process_counts, extrapolated,
                      penning_probability, penning_energy_eV, penning_slot, period_s, wave_time, wave_accel,
-                     wave_F, wave_G, phase_sums, phase_counts, phase_process, thermal_groups):
+                     wave_F, wave_G, phase_sums, phase_counts, phase_process, thermal_groups, magnetic):
     s0 = rng[r, 0]
     s1 = rng[r, 1]
     s2 = rng[r, 2]
@@ -101,6 +115,24 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
     bin_counts = np.zeros((n_phase if ac else 0, N_PHASE_COUNTS), dtype=np.int64)
     bin_process = np.zeros((n_phase if ac else 0, n_proc), dtype=np.int64)
     # -- end AC block --
+    # -- magnetic block: B ≠ 0 only (magnetic = (b_x, b_z, ω_c)); ω_c = 0 takes the field-free flights --
+    bx = magnetic[0]
+    bz = magnetic[1]
+    omega_c = magnetic[2]
+    has_b = omega_c > 0.0
+    sum_vx = 0.0
+    sum_vy = 0.0
+    sum_x = 0.0
+    sum_y = 0.0
+    sum_xvx = 0.0
+    sum_xvy = 0.0
+    sum_xvz = 0.0
+    sum_yvx = 0.0
+    sum_yvy = 0.0
+    sum_yvz = 0.0
+    sum_zvx = 0.0
+    sum_zvy = 0.0
+    # -- end magnetic block --
     x_ref = reference[r, 0]
     y_ref = reference[r, 1]
     z_ref = reference[r, 2]
@@ -148,17 +180,34 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
             last = t + tau >= t1
             if last:
                 tau = t1 - t
-            if sine:
-                dvz, dz, cos_theta, sin_theta = sine_flight(tau, accel_dc, accel_ac, omega, cos_theta, sin_theta)
-            elif table:  # AC: tabulated waveform
-                dvz, dz = table_flight(t, tau, accel_dc, period_s, wave_time, wave_accel, wave_F, wave_G)
+            if has_b:  # magnetic: exact gyration (AC drives: tangent field over the flight, see the function)
+                if ac:
+                    ux, uy, uz, dx, dy, dz = magnetic_field_flight(t, tau, ux, uy, uz, accel_dc, accel_ac, omega,
+                                                                   phase, period_s, wave_time, wave_accel, bx, bz,
+                                                                   omega_c)
+                else:
+                    ux, uy, uz, dx, dy, dz = magnetic_flight(tau, ux, uy, uz, accel_dc, 0.0, bx, bz, omega_c)
+                px += dx
+                py += dy
+                pz += dz
+                t += tau
+                vperp2 = ux * ux + uy * uy
+                if sine:
+                    cos_theta = math.cos(omega * t + phase)
+                    sin_theta = math.sin(omega * t + phase)
             else:
-                dvz, dz = field_flight(t, tau, accel_dc, accel_ac, omega, phase)
-            px += ux * tau
-            py += uy * tau
-            pz += uz * tau + dz
-            uz += dvz
-            t += tau
+                if sine:
+                    dvz, dz, cos_theta, sin_theta = sine_flight(tau, accel_dc, accel_ac, omega, cos_theta,
+                                                                sin_theta)
+                elif table:  # AC: tabulated waveform
+                    dvz, dz = table_flight(t, tau, accel_dc, period_s, wave_time, wave_accel, wave_F, wave_G)
+                else:
+                    dvz, dz = field_flight(t, tau, accel_dc, accel_ac, omega, phase)
+                px += ux * tau
+                py += uy * tau
+                pz += uz * tau + dz
+                uz += dvz
+                t += tau
             exposure += tau
             energy = ENERGY_PER_SPEED2_eV * (vperp2 + uz * uz)
             if energy > max_energy:
@@ -179,6 +228,23 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
                 sum_zvz += dzr * uz
                 sum_z += dzr
                 sum_xyv += (px - x_ref) * ux + (py - y_ref) * uy
+            if has_b:  # magnetic: the transverse drift and the full position–velocity moments
+                sum_vx += ux
+                sum_vy += uy
+                if tally_positions:
+                    dxr = px - x_ref
+                    dyr = py - y_ref
+                    dzr = pz - z_ref
+                    sum_x += dxr
+                    sum_y += dyr
+                    sum_xvx += dxr * ux
+                    sum_xvy += dxr * uy
+                    sum_xvz += dxr * uz
+                    sum_yvx += dyr * ux
+                    sum_yvy += dyr * uy
+                    sum_yvz += dyr * uz
+                    sum_zvx += dzr * ux
+                    sum_zvy += dzr * uy
             if ac:  # AC: the event's phase bin
                 pb = phase_bin(t, inv_period, n_phase)
                 bin_counts[pb, PHASE_EVENTS] += 1
@@ -277,6 +343,18 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
     sums[r, SUM_XYV] = sum_xyv
     sums[r, SUM_EXPOSURE] = exposure
     sums[r, SUM_MAX_ENERGY] = max_energy
+    sums[r, SUM_VX] = sum_vx
+    sums[r, SUM_VY] = sum_vy
+    sums[r, SUM_X] = sum_x
+    sums[r, SUM_Y] = sum_y
+    sums[r, SUM_XVX] = sum_xvx
+    sums[r, SUM_XVY] = sum_xvy
+    sums[r, SUM_XVZ] = sum_xvz
+    sums[r, SUM_YVX] = sum_yvx
+    sums[r, SUM_YVY] = sum_yvy
+    sums[r, SUM_YVZ] = sum_yvz
+    sums[r, SUM_ZVX] = sum_zvx
+    sums[r, SUM_ZVY] = sum_zvy
     counts[r, COUNT_EVENTS] = events
     counts[r, COUNT_REAL] = real
     counts[r, COUNT_CREATED] = created
@@ -293,7 +371,7 @@ def advance_chunk(x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc, acce
                   target_fraction, thermal_speed, scatter, sharing, w_eV, table_max_eV, reference,
                   tally_positions, hist_inv_width_eV, sums, counts, hist, process_counts, extrapolated,
                   penning_probability, penning_energy_eV, penning_slot, period_s, wave_time, wave_accel, wave_F,
-                  wave_G, phase_sums, phase_counts, phase_process, thermal_groups):
+                  wave_G, phase_sums, phase_counts, phase_process, thermal_groups, magnetic):
     """Advance every replica's electrons from time ``t0`` to ``t1`` [s] (one chunk), in parallel over replicas.
 
     Each replica is a serial simulation with its own generator state, so the result does not depend on the
@@ -355,6 +433,12 @@ def advance_chunk(x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc, acce
         target velocity and reads the tables at the relative energy, which may reach above the electron grid
         (``nu_total``, ``nu_cumulative`` then have more than n_cells + 1 rows). Empty arrays for a cold gas
         (targets at rest, tables read at the electron energy).
+    magnetic : ndarray, shape (3,)
+        Magnetic field: (b_x, b_z, ω_c), the unit vector (b_x, 0, b_z) of B (in the x–z plane, see
+        :mod:`avalanche.engine.magnetic`) and the cyclotron frequency e|B|/m [rad s⁻¹]; ω_c = 0 (no field) runs
+        exactly the field-free flights and leaves the columns SUM_VX … SUM_ZVY of ``sums`` at 0. With ω_c > 0
+        every flight is :func:`magnetic_field_flight` (exact for a constant electric field) and those columns are
+        filled (the position ones only with ``tally_positions``).
 
     Notes
     -----
@@ -371,4 +455,4 @@ def advance_chunk(x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc, acce
                          electron_fraction, target_fraction, thermal_speed, scatter, sharing, w_eV, table_max_eV,
                          reference, tally_positions, hist_inv_width_eV, sums, counts, hist, process_counts,
                          extrapolated, penning_probability, penning_energy_eV, penning_slot, period_s, wave_time,
-                         wave_accel, wave_F, wave_G, phase_sums, phase_counts, phase_process, thermal_groups)
+                         wave_accel, wave_F, wave_G, phase_sums, phase_counts, phase_process, thermal_groups, magnetic)

@@ -11,6 +11,7 @@ from .swarm import (
     SSTProfile,
     handbook_gas_name,
     plot_eedf,
+    plot_magnetic_drift,
     plot_phase_resolved,
     plot_sst_profiles,
     plot_swarm_parameters,
@@ -20,6 +21,6 @@ from .swarm import (
 
 __all__ = [
     "PAPER_STYLE", "FORMATS", "save_figure", "ReferenceData", "read_reference", "handbook_gas_name",
-    "swarm_panels", "plot_swarm_parameters", "plot_eedf", "PhaseCurve", "plot_phase_resolved", "SSTProfile",
-    "plot_sst_profiles", "plot_paschen", "plot_emission_spectrum", "plot_phase_resolved_emission",
+    "swarm_panels", "plot_swarm_parameters", "plot_magnetic_drift", "plot_eedf", "PhaseCurve", "plot_phase_resolved",
+    "SSTProfile", "plot_sst_profiles", "plot_paschen", "plot_emission_spectrum", "plot_phase_resolved_emission",
 ]

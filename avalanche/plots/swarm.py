@@ -1,5 +1,5 @@
-"""Figures of swarm results: swarm parameters against E/N, energy distributions, phase-resolved AC panels and
-steady-state Townsend profiles."""
+"""Figures of swarm results: swarm parameters against E/N, drift in magnetic fields, energy distributions,
+phase-resolved AC panels and steady-state Townsend profiles."""
 
 from __future__ import annotations
 
@@ -13,6 +13,7 @@ import numpy as np
 from matplotlib.figure import Figure
 
 from ..analysis.coefficients import HANDBOOK_TOWNSEND, handbook_alpha_N, handbook_validity_range_Td
+from ..analysis.magnetic import MagneticDriftTable
 from ..analysis.tables import QUANTITY_UNITS, RATE_PREFIX, SwarmTable, did_you_mean, quantity_unit
 from ..errors import ConfigError
 from .style import (
@@ -271,6 +272,51 @@ def _title(table: SwarmTable) -> str:
     if table.temperature_K is not None:
         parts.append(f"T = {table.temperature_K:g} K")
     return ", ".join(parts)
+
+
+# --- magnetic fields ----------------------------------------------------------------------------------------------
+
+_COMPONENT_STYLES = (("drift_velocity_E", "o-", "along E"), ("drift_velocity_ExB", "s--", "along ExB"),
+                     ("drift_velocity_third", "^:", "third axis"))
+
+
+@styled
+def plot_magnetic_drift(table: MagneticDriftTable) -> Figure:
+    """Drift velocity components (along E, E×B, the third axis) and the Lorentz angle against E/N, one colour per
+    magnetic field (two panels; series tagged ``<quantity>:<B>T`` for the tests).
+
+    Parameters
+    ----------
+    table : avalanche.analysis.magnetic.MagneticDriftTable
+
+    Returns
+    -------
+    matplotlib.figure.Figure
+    """
+    figure, (ax_w, ax_angle) = new_figure(2)
+    colours = [f"C{i}" for i in range(10)]
+    every_field = []
+    for n, (tesla, curve) in enumerate(table.curves.items()):
+        fields = curve["reduced_field_Td"]
+        every_field.extend(fields.tolist())
+        hx = table.reduced_magnetic_field_Hx.get(tesla)
+        name = f"B = {tesla:.3g} T" + (f" ({hx:.3g} Hx)" if hx else "")
+        colour = colours[n % len(colours)]
+        for quantity, fmt, text in _COMPONENT_STYLES:
+            values, errors = curve[quantity]
+            draw_errorbar(ax_w, fields, values, errors, f"{quantity}:{tesla:g}T", f"{name}, {text}", False, fmt=fmt,
+                          color=colour)
+        values, errors = curve["lorentz_angle_deg"]
+        draw_errorbar(ax_angle, fields, values, errors, f"lorentz_angle_deg:{tesla:g}T", name, False, fmt="o-",
+                      color=colour)
+    for ax in (ax_w, ax_angle):
+        set_log_x(ax, np.array(every_field))
+        ax.set_xlabel("reduced field E/N [Td]")
+        add_legend(ax)
+    ax_w.set_ylabel(axis_label("drift velocity component", "m/s"))
+    ax_angle.set_ylabel(axis_label("Lorentz angle", "deg"))
+    figure.suptitle(f"{table.gas_label or 'drift in E and B'}, angle between E and B {table.field_angle_deg:g} deg")
+    return figure
 
 
 # --- energy distributions -----------------------------------------------------------------------------------------

@@ -19,6 +19,12 @@ Layout of a point group (the root of a file written by :func:`save_result`; swee
   (``verdict``, ``statement``, ``omega_over_nu_m``, ``omega_over_nu_energy``, ``effective_field_Td``, ... and
   all of it as ``regime_json``); ``phase/tallies/sums`` (R, B_φ, 4), ``counts`` (R, B_φ, 3), ``process``
   (R, B_φ, P): the raw per-replica phase sums (columns as in :mod:`avalanche.kernels`).
+* Magnetic-field points only, ``magnetic/``: attributes ``magnetic_field_T``, ``reduced_magnetic_field_Hx``,
+  ``field_angle_deg``, ``axes`` ("E, ExB, third", the frame of :mod:`avalanche.engine.magnetic`);
+  ``drift_velocity_vector`` and ``drift_velocity_bulk_vector`` (3, 2) [m/s], ``drift_velocity_magnitude`` and
+  ``lorentz_angle_deg`` (2,) [m/s, deg], ``diffusion_tensor_N_flux`` and ``diffusion_tensor_N_bulk`` (3, 3, 2)
+  [1/(m s)]: the last axis is (value, stderr); each with ``units``. Their raw sums are in ``tallies/`` (the
+  ``MAGNETIC_FIELDS`` of :mod:`avalanche.engine.tallies`). A point without ``magnetic/`` had no magnetic field.
 """
 
 from __future__ import annotations
@@ -31,8 +37,16 @@ import h5py
 import numpy as np
 
 from .._version import __version__
-from ..engine.results import ESTIMATES, EnergyDistribution, Estimate, PhaseResolved, SwarmResult
-from ..engine.tallies import FIELDS, SwarmTallies
+from ..engine.results import (
+    ESTIMATES,
+    MAGNETIC_UNITS,
+    ArrayEstimate,
+    EnergyDistribution,
+    Estimate,
+    PhaseResolved,
+    SwarmResult,
+)
+from ..engine.tallies import FIELDS, MAGNETIC_FIELDS, SwarmTallies
 from ..errors import AvalancheError
 
 FILE_TYPE = "avalanche swarm point"
@@ -100,12 +114,37 @@ def write_result(group: h5py.Group, result: SwarmResult) -> None:
         series.create_dataset(name, data=np.asarray(values)).attrs["units"] = TIME_SERIES_UNITS.get(name, "")
     if result.tallies is not None:
         tallies = group.create_group("tallies")
-        for name, (_, _, units, description) in FIELDS.items():
+        for name, (_, _, units, description) in {**FIELDS, **MAGNETIC_FIELDS}.items():
+            if name not in result.tallies.arrays:
+                continue
             ds = tallies.create_dataset(name, data=result.tallies[name])
             ds.attrs["units"] = units
             ds.attrs["description"] = description
     if result.phase is not None:
         _write_phase(group.create_group("phase"), result)
+    if result.magnetic is not None:
+        _write_magnetic(group.create_group("magnetic"), result)
+
+
+def _write_magnetic(group: h5py.Group, result: SwarmResult) -> None:
+    field = result.inputs.get("magnetic_field", {})
+    for name in ("magnetic_field_T", "reduced_magnetic_field_Hx", "field_angle_deg"):
+        group.attrs[name] = float(field.get(name, np.nan))
+    group.attrs["axes"] = "E, ExB, third"
+    for name, units in MAGNETIC_UNITS.items():
+        e = result.magnetic[name]
+        ds = group.create_dataset(name, data=np.stack([np.asarray(e.value, float), np.asarray(e.stderr, float)], -1))
+        ds.attrs["units"] = units
+        ds.attrs["columns"] = "value, stderr (last axis)"
+
+
+def _read_magnetic(group: h5py.Group) -> dict:
+    out = {}
+    for name in MAGNETIC_UNITS:
+        data = group[name][()]
+        out[name] = Estimate(float(data[0]), float(data[1])) if data.ndim == 1 else ArrayEstimate(data[..., 0],
+                                                                                                  data[..., 1])
+    return out
 
 
 def _write_phase(group: h5py.Group, result: SwarmResult) -> None:
@@ -179,13 +218,16 @@ def read_result(group: h5py.Group) -> SwarmResult:
         time_series = {name: ds[()] for name, ds in group["time_series"].items()}
         tallies = None
         if "tallies" in group:
-            tallies = SwarmTallies({name: group["tallies"][name][()] for name in FIELDS})
+            tallies = SwarmTallies({name: group["tallies"][name][()] for name in FIELDS}
+                                   | {name: group["tallies"][name][()] for name in MAGNETIC_FIELDS
+                                      if name in group["tallies"]})
         inputs = json.loads(attrs["inputs_json"])
         anomalies = json.loads(attrs["anomalies_json"])
         scalars = {name: attrs[name] for name in _SCALARS}
         stop_reason = str(attrs["stop_reason"])
         reduced_field_Td = float(attrs["reduced_field_Td"])
         phase = _read_phase(group["phase"]) if "phase" in group else {}
+        magnetic = _read_magnetic(group["magnetic"]) if "magnetic" in group else None
     except KeyError as exc:
         raise AvalancheError(f"{where}: incomplete swarm point, missing {exc}; the file is damaged or was not "
                              "written by avalanche.store.point.write_result") from None
@@ -197,7 +239,7 @@ def read_result(group: h5py.Group) -> SwarmResult:
                        relaxation_time_s=float(scalars["relaxation_time_s"]),
                        sampled_time_s=float(scalars["sampled_time_s"]),
                        extrapolated_fraction=float(scalars["extrapolated_fraction"]), anomalies=anomalies,
-                       inputs=inputs, time_series=time_series, tallies=tallies, **phase)
+                       inputs=inputs, time_series=time_series, tallies=tallies, magnetic=magnetic, **phase)
 
 
 def save_result(path: str | Path, result: SwarmResult) -> Path:

@@ -15,6 +15,9 @@ Layout (format version 1)::
         reduced_field_Td   (n,) float64, units "Td"
         frequency_Hz       (n,) float64, units "Hz"
         seed               (n,) int64, the point's seed
+        magnetic_field_T, reduced_magnetic_field_Hx, field_angle_deg
+                           (n,) float64, units "T", "Hx", "deg": only in sweeps with a magnetic grid (a file
+                           without them had B = 0 at every point; readers then report 0, 0, 90)
     /table/value/<q>       (n,) float64, headline quantity q per point (NaN where not finished); attrs quantity
                            (the exact name), units
     /table/stderr/<q>      (n,) float64, its standard error; same attrs
@@ -203,11 +206,27 @@ class ResultsWriter:
             .attrs["units"] = "Td"
         grid.create_dataset("frequency_Hz", data=np.array([p.frequency_Hz for p in points])).attrs["units"] = "Hz"
         grid.create_dataset("seed", data=np.array([p.seed for p in points], dtype=np.int64))
+        if getattr(rf, "magnetic", False):
+            self._write_magnetic_grid(grid, rf, points)
         table = f.create_group("table")
         table.create_group("value")
         table.create_group("stderr")
         f.create_group("points")
         f.flush()
+
+    @staticmethod
+    def _write_magnetic_grid(grid, rf, points) -> None:
+        """The magnetic grid columns: B in T and in Hx (converted with each mixture's density) and the angle."""
+        from ..constants import HUXLEY_T_m3
+
+        density = [rf.build_mixture(i).number_density_m3 for i in range(len(rf.mixtures))]
+        given = np.array([p.magnetic_field for p in points])
+        per_point = np.array([density[p.mixture_index] for p in points]) * HUXLEY_T_m3
+        tesla, hx = (given, given / per_point) if rf.magnetic_unit == "T" else (given * per_point, given)
+        grid.create_dataset("magnetic_field_T", data=tesla).attrs["units"] = "T"
+        grid.create_dataset("reduced_magnetic_field_Hx", data=hx).attrs["units"] = "Hx"
+        grid.create_dataset("field_angle_deg", data=np.array([p.field_angle_deg for p in points])).attrs["units"] = \
+            "deg"
 
     def _check_resumable(self) -> None:
         f, rf, path = self.file, self.runfile, self.path
@@ -322,7 +341,8 @@ class SweepResults:
         Mixture labels; ``grid["mixture_index"]`` indexes them.
     grid : numpy.ndarray
         Structured array, one row per point: ``index``, ``mixture_index``, ``mixture``, ``reduced_field_Td``
-        [Td], ``frequency_Hz`` [Hz], ``seed``, ``status`` ("ok", "failed" or "missing").
+        [Td], ``frequency_Hz`` [Hz], ``seed``, ``status`` ("ok", "failed" or "missing"), ``magnetic_field_T`` [T],
+        ``reduced_magnetic_field_Hx`` [Hx], ``field_angle_deg`` [deg] (0, 0, 90 for a sweep without a magnetic field).
     units : dict
         Quantity → units of every tabulated quantity, in table order.
     failures : list of dict
@@ -449,7 +469,8 @@ def open_results(path: str | Path, *, payload_io: PayloadIO | None = None) -> Sw
         width = max((len(m) for m in mixtures), default=1)
         grid = np.zeros(n, dtype=[("index", np.int64), ("mixture_index", np.int64), ("mixture", f"U{width}"),
                                   ("reduced_field_Td", np.float64), ("frequency_Hz", np.float64),
-                                  ("seed", np.int64), ("status", "U7")])
+                                  ("seed", np.int64), ("status", "U7"), ("magnetic_field_T", np.float64),
+                                  ("reduced_magnetic_field_Hx", np.float64), ("field_angle_deg", np.float64)])
         grid["index"] = np.arange(n)
         grid["mixture_index"] = mixture_index
         grid["mixture"] = [mixtures[i] for i in mixture_index]
@@ -457,6 +478,8 @@ def open_results(path: str | Path, *, payload_io: PayloadIO | None = None) -> Sw
         grid["frequency_Hz"] = g["frequency_Hz"][()]
         grid["seed"] = g["seed"][()]
         grid["status"] = status.astype(str)
+        for name, default in (("magnetic_field_T", 0.0), ("reduced_magnetic_field_Hx", 0.0), ("field_angle_deg", 90.0)):
+            grid[name] = g[name][()] if name in g else default
         columns = {}
         for column in f["table"]["value"].values():
             quantity = _text(column.attrs["quantity"])

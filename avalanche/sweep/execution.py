@@ -64,7 +64,8 @@ def point_task(runfile: RunFile, point, threads: int | None = 1) -> dict:
             "temperature_K": runfile.temperature_K, "pressure_Pa": runfile.pressure_Pa,
             "number_density_m3": runfile.number_density_m3, "reduced_field_Td": point.reduced_field_Td,
             "frequency_Hz": point.frequency_Hz, "mode": runfile.mode, "seed": point.seed,
-            "engine": dict(runfile.engine), "checksums": species, "threads": threads}
+            "engine": dict(runfile.engine), "checksums": species, "threads": threads,
+            "magnetic": point.magnetic_options(runfile.magnetic_unit)}
 
 
 def compute_point(task: dict) -> dict:
@@ -101,6 +102,7 @@ def compute_point(task: dict) -> dict:
     options = dict(task["engine"])
     if task["frequency_Hz"]:
         options["frequency_Hz"] = task["frequency_Hz"]
+    options.update(task.get("magnetic") or {})
     if task["mode"] == "steady-state-townsend":
         from ..engine.townsend import townsend as run
     elif task["mode"] != DEFAULT_MODE:
@@ -449,6 +451,8 @@ def _progress_text(runfile: RunFile, point, result) -> str:
         parts.append(runfile.mixtures[point.mixture_index].label)
     if len(runfile.frequencies_Hz) > 1 or runfile.frequencies_Hz[0]:
         parts.append(f"{point.frequency_Hz:.4g} Hz")
+    if runfile.magnetic:
+        parts.append(f"B {point.magnetic_field:.4g} {runfile.magnetic_unit} at {point.field_angle_deg:g} deg")
     parts.append(f"E/N {point.reduced_field_Td:.4g} Td")
     values = headline_values(result)
     for name, short in (("mean_energy_eV", "<eps>"), ("drift_velocity_bulk", "W"), ("alpha_N", "alpha/N"),
@@ -461,8 +465,10 @@ def _progress_text(runfile: RunFile, point, result) -> str:
 
 def _log_failure(log_path: Path, runfile: RunFile, point, outcome: Outcome) -> str:
     mixture = runfile.mixtures[point.mixture_index].label
+    magnetic = (f"magnetic field {point.magnetic_field:g} {runfile.magnetic_unit} at {point.field_angle_deg:g} deg, "
+                if runfile.magnetic else "")
     line = (f"point {point.index} (mixture {mixture}, E/N {point.reduced_field_Td:g} Td, frequency "
-            f"{point.frequency_Hz:g} Hz, seed {point.seed}) failed after {outcome.attempts} attempt"
+            f"{point.frequency_Hz:g} Hz, {magnetic}seed {point.seed}) failed after {outcome.attempts} attempt"
             f"{'s' if outcome.attempts != 1 else ''}: {outcome.reason}")
     stamp = _dt.datetime.now(_dt.UTC).isoformat(timespec="seconds")
     with open(log_path, "a") as log:

@@ -46,7 +46,7 @@ _SECTIONS = {
     "sweep": {"name", "description", "mode", "seed", "output"},
     "gas": {"mixture", "mixtures", "balance", "fractions", "temperature_K", "pressure_Pa", "number_density_m3",
             "parameters", "penning"},
-    "grid": {"reduced_field_Td", "frequencies_Hz"},
+    "grid": {"reduced_field_Td", "frequencies_Hz", "magnetic_field_T", "reduced_magnetic_field_Hx", "field_angle_deg"},
     "engine": None,  # keywords of avalanche.engine.time_of_flight.swarm, checked in _engine_options
     "cluster": {"kind", "jobs", "cores", "processes", "memory", "walltime", "queue", "account", "options"},
 }
@@ -59,7 +59,10 @@ _ENGINE_CHOICES = {"sharing": ("equal", "uniform", "opb"), "scattering": ("isotr
 _ENGINE_POSITIVE_INTEGERS = ("max_events", "electrons")
 ENGINE_CONTRACT_OPTIONS = ("precision", "electrons", "max_events", "sharing", "scattering")
 """The documented keywords of :func:`avalanche.engine.time_of_flight.swarm` (its public contract)."""
-_ENGINE_RESERVED = {"mixture", "reduced_field_Td", "seed", "frequency_Hz", "mode"}
+_ENGINE_RESERVED = {"mixture", "reduced_field_Td", "seed", "frequency_Hz", "mode", "magnetic_field_T",
+                    "reduced_magnetic_field_Hx", "field_angle_deg"}
+MAGNETIC_UNITS = {"T": "magnetic_field_T", "Hx": "reduced_magnetic_field_Hx"}
+"""Unit of a run file's magnetic grid → the keyword of :func:`avalanche.swarm` (and the [grid] key)."""
 
 
 # ------------------------------------------------------------------------------------------------ engine features
@@ -135,6 +138,10 @@ class Point:
         Drive frequency [Hz]; 0 for a DC field.
     seed : int
         The point's seed, from the master seed and the coordinates (see :func:`point_seed`).
+    magnetic_field : float
+        Magnetic field in the run file's unit (:attr:`RunFile.magnetic_unit`: T, or Hx for B/N); 0 for none.
+    field_angle_deg : float
+        Angle between E and B [deg].
     """
 
     index: int
@@ -142,6 +149,14 @@ class Point:
     reduced_field_Td: float
     frequency_Hz: float
     seed: int
+    magnetic_field: float = 0.0
+    field_angle_deg: float = 90.0
+
+    def magnetic_options(self, unit: str) -> dict:
+        """The magnetic keywords of :func:`avalanche.swarm` for this point ({} without a field)."""
+        if not self.magnetic_field:
+            return {}
+        return {MAGNETIC_UNITS[unit]: self.magnetic_field, "field_angle_deg": self.field_angle_deg}
 
 
 @dataclass(frozen=True)
@@ -163,15 +178,28 @@ class RunFile:
     frequencies_Hz: tuple[float, ...]
     engine: dict
     cluster: dict | None
+    magnetic_field: tuple[float, ...] = (0.0,)
+    magnetic_unit: str = "T"
+    field_angle_deg: tuple[float, ...] = (90.0,)
+
+    @property
+    def magnetic(self) -> bool:
+        """Whether the grid has a magnetic field (a point with B > 0)."""
+        return any(b > 0 for b in self.magnetic_field)
 
     @cached_property
     def points(self) -> tuple[Point, ...]:
-        """Every grid point, mixtures outermost, then frequencies, then reduced fields."""
+        """Every grid point: mixtures outermost, then frequencies, magnetic fields, angles, reduced fields (a point
+        with B = 0 takes only the first angle: the angle has no meaning there)."""
         points = []
-        for (m, mix), f, e in itertools.product(enumerate(self.mixtures), self.frequencies_Hz,
-                                                self.reduced_field_Td):
+        for (m, mix), f, b, angle, e in itertools.product(enumerate(self.mixtures), self.frequencies_Hz,
+                                                          self.magnetic_field, self.field_angle_deg,
+                                                          self.reduced_field_Td):
+            if b == 0 and angle != self.field_angle_deg[0]:
+                continue
             points.append(Point(index=len(points), mixture_index=m, reduced_field_Td=e, frequency_Hz=f,
-                                seed=point_seed(self.seed, mix.key, e, f)))
+                                seed=point_seed(self.seed, mix.key, e, f, (self.magnetic_unit, b, angle)),
+                                magnetic_field=b, field_angle_deg=angle))
         return tuple(points)
 
     def build_mixture(self, mixture_index: int) -> Mixture:
@@ -200,7 +228,8 @@ class RunFile:
             "pressure_Pa": self.pressure_Pa, "number_density_m3": self.number_density_m3,
             "reduced_field_Td": list(self.reduced_field_Td), "frequencies_Hz": list(self.frequencies_Hz),
             "engine": dict(sorted(self.engine.items())),
-        }
+        } | ({"magnetic": {"unit": self.magnetic_unit, "values": list(self.magnetic_field),
+                           "field_angle_deg": list(self.field_angle_deg)}} if self.magnetic else {})
 
     def config_json(self) -> str:
         """:meth:`config` as canonical JSON text."""
@@ -223,12 +252,15 @@ def _float_word(x: float) -> int:
     return struct.unpack("<Q", struct.pack("<d", float(x)))[0]
 
 
-def point_seed(master_seed: int, mixture_key: str, reduced_field_Td: float, frequency_Hz: float) -> int:
+def point_seed(master_seed: int, mixture_key: str, reduced_field_Td: float, frequency_Hz: float,
+               magnetic: tuple[str, float, float] = ("T", 0.0, 90.0)) -> int:
     """The seed of one grid point.
 
     A :class:`numpy.random.SeedSequence` with the master seed as entropy and the point's coordinates as spawn
     key: the first 64 bits of SHA-256 of the mixture's canonical text, and the IEEE-754 bit patterns of E/N and of
-    the frequency. The first 63 bits of its generated state are the seed (a non-negative int64).
+    the frequency; with a magnetic field B > 0 also its unit (1 for T, 2 for Hx) and the bit patterns of B and of
+    the angle (so a point without a field keeps the seed it had before magnetic grids existed). The first 63
+    bits of its generated state are the seed (a non-negative int64).
 
     Parameters
     ----------
@@ -238,11 +270,15 @@ def point_seed(master_seed: int, mixture_key: str, reduced_field_Td: float, freq
         :attr:`MixtureSpec.key`.
     reduced_field_Td, frequency_Hz : float
         The point's coordinates [Td], [Hz].
+    magnetic : (str, float, float)
+        Unit ("T" or "Hx"), magnetic field in that unit and angle to E [deg].
     """
     mixture_word = int.from_bytes(hashlib.sha256(mixture_key.encode()).digest()[:8], "little")
-    sequence = np.random.SeedSequence(entropy=int(master_seed),
-                                      spawn_key=(mixture_word, _float_word(reduced_field_Td),
-                                                 _float_word(frequency_Hz)))
+    key = (mixture_word, _float_word(reduced_field_Td), _float_word(frequency_Hz))
+    unit, field, angle = magnetic
+    if field:
+        key += (1 if unit == "T" else 2, _float_word(field), _float_word(angle))
+    sequence = np.random.SeedSequence(entropy=int(master_seed), spawn_key=key)
     return int(sequence.generate_state(1, dtype=np.uint64)[0] >> np.uint64(1))
 
 
@@ -328,13 +364,15 @@ def parse_runfile(text: str, source: str = "<run file>", base: str | Path | None
                           "steady-state Townsend mode follows electrons in a DC field only; remove frequencies_Hz "
                           f"(or use [0.0]), or use mode = \"{DEFAULT_MODE}\" for AC points")
 
+    magnetic_field, magnetic_unit, angles = _magnetic_grid(grid, check, features, mode)
     engine = _engine_options(sections["engine"], features, source, mode)
     cluster = _cluster(sections["cluster"], check) if "cluster" in data else None
 
     runfile = RunFile(text=text, source=source, name=name, description=description, mode=mode, seed=seed,
                       output=output, mixtures=mixtures, temperature_K=temperature_K, pressure_Pa=pressure_Pa,
                       number_density_m3=number_density_m3, reduced_field_Td=fields, frequencies_Hz=frequencies,
-                      engine=engine, cluster=cluster)
+                      engine=engine, cluster=cluster, magnetic_field=magnetic_field, magnetic_unit=magnetic_unit,
+                      field_angle_deg=angles)
     for i, mix in enumerate(mixtures):  # loads every cross-section set: unknown gases and bad states fail here
         try:
             runfile.build_mixture(i)
@@ -342,6 +380,33 @@ def parse_runfile(text: str, source: str = "<run file>", base: str | Path | None
             raise ConfigError(f"{source}: [gas] mixture {mix.label}: {exc}") from None
     runfile.mixture_checksums  # noqa: B018 - computed once, before any work is handed out
     return runfile
+
+
+def _magnetic_grid(grid: dict, check: _Checker, features: dict, mode: str):
+    """The [grid] magnetic field (``magnetic_field_T`` or ``reduced_magnetic_field_Hx``, values >= 0) and
+    ``field_angle_deg`` (0 … 180): (values, unit, angles); ((0.0,), "T", (90.0,)) when absent."""
+    given = [key for key in MAGNETIC_UNITS.values() if key in grid]
+    if len(given) > 1:
+        raise ConfigError(f"{check.source}: [grid] give either magnetic_field_T (tesla) or reduced_magnetic_field_Hx "
+                          "(B/N in Hx), not both")
+    if not given:
+        if "field_angle_deg" in grid:
+            raise ConfigError(f"{check.source}: [grid] field_angle_deg needs a magnetic field: add magnetic_field_T "
+                              "= [...] or reduced_magnetic_field_Hx = [...]")
+        return (0.0,), "T", (90.0,)
+    key = given[0]
+    unit = "T" if key == "magnetic_field_T" else "Hx"
+    values = check.grid(grid, key, unit, positive=False)
+    angles = check.grid(grid, "field_angle_deg", "deg", positive=False) if "field_angle_deg" in grid else (90.0,)
+    if any(a > 180 for a in angles):
+        check.fail("[grid]", "field_angle_deg", list(angles), "angles between E and B lie in 0 ... 180 deg")
+    if any(values) and "magnetic_field_T" not in features["parameters"]:
+        raise ConfigError(f"{check.source}: [grid] {key} needs magnetic fields, which this installation's engine "
+                          "does not provide (avalanche.swarm takes no magnetic_field_T)")
+    if any(values) and mode != DEFAULT_MODE:
+        raise ConfigError(f"{check.source}: [grid] {key} with [sweep] mode = \"{mode}\": the steady-state Townsend "
+                          f"mode runs without a magnetic field; remove {key} or use mode = \"{DEFAULT_MODE}\"")
+    return values, unit, angles
 
 
 class _Checker:

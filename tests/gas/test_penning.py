@@ -184,7 +184,7 @@ def _one_level_chunk(probability: float, electrons: int = 2000):
                     extrapolated, table.penning_probability, table.penning_energy_eV, table.penning_slot,
                     0.0, *(np.zeros(0),) * 4, np.zeros((1, 0, K.N_PHASE_SUMS)),  # DC: no drive period, no phases
                     np.zeros((1, 0, K.N_PHASE_COUNTS), dtype=np.int64), np.zeros((1, 0, P), dtype=np.int64),
-                    COLD_GAS_GROUPS)
+                    COLD_GAS_GROUPS, np.zeros(3))  # cold gas, no magnetic field
     n = int(count[0])
     energy = K.ENERGY_PER_SPEED2_eV * (vx[0, :n] ** 2 + vy[0, :n] ** 2 + vz[0, :n] ** 2)
     cos_theta = vz[0, :n] / np.sqrt(vx[0, :n] ** 2 + vy[0, :n] ** 2 + vz[0, :n] ** 2)
