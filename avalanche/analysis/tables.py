@@ -313,8 +313,8 @@ class SwarmTable:
         frequency_Hz : float, optional
             Drive frequency [Hz] (0 for DC); needed when the sweep has several.
 
-        Only finished points enter; missing and failed ones are listed in :attr:`notes`. The points' full results
-        (EEDFs, phase-resolved data) are not read here; :attr:`point_index` locates them for
+        Only finished, converged points enter; missing, failed and not-converged ones are listed in :attr:`notes`.
+        The points' full results (EEDFs, phase-resolved data) are not read here; :attr:`point_index` locates them for
         :meth:`avalanche.store.sweep_file.SweepResults.point`.
 
         Raises
@@ -342,6 +342,12 @@ class SwarmTable:
         done = rows & (grid["status"] == STATUS_OK)
         notes = [f"{np.count_nonzero(rows & (grid['status'] == status))} point(s) {status}, left out"
                  for status in ("failed", "missing") if np.any(rows & (grid["status"] == status))]
+        if "converged" in (grid.dtype.names or ()):
+            unconverged = done & ~grid["converged"]
+            reasons = {p["index"]: "; ".join(p["notes"]) for p in getattr(results, "not_converged", [])}
+            notes += [f"point {i} (E/N {grid['reduced_field_Td'][i]:g} Td) not converged, left out: "
+                      f"{reasons.get(int(i), 'see the results file')}" for i in np.flatnonzero(unconverged)]
+            done &= grid["converged"]
         if not np.any(done):
             raise ConfigError(f"{source}: no finished point for mixture {results.mixtures[index]!r} at "
                               f"{frequency_Hz:g} Hz; finish the sweep first (avalanche sweep ... --resume)")

@@ -49,6 +49,7 @@ def _plot_configure(p) -> None:
                    help="E/N [Td] of the energy distributions to draw (nearest computed points; default: up to 4 "
                         "spread over the sweep; 'none' to skip)")
     p.add_argument("--format", default="png,pdf", help="figure formats, comma list of png, pdf, svg (png,pdf)")
+    p.add_argument("--force", action="store_true", help="overwrite figures that already exist in --out")
 
 
 def phase_curves(results, mixture_index: int, field_Td: float) -> list:
@@ -124,13 +125,16 @@ def _plot(args) -> int:
         read_reference,
         save_figure,
     )
+    from ..store.files import check_output_files, check_output_folder
 
     formats = figure_formats(args.format)
+    out, stem = check_output_folder(args.out), Path(args.results).stem
+    check_output_files((out / f"{stem}_{part}.{fmt}" for part in ("swarm", "eedf", "sst_profiles", "phase")
+                        for fmt in formats), force=args.force)
     results = open_file(args.results)
     table = load_table(results, args, "plot", default_lowest_frequency=True)
     reference = read_reference(args.reference) if args.reference else None
     handbook = None if args.handbook.lower() == "none" else args.handbook
-    out, stem = Path(args.out), Path(args.results).stem
     written = []
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always")
@@ -174,11 +178,16 @@ def _table_configure(p) -> None:
                    help="csv (names line, units line, comma-separated) or text (whitespace-separated, header as "
                         "# comments, for numpy.loadtxt); default from the --out suffix, else csv")
     p.add_argument("--quantity", default=None, metavar="LIST", help="comma list of quantities (default: all)")
+    p.add_argument("--force", action="store_true", help="overwrite the --out file if it exists")
 
 
 @command("table", "write a fluid-model table of coefficients with errors and units (CSV or text)",
          configure=_table_configure)
 def _table(args) -> int:
+    from ..store.files import check_output_file, write_atomically
+
+    if args.out is not None:
+        check_output_file(args.out, force=args.force)
     results = open_file(args.results)
     table = load_table(results, args, "table")
     fluid = fluid_table(table, against=args.against, quantities=split_list(args.quantity))
@@ -187,9 +196,7 @@ def _table(args) -> int:
     if args.out is None:
         sys.stdout.write(text)
         return 0
-    path = Path(args.out)
-    path.parent.mkdir(parents=True, exist_ok=True)
-    path.write_text(text, encoding="utf-8")
+    path = write_atomically(args.out, lambda temporary: temporary.write_text(text, encoding="utf-8"))
     print(f"wrote {path} ({fmt}, {table.reduced_field_Td.size} rows, {len(fluid.names)} columns, against "
           f"{fluid.coordinate})")
     return 0

@@ -65,7 +65,7 @@ from . import ac
 from .drive import Drive, make_drive
 from .ensemble import Ensemble
 from .estimators import EstimatorContext, energy_distribution, extrapolated_fraction, rate_coefficients, swarm_estimates
-from .results import ESTIMATE_UNITS, SwarmResult
+from .results import ESTIMATE_UNITS, SwarmResult, assess_convergence
 from .tables import (  # noqa: F401  (re-exported: the engine's tables are part of its interface)
     ACTIONS,
     EXTRAPOLATION_WARNING,
@@ -560,6 +560,9 @@ def _simulate(run: _Run, reduced_field_Td: float) -> SwarmResult:
     if drive is not None:
         ac.finish(result, drive, _phase_estimates(run, phase_tallies), phase_tallies, run.table.target_density_m3,
                   run.table.scatter == K.SCATTER_SCREENED_COULOMB, run.kT_eV)
+    sampled = series.array("sampling") > 0
+    energy = series.array("energy_sum")[sampled] / series.array("events")[sampled] if drive is None else None
+    result.converged, result.convergence_notes = assess_convergence(result, energy)
     return result
 
 

@@ -52,6 +52,14 @@ _SECTIONS = {
 }
 _RANGE_KEYS = {"start", "stop", "count", "spacing"}
 CLUSTER_KINDS = ("slurm", "pbs")
+CLUSTER_OPTIONS = frozenset({"job_name", "interface", "local_directory", "log_directory", "death_timeout", "job_cpu",
+                             "job_mem", "nanny", "scheduler_options"})
+"""Extra dask-jobqueue arguments a run file's ``[cluster.options]`` may set (none of them adds job-script lines)."""
+JOB_SCRIPT_OPTIONS = frozenset({"job_script_prologue", "job_extra_directives", "job_extra", "env_extra",
+                                "job_directives_skip", "shebang", "python", "worker_extra_args", "extra",
+                                "worker_command", "header_skip"})
+"""dask-jobqueue arguments that add or change lines of the job script: refused in run files; the command line
+gives directives and prologue lines with ``--job-directive`` and ``--job-prologue``."""
 
 # Engine options checked here (type and range) before the run starts; any other keyword must be a parameter of
 # avalanche.engine.time_of_flight.swarm (checked against its signature).
@@ -261,10 +269,10 @@ def load_runfile(path: str | Path) -> RunFile:
     ConfigError
         With the file, the field, the value and the fix, for every kind of malformed input.
     """
+    from ..errors import read_user_text
+
     path = Path(path)
-    if not path.is_file():
-        raise ConfigError(f"run file '{path}' not found")
-    return parse_runfile(path.read_text(), source=str(path), base=path.parent)
+    return parse_runfile(read_user_text(path, "run file"), source=str(path), base=path.parent)
 
 
 def parse_runfile(text: str, source: str = "<run file>", base: str | Path | None = None) -> RunFile:
@@ -273,6 +281,7 @@ def parse_runfile(text: str, source: str = "<run file>", base: str | Path | None
         data = tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
         raise ConfigError(f"{source}: not valid TOML: {exc}") from None
+    folder_given = base is not None
     base = Path(base) if base is not None else Path.cwd()
     check = _Checker(source)
     check.keys(data, set(_SECTIONS), "the top level")
@@ -303,9 +312,8 @@ def parse_runfile(text: str, source: str = "<run file>", base: str | Path | None
     description = check.string(sweep, "[sweep]", "description", default="")
     stem = "sweep" if source.startswith("<") else Path(source).stem
     name = check.string(sweep, "[sweep]", "name", default=stem)
-    output = Path(check.string(sweep, "[sweep]", "output", default=f"{stem}.h5"))
-    if not output.name:
-        raise ConfigError(f"{source}: [sweep] output = \"{output}\" is not a file name")
+    output = _output_path(check.string(sweep, "[sweep]", "output", default=f"{stem}.h5"),
+                          base if folder_given else None, check)
 
     gas = sections["gas"]
     mixtures = _mixtures(gas, check, base)
@@ -427,10 +435,31 @@ class _Checker:
         if bad:
             self.fail(where, key, value, f"{'negative ' if bad[0] < 0 else ''}value {bad[0]:g} {unit}; values must "
                       f"be {'> 0' if positive else '>= 0'}")
-        duplicates = sorted({v for v in values if values.count(v) > 1})
-        if duplicates:
-            self.fail(where, key, value, f"{duplicates[0]:g} {unit} appears more than once")
-        return tuple(sorted(values))
+        ordered = sorted(values)  # one sort: duplicates are neighbours (linear in the grid size after it)
+        duplicate = next((a for a, b in zip(ordered, ordered[1:], strict=False) if a == b), None)
+        if duplicate is not None:
+            self.fail(where, key, f"[{len(values)} values]" if len(values) > 20 else value,
+                      f"{duplicate:g} {unit} appears more than once")
+        return tuple(ordered)
+
+
+def _output_path(text: str, base: Path | None, check: _Checker) -> Path:
+    """The ``[sweep] output`` file: a relative path resolves against the run file's folder (as species paths do)
+    and must stay inside it; a file elsewhere needs an absolute path, so a shared run file cannot write outside
+    its folder unnoticed."""
+    if not text.strip():
+        check.fail("[sweep]", "output", text, "is empty; give a file name such as \"sweep.h5\"")
+    given = Path(text)
+    if text.endswith(("/", "\\")) or given.name in ("", ".", ".."):
+        check.fail("[sweep]", "output", text, "names a folder; give a file name such as \"results/sweep.h5\"")
+    if given.is_absolute():
+        return given
+    folder = (base or Path.cwd()).resolve()
+    path = (folder / given).resolve()
+    if not path.is_relative_to(folder):
+        check.fail("[sweep]", "output", text, f"leaves the run file's folder '{folder}'; give an absolute path to "
+                   "write elsewhere")
+    return path if base is not None else given
 
 
 def _show(value) -> str:
@@ -624,8 +653,30 @@ def _cluster(table: dict, check: _Checker) -> dict:
     for key in ("queue", "account"):
         if key in table:
             out[key] = check.string(table, "[cluster]", key, default="")
+    for key in ("memory", "walltime", "queue", "account"):
+        if key in out:
+            _one_line(out[key], "[cluster]", key, check)
     options = table.get("options", {})
     if not isinstance(options, Mapping):
         check.fail("[cluster]", "options", options, "must be a table of extra dask-jobqueue arguments")
+    for key, value in options.items():
+        if key in JOB_SCRIPT_OPTIONS:
+            check.fail("[cluster.options]", key, value, "adds lines to the job script, which a run file may not do "
+                       "(a shared run file would control the job); give such lines on the command line with "
+                       "--job-directive or --job-prologue")
+        if key not in CLUSTER_OPTIONS:
+            check.fail("[cluster.options]", key, value, f"is not an allowed option{_did_you_mean(key, CLUSTER_OPTIONS)}"
+                       f"; allowed: {sorted(CLUSTER_OPTIONS)} (job-script lines go on the command line)")
+        for inner in (value.values() if key == "scheduler_options" and isinstance(value, Mapping) else [value]):
+            if isinstance(inner, bool) or not isinstance(inner, (str, int, float)):
+                check.fail("[cluster.options]", key, value, "must be a string or a number (scheduler_options: a "
+                           "table of them)")
+            if isinstance(inner, str):
+                _one_line(inner, "[cluster.options]", key, check)
     out["options"] = dict(options)
     return out
+
+
+def _one_line(value: str, where: str, key: str, check: _Checker) -> None:
+    if any(ord(c) < 32 or ord(c) == 127 for c in value):
+        check.fail(where, key, value, "must be one line of text (no line breaks or control characters)")
