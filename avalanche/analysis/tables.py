@@ -123,6 +123,9 @@ class SwarmTable:
         Index of each point in its results file (for reading full results later).
     notes : list of str
         Remarks for the reader (points left out, ...), printed by the command line.
+    not_converged : list of str
+        The points marked not converged ("E/N x Td: reason"); they are kept, and :func:`fluid_table` writes this
+        list into the table's header (``not_converged``).
 
     Raises
     ------
@@ -143,6 +146,7 @@ class SwarmTable:
     checksums: dict = field(default_factory=dict)
     point_index: np.ndarray | None = None
     notes: list[str] = field(default_factory=list)
+    not_converged: list[str] = field(default_factory=list)
 
     def __post_init__(self):
         owner = f"SwarmTable({self.source or self.gas_label or 'data'})"
@@ -313,8 +317,9 @@ class SwarmTable:
         frequency_Hz : float, optional
             Drive frequency [Hz] (0 for DC); needed when the sweep has several.
 
-        Only finished, converged points enter; missing, failed and not-converged ones are listed in :attr:`notes`.
-        The points' full results (EEDFs, phase-resolved data) are not read here; :attr:`point_index` locates them for
+        Only finished points enter; missing and failed ones are listed in :attr:`notes`; finished points marked
+        not converged are kept, listed in :attr:`notes` and :attr:`not_converged` with the reason. The points' full
+        results (EEDFs, phase-resolved data) are not read here; :attr:`point_index` locates them for
         :meth:`avalanche.store.sweep_file.SweepResults.point`.
 
         Raises
@@ -342,12 +347,13 @@ class SwarmTable:
         done = rows & (grid["status"] == STATUS_OK)
         notes = [f"{np.count_nonzero(rows & (grid['status'] == status))} point(s) {status}, left out"
                  for status in ("failed", "missing") if np.any(rows & (grid["status"] == status))]
+        unconverged = []
         if "converged" in (grid.dtype.names or ()):
-            unconverged = done & ~grid["converged"]
             reasons = {p["index"]: "; ".join(p["notes"]) for p in getattr(results, "not_converged", [])}
-            notes += [f"point {i} (E/N {grid['reduced_field_Td'][i]:g} Td) not converged, left out: "
-                      f"{reasons.get(int(i), 'see the results file')}" for i in np.flatnonzero(unconverged)]
-            done &= grid["converged"]
+            unconverged = [f"E/N {grid['reduced_field_Td'][i]:g} Td: {reasons.get(int(i), 'see the results file')}"
+                           for i in np.flatnonzero(done & ~grid["converged"])]
+            notes += [f"point at {text} (NOT CONVERGED, kept and marked in the table header)"
+                      for text in unconverged]
         if not np.any(done):
             raise ConfigError(f"{source}: no finished point for mixture {results.mixtures[index]!r} at "
                               f"{frequency_Hz:g} Hz; finish the sweep first (avalanche sweep ... --resume)")
@@ -363,7 +369,8 @@ class SwarmTable:
                    temperature_K=temperature, number_density_m3=density,
                    composition=dict(spec.get("composition", {})) or None, source=source,
                    units=dict(results.units), parameters=dict(spec.get("parameters", {})),
-                   checksums=dict(results.checksums), point_index=grid["index"][done], notes=notes)
+                   checksums=dict(results.checksums), point_index=grid["index"][done], notes=notes,
+                   not_converged=unconverged)
 
 
 def _choose_mixture(labels: Sequence[str], mixture, source: str) -> int:
@@ -549,6 +556,8 @@ def fluid_table(table: SwarmTable, against: str = "reduced-field", quantities: S
         metadata["number_density_m3"] = f"{table.number_density_m3:.6g}"
     if table.source:
         metadata["source"] = table.source
+    if table.not_converged:
+        metadata["not_converged"] = " | ".join(table.not_converged)
     return FluidTable(coordinate, {k: np.array(v, dtype=float) for k, v in columns.items()}, units, metadata)
 
 

@@ -59,7 +59,8 @@ def main(argv: Sequence[str] | None = None) -> int:
             warnings.showwarning = one_line
             return int(args._run(args) or 0)
     except AvalancheError as exc:
-        print(f"avalanche {args.command}: error: {exc}", file=sys.stderr)
+        message = str(exc).replace("\r", "\\r").replace("\n", "\\n")  # one line, whatever the input held
+        print(f"avalanche {args.command}: error: {message}", file=sys.stderr)
         return 1
     except BrokenPipeError:  # output piped into e.g. `head`
         sys.stderr.close()

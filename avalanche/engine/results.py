@@ -288,7 +288,13 @@ def assess_convergence(result: SwarmResult, sampled_energy: np.ndarray | None = 
     """
     notes = []
     if result.anomalies.get("not_relaxed"):
-        notes.append("the swarm did not pass the relaxation test within half of max_events; raise max_events")
+        notes.append("the swarm did not pass the relaxation test before sampling had to start (half of max_events "
+                     "or max_wall_seconds spent); raise max_events")
+    if result.phase_tallies is not None:
+        empty = int(np.count_nonzero(result.phase_tallies.counts.sum(axis=0)[:, 0] == 0))  # column 0: events
+        if empty:
+            notes.append(f"{empty} of {result.phase_tallies.counts.shape[1]} phase bins were never sampled (the "
+                         "budget ended inside a period); raise max_events or use the quasi-static method")
     if sampled_energy is not None and len(sampled_energy) >= 4:
         half = len(sampled_energy) // 2
         first, second = sampled_energy[:half].mean(axis=0), sampled_energy[half:].mean(axis=0)

@@ -328,10 +328,10 @@ def _parse_process(raw: dict, index: int, base: Path, where_file: str) -> Proces
     if not isinstance(raw, dict):
         raise CrossSectionError(f"{where}: each [[process]] must be a table")
     if "label" in raw:
-        where = f"{where_file}: process '{raw['label']}'"
+        where = f"{where_file}: process {str(raw['label'])!r}"
     for key in raw:
         if key not in _PROCESS_KEYS:
-            raise CrossSectionError(f"{where}: unknown field '{key}'{_did_you_mean(key, _PROCESS_KEYS)}")
+            raise CrossSectionError(f"{where}: unknown field {key!r}{_did_you_mean(key, _PROCESS_KEYS)}")
     kind = _require(raw, "kind", where, f"set kind to one of {list(KINDS)}")
     if kind not in KINDS:
         raise CrossSectionError(f"{where}: unknown kind '{kind}'{_did_you_mean(str(kind), KINDS)}; "
@@ -421,7 +421,7 @@ def parse_set(data: dict, where: str, base: Path | None = None) -> CrossSectionS
     base = Path(".") if base is None else base
     for key in data:
         if key not in _TOP_KEYS:
-            raise CrossSectionError(f"{where}: unknown top-level field '{key}'{_did_you_mean(key, _TOP_KEYS)}")
+            raise CrossSectionError(f"{where}: unknown top-level field {key!r}{_did_you_mean(key, _TOP_KEYS)}")
     version = data.get("format_version", FORMAT_VERSION)
     if version != FORMAT_VERSION:
         raise CrossSectionError(f"{where}: format_version = {version!r}; this avalanche reads version {FORMAT_VERSION}")
@@ -429,7 +429,7 @@ def parse_set(data: dict, where: str, base: Path | None = None) -> CrossSectionS
                      "species")
     for key in species:
         if key not in _SPECIES_KEYS:
-            raise CrossSectionError(f"{where}: [species] unknown field '{key}'{_did_you_mean(key, _SPECIES_KEYS)}")
+            raise CrossSectionError(f"{where}: [species] unknown field {key!r}{_did_you_mean(key, _SPECIES_KEYS)}")
     name = str(_require(species, "name", f"{where}: [species]", "give the species name"))
     mass = _as_float(_require(species, "mass_amu", f"{where}: [species]", "give the target mass in amu"),
                      f"{where}: [species]", "mass_amu")
@@ -442,7 +442,7 @@ def parse_set(data: dict, where: str, base: Path | None = None) -> CrossSectionS
     for key in provenance:
         if key not in _PROVENANCE_KEYS:
             hint = _did_you_mean(key, _PROVENANCE_KEYS)
-            raise CrossSectionError(f"{where}: [provenance] unknown field '{key}'{hint}")
+            raise CrossSectionError(f"{where}: [provenance] unknown field {key!r}{hint}")
     raw_processes = data.get("process", [])
     if not isinstance(raw_processes, list):
         raise CrossSectionError(f"{where}: 'process' must be an array of tables ([[process]])")

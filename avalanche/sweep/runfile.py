@@ -418,29 +418,31 @@ class _Checker:
             if count > 1 and start == stop:
                 self.fail(where, key, value, "start equals stop; give a single value as a list instead")
             values = np.geomspace(start, stop, count) if spacing == "log" else np.linspace(start, stop, count)
-            values = [float(v) for v in values]
         elif isinstance(value, list):
             if not value:
                 self.fail(where, key, value, f"the grid is empty; give at least one value in {unit}")
-            for item in value:
-                if isinstance(item, bool) or not isinstance(item, (int, float)) or not math.isfinite(item):
-                    self.fail(where, key, value, f"every entry must be a finite number in {unit}, got {item!r}")
-            values = [float(v) for v in value]
+            if not all(type(item) in (int, float) for item in value):  # bool is not int's type
+                item = next(item for item in value if type(item) not in (int, float))
+                self.fail(where, key, value, f"every entry must be a finite number in {unit}, got {item!r}")
+            values = np.array(value, dtype=float)
+            if not np.all(np.isfinite(values)):
+                item = values[~np.isfinite(values)][0]
+                self.fail(where, key, value, f"every entry must be a finite number in {unit}, got {item!r}")
         elif isinstance(value, (int, float)) and not isinstance(value, bool) and math.isfinite(value):
-            values = [float(value)]
+            values = np.array([float(value)])
         else:
             self.fail(where, key, value, f"must be a list of numbers in {unit} or a range table "
                       "{ start = ..., stop = ..., count = ..., spacing = \"log\" }")
-        bad = [v for v in values if v < 0 or (positive and v == 0)]
-        if bad:
+        # whole-array checks, and one sort after which duplicates are neighbours: linear in the grid size
+        bad = values[(values < 0) | ((values == 0) if positive else False)]
+        if bad.size:
             self.fail(where, key, value, f"{'negative ' if bad[0] < 0 else ''}value {bad[0]:g} {unit}; values must "
                       f"be {'> 0' if positive else '>= 0'}")
-        ordered = sorted(values)  # one sort: duplicates are neighbours (linear in the grid size after it)
-        duplicate = next((a for a, b in zip(ordered, ordered[1:], strict=False) if a == b), None)
-        if duplicate is not None:
-            self.fail(where, key, f"[{len(values)} values]" if len(values) > 20 else value,
-                      f"{duplicate:g} {unit} appears more than once")
-        return tuple(ordered)
+        ordered = np.sort(values)
+        duplicates = ordered[1:][ordered[1:] == ordered[:-1]]
+        if duplicates.size:
+            self.fail(where, key, value, f"{duplicates[0]:g} {unit} appears more than once")
+        return tuple(ordered.tolist())
 
 
 def _output_path(text: str, base: Path | None, check: _Checker) -> Path:
@@ -463,6 +465,8 @@ def _output_path(text: str, base: Path | None, check: _Checker) -> Path:
 
 
 def _show(value) -> str:
+    if isinstance(value, list) and len(value) > 20:
+        return f"[{_show(value[0])}, {_show(value[1])}, ... ({len(value)} values)]"
     return json.dumps(value) if isinstance(value, (str, list, dict, int, float)) else repr(value)
 
 

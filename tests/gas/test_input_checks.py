@@ -49,8 +49,8 @@ def test_silent_or_crashing_inputs_are_refused(write_set, set_text, old, new, fr
 
 
 def test_top_level_scalars_where_tables_belong(write_set, set_text):
-    text = set_text.replace('[species]\nname = "Testium"\nformula = "Ts"\nmass_amu = 40.0\nionization_energy_eV = 15.0\n',
-                            "")
+    header = '[species]\nname = "Testium"\nformula = "Ts"\nmass_amu = 40.0\nionization_energy_eV = 15.0\n'
+    text = set_text.replace(header, "")
     _fails(write_set('species = 5\n' + text), "'species' must be a table")
     _fails(write_set('species = "Ar"\n' + text), "'species' must be a table")
     body = set_text.replace('[provenance]\ndate = "2026-12-02"\nsources = ["invented test data for the loader"]\n', "")
