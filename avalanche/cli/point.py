@@ -96,6 +96,11 @@ def report_point(args, result) -> None:
         from ..store.point import save_result
 
         save_result(args.out, result, overwrite=args.force)
+    if not getattr(result, "converged", True):
+        import sys
+
+        print(f"avalanche {args.command}: warning: the result is not converged: "
+              f"{'; '.join(result.convergence_notes)}", file=sys.stderr)
     if args.json:
         print_json(result.to_dict())
     else:
@@ -112,6 +117,11 @@ def _swarm_configure(p) -> None:
                    help="AC: periodic waveform as a two-column CSV (phase fraction or time_s, value), peak = --en")
     p.add_argument("--phase-bins", type=int, default=None, help="AC: phase bins per period (32)")
     p.add_argument("--dc-offset", type=float, default=None, metavar="TD", help="AC: DC part E_dc/N [Td] (0)")
+    p.add_argument("--ac-method", default=None, choices=["auto", "exact", "quasi-static"],
+                   help="AC: 'auto' (default) computes quasi-static drives from DC points at the instantaneous field "
+                        "and tracks the others exactly")
+    p.add_argument("--max-wall-seconds", type=float, default=None, metavar="S",
+                   help="wall-clock limit of the run [s], always honoured (sampling starts and the run stops)")
     output_arguments(p)
 
 
@@ -122,7 +132,8 @@ def _swarm(args) -> int:
 
     check_point_arguments(args)
     options = point_options(args, frequency_Hz=args.frequency, waveform=args.waveform,
-                            phase_bins=args.phase_bins, dc_offset_Td=args.dc_offset)
+                            phase_bins=args.phase_bins, dc_offset_Td=args.dc_offset, ac_method=args.ac_method,
+                            max_wall_seconds=args.max_wall_seconds)
     mixture = mixture_from_args(args)
     result = run_quietly(lambda: swarm(mixture, args.en, seed=args.seed, precision=args.precision, **options),
                          "swarm")
