@@ -584,7 +584,9 @@ def read_table(path) -> FluidTable:
     path = Path(path)
     if not path.is_file():
         raise ConfigError(f"{path}: no such file; give the path of a table written by `avalanche table`")
-    lines = path.read_text(encoding="utf-8").splitlines()
+    from ..errors import read_user_text
+
+    lines = read_user_text(path, "table").splitlines()
     comments = [line[1:].strip() for line in lines if line.startswith("#")]
     body = [line for line in lines if line.strip() and not line.startswith("#")]
     metadata = _parse_header(comments, path)

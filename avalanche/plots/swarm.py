@@ -72,10 +72,12 @@ def read_reference(path) -> ReferenceData:
         unknown quantity (with a did-you-mean), a cell that is not a number.
     """
     path = Path(path)
-    if not path.is_file():
+    if not path.exists():
         raise ConfigError(f"reference file '{path}' not found; give a CSV with columns reduced_field_Td,<quantity>,..")
     label, header, rows = path.name, None, []
-    for number, line in enumerate(path.read_text(encoding="utf-8").splitlines(), start=1):
+    from ..errors import read_user_text
+
+    for number, line in enumerate(read_user_text(path, "reference file").splitlines(), start=1):
         text = line.strip()
         if not text:
             continue

@@ -139,7 +139,7 @@ def test_sweep_workers_zero_and_an_uncreatable_output_are_refused_before_computi
     blocker.write_text("x")
     code, _, err = run(capsys, "sweep", runfile, "--out", blocker / "r.h5", "--quiet")
     assert code == 1
-    one_line_error(err, "cannot create the folder")
+    one_line_error(err, "is a file, not a folder")
 
 
 def test_a_full_disk_stops_the_sweep_with_one_line_and_keeps_the_committed_points(tmp_path, capsys, monkeypatch):
@@ -167,3 +167,15 @@ def test_a_full_disk_stops_the_sweep_with_one_line_and_keeps_the_committed_point
     monkeypatch.setattr(point, "write_result", real)
     assert run(capsys, "sweep", runfile, "--out", out, "--workers", 1, "--quiet", "--resume")[0] == 0
     assert open_results(out).complete
+
+
+def test_reference_files_that_are_not_utf8_or_not_regular_give_one_line(outputs_results, tmp_path, capsys):
+    latin = tmp_path / "ref.csv"
+    latin.write_bytes("# source: caf\xe9\nreduced_field_Td,alpha_N\n100,1e-21\n".encode("latin-1"))
+    device = tmp_path / "zero.csv"
+    device.symlink_to("/dev/zero")
+    for path, fragment in ((latin, "is not UTF-8 text"), (device, "not a regular file")):
+        code, _, err = run(capsys, "plot", outputs_results, "--mixture", "Ar", "--out", tmp_path / "p",
+                           "--reference", path, "--format", "png")
+        assert code == 1
+        one_line_error(err, str(path), fragment)
