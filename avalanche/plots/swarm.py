@@ -91,15 +91,16 @@ def read_reference(path) -> ReferenceData:
             header = cells
             continue
         if len(cells) != len(header):
-            raise ConfigError(f"{path}, line {number}: {len(cells)} cells for {len(header)} columns {header}")
+            raise ConfigError(f"{path}, line {number}: {len(cells)} cells for the {len(header)} columns of the header")
         try:
             rows.append([float(cell) if cell else math.nan for cell in cells])
         except ValueError:
-            raise ConfigError(f"{path}, line {number}: a cell is not a number: {cells}") from None
+            raise ConfigError(f"{path}, line {number}: a cell is not a number; is this a reference CSV?") from None
     if header is None or not rows:
         raise ConfigError(f"reference file '{path}' has no header line and data rows; see avalanche plot --help")
     if header[0] != "reduced_field_Td":
-        raise ConfigError(f"{path}: the first column is {header[0]!r}; it must be 'reduced_field_Td' (E/N in Td)")
+        raise ConfigError(f"{path}: the first column of the header line must be 'reduced_field_Td' (E/N in Td); is "
+                          "this a reference CSV?")
     data = np.array(rows, dtype=float)
     quantities = {}
     for j, name in enumerate(header[1:], start=1):

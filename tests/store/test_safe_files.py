@@ -150,3 +150,26 @@ def test_a_full_disk_stops_with_one_message_and_the_committed_points_intact(tmp_
     results = open_results(path, payload_io=IO)
     assert list(results.grid["status"]) == ["ok", "missing", "missing"]
     assert results.point(0).mean_energy_eV.value == 1.0
+
+
+def test_the_lock_holds_across_processes_and_dies_with_its_holder(tmp_path):
+    import signal
+    import subprocess
+    import sys
+
+    path = tmp_path / "r.h5"
+    code = ("import sys, time\nfrom avalanche.store.files import FileLock\nlock = FileLock(sys.argv[1])\n"
+            "print('held', flush=True)\ntime.sleep(60)\n")
+    holder = subprocess.Popen([sys.executable, "-c", code, str(path)], stdout=subprocess.PIPE, text=True,
+                              env={**os.environ, "HDF5_USE_FILE_LOCKING": "FALSE"})
+    try:
+        assert holder.stdout.readline().strip() == "held"
+        with pytest.raises(AvalancheError, match=f"in use by another sweep .*:{holder.pid}"):
+            FileLock(path)
+    finally:
+        holder.send_signal(signal.SIGKILL)  # like kill -9: the lock file stays, the lock goes with the process
+        holder.wait()
+    assert (tmp_path / "r.h5.lock").exists()
+    lock = FileLock(path)
+    lock.release()
+    assert not (tmp_path / "r.h5.lock").exists()
