@@ -253,6 +253,12 @@ class SwarmResult:
                  f"  regime: {reg.get('verdict', '?')} (omega/nu_m = {reg.get('omega_over_nu_m', float('nan')):.3g}, "
                  f"omega/nu_energy = {reg.get('omega_over_nu_energy', float('nan')):.3g}, E_eff/N = "
                  f"{reg.get('effective_field_Td', float('nan')):.4g} Td)", f"  {reg.get('statement', '')}"]
+        if reg.get("method") == "quasi-static":
+            fields = ", ".join(f"{f:.4g}" for f in self.inputs.get("quasi_static_fields_Td", []))
+            lines.append(f"  method: quasi-static, the cycle from DC points at {fields} Td (midpoint rule over the "
+                         "phase bins)")
+        elif reg.get("method"):
+            lines.append(f"  method: {reg['method']} tracking of every period")
         pr = self.phase_resolved or {}
         columns = [(n, h) for n, h in (("reduced_field_Td", "E/N [Td]"), ("mean_energy_eV", "energy [eV]"),
                                        ("drift_velocity_flux", "W flux [m/s]"),

@@ -55,7 +55,9 @@ def test_a_quasi_static_maxwell_drive_matches_the_exact_dc_solution_in_every_pha
 
 
 @pytest.mark.parametrize("frequency_Hz", [50e3, 1.0])
-def test_kilohertz_and_hertz_drives_at_one_atmosphere_finish_with_a_stated_method(frequency_Hz):
+def test_kilohertz_and_hertz_drives_at_one_atmosphere_finish_with_a_stated_method(frequency_Hz, tmp_path):
+    from avalanche.store.point import load_result, save_result
+
     # Argon, 100 Td amplitude, 1 atm: ν_ε ~ 1e8–1e9 s⁻¹, so 50 kHz and 1 Hz are quasi-static (Raizer 1991); exact
     # tracking would need ~1e13 (1 Hz) collisions per period. A small budget is honoured.
     r = quiet("Ar", 100.0, frequency_Hz=frequency_Hz, seed=1, electrons=256, max_events=2_000_000, precision=0.05)
@@ -63,7 +65,10 @@ def test_kilohertz_and_hertz_drives_at_one_atmosphere_finish_with_a_stated_metho
     assert r.events <= 2_000_000 * 1.3  # each DC point may end one chunk past its share
     assert r.phase_resolved["mean_energy_eV"].value.shape == (32,)
     assert np.all(np.isfinite(r.phase_resolved["mean_energy_eV"].value))
-    assert "quasi-static" in r.format_table() or r.regime["method"] in r.to_dict()["regime"]["method"]
+    assert r.to_dict()["regime"]["method"] == "quasi-static" and "method: quasi-static" in r.format_table()
+    back = load_result(save_result(tmp_path / "quasi-static.h5", r))
+    assert back.regime["method"] == "quasi-static" and back.inputs["method"] == "quasi-static"
+    np.testing.assert_array_equal(back.phase_resolved["mean_energy_eV"].value, r.phase_resolved["mean_energy_eV"].value)
 
 
 def test_exact_tracking_honours_the_budget_and_the_wall_clock_inside_a_period():
