@@ -368,7 +368,7 @@ def figure_ac(state: dict, budget: Budget) -> list[Row]:
     _ac_available(swarm)
     log("engine: AC vs DC ...")
     ac, _ = run_engine(reid_mixture(), REID_FIELD_Td, budget.reid_events, frequency_Hz=AC_FREQUENCY_Hz,
-                       warmup=budget.warmup_events)
+                       ac_method="exact", warmup=budget.warmup_events)  # the kernel alone, without the regime probe
     dc_rate = state.get("reid_rate")
     if dc_rate is None:
         dc_rate = per_core_rate(run_engine(reid_mixture(), REID_FIELD_Td, budget.reid_events)[0])

@@ -83,8 +83,9 @@ def collision_frequency_bound(mixture, settings, energy_max_eV: float = 1000.0) 
 
 
 def quasi_static_swarm(mixture, drive: Drive, settings, run_dc: RunDC, kT_eV: float,
-                       force: bool = False) -> SwarmResult | None:
-    """The AC result of ``drive`` from DC points, or None when the drive is not quasi-static (then track it).
+                       force: bool = False) -> tuple[SwarmResult | None, int]:
+    """The AC result of ``drive`` from DC points, or None when the drive is not quasi-static (then track it), and
+    the trial events the probe spent (to be counted in the exact run's budget).
 
     Parameters
     ----------
@@ -103,19 +104,19 @@ def quasi_static_swarm(mixture, drive: Drive, settings, run_dc: RunDC, kT_eV: fl
     fields = drive.bin_field_Td()
     magnitude = np.abs(fields)
     if magnitude.min() < LOWEST_NODE_FRACTION * magnitude.max():
-        return None
+        return None, 0
     probe_events = 0
     if not force:
         if drive.omega >= ac.QUASI_STATIC_BELOW * collision_frequency_bound(mixture, settings):
-            return None  # ν_ε ≤ ν_m ≤ the largest total collision frequency: no probe needed
+            return None, 0  # ν_ε ≤ ν_m ≤ the largest total collision frequency: no probe needed
         probe = run_dc(drive.rms_field_Td(), _with_seed(
             settings, 1 << 20, max_events=max(1, int(PROBE_BUDGET_FRACTION * settings.max_events)),
             precision=max(settings.precision, PROBE_PRECISION), precision_on="drift_velocity_flux",
             max_wall_seconds=_left(settings, started, PROBE_BUDGET_FRACTION)))
         nu_energy = energy_relaxation_frequency(probe, kT_eV, mixture.number_density_m3)
-        if ac.classify(drive.omega / nu_energy if nu_energy > 0 else math.nan) != "quasi-static":
-            return None
         probe_events = probe.events
+        if ac.classify(drive.omega / nu_energy if nu_energy > 0 else math.nan) != "quasi-static":
+            return None, probe_events
     nodes, which = np.unique(np.round(magnitude, 12), return_inverse=True)
     budget = max(1, int((settings.max_events - probe_events) / nodes.size))
     points = []
@@ -123,7 +124,7 @@ def quasi_static_swarm(mixture, drive: Drive, settings, run_dc: RunDC, kT_eV: fl
         share = 1.0 / (nodes.size - j)
         points.append(run_dc(float(field), _with_seed(settings, j, max_events=budget,
                                                       max_wall_seconds=_left(settings, started, share))))
-    return _assemble(mixture, drive, settings, points, which.ravel(), np.sign(fields), kT_eV, probe_events)
+    return _assemble(mixture, drive, settings, points, which.ravel(), np.sign(fields), kT_eV, probe_events), 0
 
 
 def _combine(values: np.ndarray, errors: np.ndarray, weights: np.ndarray) -> Estimate:

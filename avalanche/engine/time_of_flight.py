@@ -50,7 +50,7 @@ from __future__ import annotations
 import math
 import time
 import warnings
-from dataclasses import asdict, dataclass
+from dataclasses import asdict, dataclass, replace
 
 import numba
 import numpy as np
@@ -440,15 +440,17 @@ def swarm(mixture: Mixture | str, reduced_field_Td: float, *, seed=0, precision:
     try:
         ensure_compiled()
         cpu0, wall0 = time.process_time(), time.perf_counter()
-        result = None
+        result, probe_events = None, 0
         if drive is not None and settings.ac_method != "exact":  # AC: DC points in the quasi-static regime
-            result = quasi_static_swarm(mixture, drive, settings,
-                                        lambda field, s: _simulate(_Run(mixture, field, s), field),
-                                        BOLTZMANN_J_K * mixture.temperature_K / EV_J,
-                                        force=settings.ac_method == "quasi-static")
+            result, probe_events = quasi_static_swarm(mixture, drive, settings,
+                                                      lambda field, s: _simulate(_Run(mixture, field, s), field),
+                                                      BOLTZMANN_J_K * mixture.temperature_K / EV_J,
+                                                      force=settings.ac_method == "quasi-static")
         if result is None:
-            run = _Run(mixture, reduced_field_Td, settings, drive)
+            budget = replace(settings, max_events=max(1, settings.max_events - probe_events))
+            run = _Run(mixture, reduced_field_Td, budget if probe_events else settings, drive)
             result = _simulate(run, reduced_field_Td)
+            result.events += probe_events
             if drive is not None:
                 result.inputs["method"] = result.regime["method"] = "exact"
         result.cpu_seconds = time.process_time() - cpu0
