@@ -127,6 +127,16 @@ def quasi_static_swarm(mixture, drive: Drive, settings, run_dc: RunDC, kT_eV: fl
     return _assemble(mixture, drive, settings, points, which.ravel(), np.sign(fields), kT_eV, probe_events), 0
 
 
+def exact_settings(settings, probe_events: int, started: float):
+    """The settings of the exact tracking after a probe: what is left of the event budget and of the wall-clock
+    limit (measured from ``started``, a ``time.perf_counter()`` value), so that both hold for the whole call."""
+    if not probe_events:
+        return settings
+    wall = settings.max_wall_seconds
+    return dataclasses.replace(settings, max_events=max(1, settings.max_events - probe_events),
+                               max_wall_seconds=None if wall is None else _left(settings, started, 1.0))
+
+
 def _combine(values: np.ndarray, errors: np.ndarray, weights: np.ndarray) -> Estimate:
     return Estimate(float(np.dot(weights, values)), float(math.sqrt(np.dot(weights ** 2, errors ** 2))))
 

@@ -50,7 +50,7 @@ from __future__ import annotations
 import math
 import time
 import warnings
-from dataclasses import asdict, dataclass, replace
+from dataclasses import asdict, dataclass
 
 import numba
 import numpy as np
@@ -65,7 +65,7 @@ from . import ac
 from .drive import Drive, make_drive
 from .ensemble import Ensemble
 from .estimators import EstimatorContext, energy_distribution, extrapolated_fraction, rate_coefficients, swarm_estimates
-from .quasistatic import quasi_static_swarm
+from .quasistatic import exact_settings, quasi_static_swarm
 from .results import ESTIMATE_UNITS, SwarmResult, assess_convergence
 from .tables import (  # noqa: F401  (re-exported: the engine's tables are part of its interface)
     ACTIONS,
@@ -447,8 +447,7 @@ def swarm(mixture: Mixture | str, reduced_field_Td: float, *, seed=0, precision:
                                                       BOLTZMANN_J_K * mixture.temperature_K / EV_J,
                                                       force=settings.ac_method == "quasi-static")
         if result is None:
-            budget = replace(settings, max_events=max(1, settings.max_events - probe_events))
-            run = _Run(mixture, reduced_field_Td, budget if probe_events else settings, drive)
+            run = _Run(mixture, reduced_field_Td, exact_settings(settings, probe_events, wall0), drive)
             result = _simulate(run, reduced_field_Td)
             result.events += probe_events
             if drive is not None:

@@ -478,10 +478,15 @@ def _log_failure(log_path: Path, runfile: RunFile, point, outcome: Outcome) -> s
             f"{point.frequency_Hz:g} Hz, seed {point.seed}) failed after {outcome.attempts} attempt"
             f"{'s' if outcome.attempts != 1 else ''}: {outcome.reason}")
     stamp = _dt.datetime.now(_dt.UTC).isoformat(timespec="seconds")
-    with open(log_path, "a") as log:
-        log.write(f"{stamp} {line}\n")
-        if outcome.detail:
-            log.write("".join(f"    {row}\n" for row in outcome.detail.rstrip().splitlines()))
+    try:
+        with open(log_path, "a") as log:
+            log.write(f"{stamp} {line}\n")
+            if outcome.detail:
+                log.write("".join(f"    {row}\n" for row in outcome.detail.rstrip().splitlines()))
+    except OSError as exc:
+        from ..store.files import disk_error
+
+        raise disk_error(exc, log_path, "logging a failed point (the results file holds the failure)") from None
     return line
 
 
