@@ -46,9 +46,10 @@ PROBE_BUDGET_FRACTION = 0.1
 """Share of ``max_events`` (and of the wall-clock limit) given to the DC probe that decides the regime."""
 PROBE_PRECISION = 0.05
 """Target relative error of the probe's drift velocity (ν_ε needs only its order of magnitude near the limit)."""
-LOWEST_NODE_FRACTION = 1e-3
-"""A phase bin whose |E|/N is below this fraction of the largest has no meaningful DC point; such drives (a field
-that rests at zero) are tracked exactly."""
+LOWEST_NODE_FRACTION = 1e-2
+"""Phase bins whose |E|/N is below this fraction of the largest (a pulse resting at zero) use the DC point at this
+fraction (a swarm near thermal energy; DC runs need E/N > 0); the result lists the floor in
+``inputs["quasi_static_floor_Td"]``."""
 SIGNED = ("drift_velocity_flux", "drift_velocity_bulk")
 """Estimates that follow the sign of the field."""
 
@@ -103,8 +104,8 @@ def quasi_static_swarm(mixture, drive: Drive, settings, run_dc: RunDC, kT_eV: fl
     started = time.perf_counter()
     fields = drive.bin_field_Td()
     magnitude = np.abs(fields)
-    if magnitude.min() < LOWEST_NODE_FRACTION * magnitude.max():
-        return None, 0
+    floor = LOWEST_NODE_FRACTION * magnitude.max()
+    magnitude = np.maximum(magnitude, floor)
     probe_events = 0
     if not force:
         if drive.omega >= ac.QUASI_STATIC_BELOW * collision_frequency_bound(mixture, settings):
@@ -124,7 +125,10 @@ def quasi_static_swarm(mixture, drive: Drive, settings, run_dc: RunDC, kT_eV: fl
         share = 1.0 / (nodes.size - j)
         points.append(run_dc(float(field), _with_seed(settings, j, max_events=budget,
                                                       max_wall_seconds=_left(settings, started, share))))
-    return _assemble(mixture, drive, settings, points, which.ravel(), np.sign(fields), kT_eV, probe_events), 0
+    result = _assemble(mixture, drive, settings, points, which.ravel(), np.sign(fields), kT_eV, probe_events)
+    if np.any(np.abs(fields) < floor):
+        result.inputs["quasi_static_floor_Td"] = float(floor)
+    return result, 0
 
 
 def exact_settings(settings, probe_events: int, started: float):
