@@ -94,3 +94,15 @@ def test_a_point_that_did_not_relax_is_marked_everywhere(tmp_path):
     assert back.converged is False and back.convergence_notes == r.convergence_notes
     good = quiet("Ar", 100.0, seed=1, electrons=256, max_events=2_000_000, precision=0.05)
     assert good.converged and good.convergence_notes == []
+
+
+def test_a_pulse_resting_at_zero_uses_the_floor_field_and_finishes():
+    # A trapezoid pulse that rests at zero for half the period, 50 kHz at 1 atm (quasi-static as above): the resting
+    # bins take the DC point at 1 % of the peak, and the result says which fields were computed.
+    pulse = np.array([[0.0, 0.0], [0.1, 1.0], [0.3, 1.0], [0.4, 0.0], [0.9, 0.0]])
+    r = quiet("Ar", 100.0, frequency_Hz=50e3, waveform=pulse, phase_bins=16, seed=1, electrons=256,
+              max_events=2_000_000, precision=0.05)
+    assert r.regime["method"] == "quasi-static" and r.inputs["quasi_static_floor_Td"] == pytest.approx(1.0)
+    fields = r.inputs["quasi_static_fields_Td"]
+    assert min(fields) == pytest.approx(1.0) and max(fields) <= 100
+    assert r.events <= 2_000_000 * 1.3
