@@ -124,6 +124,9 @@ class SwarmTable:
         Index of each point in its results file (for reading full results later).
     notes : list of str
         Remarks for the reader (points left out, ...), printed by the command line.
+    not_converged : list of str
+        The points marked not converged ("E/N x Td: reason"); they are kept, and :func:`fluid_table` writes this
+        list into the table's header (``not_converged``).
 
     Raises
     ------
@@ -144,6 +147,7 @@ class SwarmTable:
     checksums: dict = field(default_factory=dict)
     point_index: np.ndarray | None = None
     notes: list[str] = field(default_factory=list)
+    not_converged: list[str] = field(default_factory=list)
 
     def __post_init__(self):
         owner = f"SwarmTable({self.source or self.gas_label or 'data'})"
@@ -322,8 +326,9 @@ class SwarmTable:
 
         Notes
         -----
-        Only finished points enter; missing and failed ones are listed in :attr:`notes`. The points' full results
-        (EEDFs, phase-resolved data) are not read here; :attr:`point_index` locates them for
+        Only finished points enter; missing and failed ones are listed in :attr:`notes`; finished points marked
+        not converged are kept, listed in :attr:`notes` and :attr:`not_converged` with the reason. The points' full
+        results (EEDFs, phase-resolved data) are not read here; :attr:`point_index` locates them for
         :meth:`avalanche.store.sweep_file.SweepResults.point`.
 
         Raises
@@ -352,6 +357,13 @@ class SwarmTable:
         done = rows & (grid["status"] == STATUS_OK)
         notes = [f"{np.count_nonzero(rows & (grid['status'] == status))} point(s) {status}, left out"
                  for status in ("failed", "missing") if np.any(rows & (grid["status"] == status))]
+        unconverged = []
+        if "converged" in (grid.dtype.names or ()):
+            reasons = {p["index"]: "; ".join(p["notes"]) for p in getattr(results, "not_converged", [])}
+            unconverged = [f"E/N {grid['reduced_field_Td'][i]:g} Td: {reasons.get(int(i), 'see the results file')}"
+                           for i in np.flatnonzero(done & ~grid["converged"])]
+            notes += [f"point at {text} (NOT CONVERGED, kept and marked in the table header)"
+                      for text in unconverged]
         if not np.any(done):
             raise ConfigError(f"{source}: no finished point for mixture {results.mixtures[index]!r} at "
                               f"{frequency_Hz:g} Hz; finish the sweep first (avalanche sweep ... --resume)")
@@ -367,7 +379,8 @@ class SwarmTable:
                    temperature_K=temperature, number_density_m3=density,
                    composition=dict(spec.get("composition", {})) or None, source=source,
                    units=dict(results.units), parameters=dict(spec.get("parameters", {})),
-                   checksums=dict(results.checksums), point_index=grid["index"][done], notes=notes)
+                   checksums=dict(results.checksums), point_index=grid["index"][done], notes=notes,
+                   not_converged=unconverged)
 
 
 def _magnetic_rows(grid, rows, source: str, tesla, hx, angle) -> np.ndarray:
@@ -611,6 +624,8 @@ def fluid_table(table: SwarmTable, against: str = "reduced-field", quantities: S
         metadata["number_density_m3"] = f"{table.number_density_m3:.6g}"
     if table.source:
         metadata["source"] = table.source
+    if table.not_converged:
+        metadata["not_converged"] = " | ".join(table.not_converged)
     return FluidTable(coordinate, {k: np.array(v, dtype=float) for k, v in columns.items()}, units, metadata)
 
 
@@ -637,7 +652,9 @@ def read_table(path) -> FluidTable:
     path = Path(path)
     if not path.is_file():
         raise ConfigError(f"{path}: no such file; give the path of a table written by `avalanche table`")
-    lines = path.read_text(encoding="utf-8").splitlines()
+    from ..errors import read_user_text
+
+    lines = read_user_text(path, "table").splitlines()
     comments = [line[1:].strip() for line in lines if line.startswith("#")]
     body = [line for line in lines if line.strip() and not line.startswith("#")]
     metadata = _parse_header(comments, path)

@@ -31,7 +31,7 @@ def figure_formats(text: str) -> list[str]:
 
 
 def show_warnings(caught, command_name: str) -> list[str]:
-    messages = list(dict.fromkeys(str(w.message) for w in caught))
+    messages = list(dict.fromkeys(" ".join(str(w.message).split()) for w in caught))
     for message in messages:
         note(f"avalanche {command_name}: warning: {message}")
     return messages

@@ -102,9 +102,9 @@ def run_demo(out_dir: str | Path, run_command: Callable[[list[str]], int],
     print(table_summary(table))
 
     print(f"\n[2/5] plots with the handbook Townsend formula -> {out / 'demo_plots'}")
-    _step(run_command, ["plot", str(results), "--out", str(out / "demo_plots"), "--format", "png"])
+    _step(run_command, ["plot", str(results), "--out", str(out / "demo_plots"), "--format", "png", "--force"])
     print(f"\n[3/5] fluid-model rate table -> {out / 'demo_rates.csv'}")
-    _step(run_command, ["table", str(results), "--out", str(out / "demo_rates.csv")])
+    _step(run_command, ["table", str(results), "--out", str(out / "demo_rates.csv"), "--force"])
     print(f"\n[4/5] one RF point: {DEMO_AC_AMPLITUDE_Td:g} Td amplitude at {DEMO_AC_FREQUENCY_Hz / 1e6:g} MHz -> "
           f"{out / 'demo_ac.h5'}")
     ac_file = run_ac_point(out / "demo_ac.h5")

@@ -7,6 +7,7 @@ from __future__ import annotations
 
 import argparse
 import sys
+import warnings
 from collections.abc import Sequence
 
 from .. import __version__
@@ -50,10 +51,16 @@ def main(argv: Sequence[str] | None = None) -> int:
     if not getattr(args, "_run", None):
         parser.print_help()
         return 2
+    def one_line(message, category, filename, lineno, file=None, line=None):  # no source path, no code line
+        print(f"avalanche {args.command}: warning: {' '.join(str(message).split())}", file=sys.stderr)
+
     try:
-        return int(args._run(args) or 0)
+        with warnings.catch_warnings():
+            warnings.showwarning = one_line
+            return int(args._run(args) or 0)
     except AvalancheError as exc:
-        print(f"avalanche {args.command}: error: {exc}", file=sys.stderr)
+        message = str(exc).replace("\r", "\\r").replace("\n", "\\n")  # one line, whatever the input held
+        print(f"avalanche {args.command}: error: {message}", file=sys.stderr)
         return 1
     except BrokenPipeError:  # output piped into e.g. `head`
         sys.stderr.close()

@@ -54,6 +54,7 @@ def _plot_configure(p) -> None:
                    help="E/N amplitude [Td] of the AC phase panels (nearest computed point; default: the geometric "
                         "middle of the sweep's fields)")
     p.add_argument("--format", default="png,pdf", help="figure formats, comma list of png, pdf, svg (png,pdf)")
+    p.add_argument("--force", action="store_true", help="overwrite figures that already exist in --out")
 
 
 def phase_curves(results, mixture_index: int, field_Td: float) -> list:
@@ -130,13 +131,16 @@ def _plot(args) -> int:
         read_reference,
         save_figure,
     )
+    from ..store.files import check_output_files, check_output_folder
 
     formats = figure_formats(args.format)
+    out, stem = check_output_folder(args.out), Path(args.results).stem
+    check_output_files((out / f"{stem}_{part}.{fmt}" for part in ("swarm", "eedf", "sst_profiles", "phase")
+                        for fmt in formats), force=args.force)
     results = open_file(args.results)
     table = load_table(results, args, "plot", default_lowest_frequency=True)
     reference = read_reference(args.reference) if args.reference else None
     handbook = None if args.handbook.lower() == "none" else args.handbook
-    out, stem = Path(args.out), Path(args.results).stem
     written = []
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always")
@@ -191,11 +195,16 @@ def _table_configure(p) -> None:
     p.add_argument("--magnetic", action="store_true",
                    help="instead: the drift velocity components (E, ExB, third) and Lorentz angle against E/N for "
                         "every magnetic field of the sweep (CSV)")
+    p.add_argument("--force", action="store_true", help="overwrite the --out file if it exists")
 
 
 @command("table", "write a fluid-model table of coefficients with errors and units (CSV or text)",
          configure=_table_configure)
 def _table(args) -> int:
+    from ..store.files import check_output_file, write_atomically
+
+    if args.out is not None:
+        check_output_file(args.out, force=args.force)
     results = open_file(args.results)
     if args.magnetic:
         text = MagneticDriftTable.from_results(results, args.mixture, args.frequency, args.angle).to_csv()
@@ -216,9 +225,7 @@ def _table(args) -> int:
     if args.out is None:
         sys.stdout.write(text)
         return 0
-    path = Path(args.out)
-    path.parent.mkdir(parents=True, exist_ok=True)
-    path.write_text(text, encoding="utf-8")
+    path = write_atomically(args.out, lambda temporary: temporary.write_text(text, encoding="utf-8"))
     print(f"wrote {path} ({fmt}, {table.reduced_field_Td.size} rows, {len(fluid.names)} columns, against "
           f"{fluid.coordinate})")
     return 0

@@ -3,6 +3,8 @@ the gas and point arguments they share."""
 
 from __future__ import annotations
 
+import math
+
 from .common import magnetic_field_value, magnetic_selection
 from .registry import SAFETY_NOTE, command, print_json
 
@@ -42,9 +44,40 @@ def point_arguments(p, precision: float, electrons_help: str) -> None:
 
 
 def output_arguments(p) -> None:
-    """``--json`` and ``--out`` of a one-point command (see :func:`report_point`)."""
+    """``--json``, ``--out`` and ``--force`` of a one-point command (see :func:`report_point`)."""
     p.add_argument("--json", action="store_true", help="print the result as JSON (value and stderr per quantity)")
-    p.add_argument("--out", default=None, metavar="FILE.h5", help="also write the result to an HDF5 file")
+    p.add_argument("--out", default=None, metavar="FILE.h5", help="also write the result to an HDF5 file (an "
+                   "existing file is refused unless --force)")
+    p.add_argument("--force", action="store_true", help="overwrite the --out file if it exists")
+
+
+def check_point_arguments(args) -> None:
+    """Checks made before computing: the precision and budget bounds of run files, and the ``--out`` file (not a
+    folder, not an existing file without ``--force``, in a writable folder)."""
+    from ..errors import ConfigError
+
+    if not (math.isfinite(args.precision) and 0 < args.precision < 1):
+        raise ConfigError(f"--precision {args.precision:g}: give a relative standard error between 0 and 1, e.g. "
+                          "0.01 (as [engine] precision in run files)")
+    if args.max_events is not None and not (math.isfinite(args.max_events) and args.max_events >= 1):
+        raise ConfigError(f"--max-events {args.max_events:g}: give a positive number of events, e.g. 1e8")
+    if args.out:
+        from ..store.files import check_output_file
+
+        check_output_file(args.out, force=args.force)
+
+
+def run_quietly(compute, command_name: str):
+    """Call ``compute()`` and print each distinct warning it raises as one line on stderr (no source path)."""
+    import warnings
+
+    from .common import show_warnings
+
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always")
+        result = compute()
+    show_warnings(caught, command_name)
+    return result
 
 
 def point_options(args, **more) -> dict:
@@ -63,7 +96,12 @@ def report_point(args, result) -> None:
     if args.out:
         from ..store.point import save_result
 
-        save_result(args.out, result)
+        save_result(args.out, result, overwrite=args.force)
+    if not getattr(result, "converged", True):
+        import sys
+
+        print(f"avalanche {args.command}: warning: the result is not converged: "
+              f"{'; '.join(result.convergence_notes)}", file=sys.stderr)
     if args.json:
         print_json(result.to_dict())
     else:
@@ -84,6 +122,11 @@ def _swarm_configure(p) -> None:
                    help='magnetic field: tesla ("0.5" or "0.5T") or reduced B/N in Hx ("300Hx"); default none')
     p.add_argument("--angle", type=float, default=None, metavar="DEG",
                    help="angle between E and B [deg], 0 to 180 (90: crossed fields, the default)")
+    p.add_argument("--ac-method", default=None, choices=["auto", "exact", "quasi-static"],
+                   help="AC: 'auto' (default) computes quasi-static drives from DC points at the instantaneous field "
+                        "and tracks the others exactly")
+    p.add_argument("--max-wall-seconds", type=float, default=None, metavar="S",
+                   help="wall-clock limit of the run [s], always honoured (sampling starts and the run stops)")
     output_arguments(p)
 
 
@@ -92,10 +135,14 @@ def _swarm_configure(p) -> None:
 def _swarm(args) -> int:
     from ..engine.time_of_flight import swarm
 
+    check_point_arguments(args)
     options = point_options(args, frequency_Hz=args.frequency, waveform=args.waveform,
-                            phase_bins=args.phase_bins, dc_offset_Td=args.dc_offset)
-    result = swarm(mixture_from_args(args), args.en, seed=args.seed, precision=args.precision, **options,
-                   **magnetic_selection(args))
+                            phase_bins=args.phase_bins, dc_offset_Td=args.dc_offset, ac_method=args.ac_method,
+                            max_wall_seconds=args.max_wall_seconds)
+    mixture = mixture_from_args(args)
+    magnetic = magnetic_selection(args)
+    result = run_quietly(lambda: swarm(mixture, args.en, seed=args.seed, precision=args.precision, **options,
+                                       **magnetic), "swarm")
     report_point(args, result)
     return 0
 
@@ -116,9 +163,11 @@ def _townsend_configure(p) -> None:
 def _townsend(args) -> int:
     from ..engine.townsend import townsend
 
+    check_point_arguments(args)
     options = point_options(args, distance_m=args.distance, margin_m=args.margin)
-    result = townsend(mixture_from_args(args), args.en, seed=args.seed, precision=args.precision,
-                      compare=args.compare, **options)
+    mixture = mixture_from_args(args)
+    result = run_quietly(lambda: townsend(mixture, args.en, seed=args.seed, precision=args.precision,
+                                          compare=args.compare, **options), "townsend")
     report_point(args, result)
     if not args.json:
         print(SAFETY_NOTE)

@@ -10,6 +10,8 @@ from .registry import command
 SWEEP_HELP = "compute a run file's grid of points into a resumable HDF5 results file"
 EXIT_FAILED_POINTS = 3
 """Exit status of a sweep that finished but with failed points (they are retried by --resume)."""
+EXIT_NOT_CONVERGED = 4
+"""Exit status of a sweep whose points all finished but some are marked not converged (stored with the reason)."""
 
 
 def configure(parser: argparse.ArgumentParser) -> None:
@@ -27,19 +29,26 @@ def configure(parser: argparse.ArgumentParser) -> None:
     parser.add_argument("--resume", action="store_true",
                         help="continue an existing results file, computing only the points not finished yet")
     parser.add_argument("--quiet", action="store_true", help="no progress bar or summary (failures still shown)")
+    parser.add_argument("--job-directive", action="append", default=[], metavar="LINE",
+                        help="with --cluster: a batch-system directive line for the job script (repeatable); run "
+                             "files cannot add job-script lines")
+    parser.add_argument("--job-prologue", action="append", default=[], metavar="LINE",
+                        help="with --cluster: a shell line run in the job before the worker starts (repeatable)")
     parser.add_argument("--threads-per-worker", type=int, default=1, metavar="T",
                         help="numba threads per point (default 1; results do not depend on it)")
 
 
 @command("sweep", SWEEP_HELP, configure=configure)
 def run(args) -> int:
-    """Run ``avalanche sweep``; exit status 0 when every point finished, 3 when some failed."""
+    """Run ``avalanche sweep``; exit status 0 when every point finished and converged, 3 when some failed, 4 when
+    some are marked not converged."""
     from ..sweep.execution import run_sweep
 
     try:
         report = run_sweep(args.runfile, workers=args.workers, scheduler=args.scheduler, cluster=args.cluster,
                            out=args.out, resume=args.resume, quiet=args.quiet,
-                           threads_per_worker=args.threads_per_worker)
+                           threads_per_worker=args.threads_per_worker, job_directives=tuple(args.job_directive),
+                           job_prologue=tuple(args.job_prologue))
     except KeyboardInterrupt:
         print("avalanche sweep: interrupted; the finished points are saved, continue with --resume",
               file=sys.stderr)
@@ -50,6 +59,11 @@ def run(args) -> int:
         print(f"avalanche sweep: {len(report.failed)} point(s) failed (see {report.path.with_suffix('.failures.log')});"
               " run again with --resume to retry them", file=sys.stderr)
         return EXIT_FAILED_POINTS
+    if report.not_converged:
+        print(f"avalanche sweep: {len(report.not_converged)} point(s) not converged (points "
+              f"{[p['index'] for p in report.not_converged]}; reasons in the results file): raise max_events or "
+              "check the field range", file=sys.stderr)
+        return EXIT_NOT_CONVERGED
     return 0
 
 

@@ -164,7 +164,7 @@ def load_waveform(source, frequency_Hz: float | None = None) -> Waveform:
                     raise ValueError
                 rows.append((float(cells[0]), float(cells[1])))
             except ValueError:
-                raise ConfigError(f"waveform file '{path}', line {number}: '{stripped}' is not two numbers "
+                raise ConfigError(f"waveform file '{path}', line {number}: not two numbers "
                                   "'position, value'; write one node per line (header 'phase,value' or "
                                   "'time_s,value')") from None
         table = np.array(rows, dtype=float).reshape(-1, 2)

@@ -179,6 +179,12 @@ class SwarmResult:
     magnetic : dict or None
         Magnetic-field runs: the estimates of :data:`MAGNETIC_UNITS` by name (from the tallies); None without a
         field, where the properties below follow from the axial symmetry about E.
+    converged : bool
+        False when the point must not be trusted: the swarm did not relax before sampling, its energy still drifted
+        while sampled, or an estimate is NaN (see :func:`assess_convergence`); the reasons are in
+        :attr:`convergence_notes`. Shown on screen, in JSON, HDF5, sweep summaries and tables.
+    convergence_notes : list of str
+        Why the point is not converged (empty when it is).
     """
 
     reduced_field_Td: float
@@ -201,6 +207,8 @@ class SwarmResult:
     regime: dict | None = None
     phase_tallies: object | None = None
     magnetic: dict | None = None
+    converged: bool = True
+    convergence_notes: list = field(default_factory=list)
 
     def __getattr__(self, name: str):
         estimates = self.__dict__.get("estimates")
@@ -284,7 +292,8 @@ class SwarmResult:
         out.update({name: self.estimates[name].to_dict() for name, _, _ in ESTIMATES if name in self.estimates})
         out["rate_coefficients"] = {key: est.to_dict() for key, est in self.rate_coefficients.items()}
         out["eedf"] = self.eedf.to_dict()
-        out.update({"events": int(self.events), "cpu_seconds": float(self.cpu_seconds),
+        out.update({"converged": bool(self.converged), "convergence_notes": list(self.convergence_notes),
+                    "events": int(self.events), "cpu_seconds": float(self.cpu_seconds),
                     "wall_seconds": float(self.wall_seconds), "stop_reason": self.stop_reason,
                     "relaxation_time_s": float(self.relaxation_time_s), "sampled_time_s": float(self.sampled_time_s),
                     "extrapolated_fraction": float(self.extrapolated_fraction),
@@ -307,6 +316,8 @@ class SwarmResult:
         lines = [f"E/N = {self.reduced_field_Td:g} Td   gas: {composition or '?'}   "
                  f"T = {mixture.get('temperature_K', float('nan')):g} K   "
                  f"N = {mixture.get('number_density_m3', float('nan')):.4g} m^-3"]
+        if not self.converged:
+            lines.append(f"  NOT CONVERGED: {'; '.join(self.convergence_notes)}")
         width = max(len(d) for _, _, d in ESTIMATES)
         rows = [(desc, self.estimates[name], units) for name, units, desc in ESTIMATES if name in self.estimates]
         rows += [(f"k {key}", est, "m3/s") for key, est in self.rate_coefficients.items()]
@@ -350,6 +361,12 @@ class SwarmResult:
                  f"  regime: {reg.get('verdict', '?')} (omega/nu_m = {reg.get('omega_over_nu_m', float('nan')):.3g}, "
                  f"omega/nu_energy = {reg.get('omega_over_nu_energy', float('nan')):.3g}, E_eff/N = "
                  f"{reg.get('effective_field_Td', float('nan')):.4g} Td)", f"  {reg.get('statement', '')}"]
+        if reg.get("method") == "quasi-static":
+            fields = ", ".join(f"{f:.4g}" for f in self.inputs.get("quasi_static_fields_Td", []))
+            lines.append(f"  method: quasi-static, the cycle from DC points at {fields} Td (midpoint rule over the "
+                         "phase bins)")
+        elif reg.get("method"):
+            lines.append(f"  method: {reg['method']} tracking of every period")
         pr = self.phase_resolved or {}
         columns = [(n, h) for n, h in (("reduced_field_Td", "E/N [Td]"), ("mean_energy_eV", "energy [eV]"),
                                        ("drift_velocity_flux", "W flux [m/s]"),
@@ -365,6 +382,47 @@ class SwarmResult:
         return (f"SwarmResult(E/N={self.reduced_field_Td:g} Td, mean_energy_eV={self.mean_energy_eV}, "
                 f"drift_velocity_bulk={self.drift_velocity_bulk}, alpha_N={self.alpha_N}, "
                 f"stop_reason={self.stop_reason!r})")
+
+
+UNDEFINED_WITHOUT_IONIZATION = ("penning_fraction",)
+"""Estimates that are 0/0 (NaN) by definition when no ionization occurs; not a sign of a failed run."""
+DRIFT_SIGMAS = 4.0
+"""The mean energy of the first and second halves of the sampled chunks may differ by this many standard errors
+before a point counts as still relaxing (a false alarm rate below 1e-4 for normal errors)."""
+
+
+def assess_convergence(result: SwarmResult, sampled_energy: np.ndarray | None = None) -> tuple[bool, list[str]]:
+    """Whether ``result`` can be trusted, and why not.
+
+    A point is not converged when (i) its ``anomalies["not_relaxed"]`` is set (sampling was forced to start at
+    half the budget), (ii) ``sampled_energy`` — per-chunk mean energies of the sampled chunks, shape (C, R) — has
+    first and second halves whose replica means differ by more than :data:`DRIFT_SIGMAS` standard errors (the
+    swarm was still relaxing, e.g. a slow energy relaxation in a heavy gas at a low field), or (iii) an estimate
+    is NaN (except those in :data:`UNDEFINED_WITHOUT_IONIZATION` when nothing ionizes).
+    """
+    notes = []
+    if result.anomalies.get("not_relaxed"):
+        notes.append("the swarm did not pass the relaxation test before sampling had to start (half of max_events "
+                     "or max_wall_seconds spent); raise max_events")
+    if result.phase_tallies is not None:
+        empty = int(np.count_nonzero(result.phase_tallies.counts.sum(axis=0)[:, 0] == 0))  # column 0: events
+        if empty:
+            notes.append(f"{empty} of {result.phase_tallies.counts.shape[1]} phase bins were never sampled (the "
+                         "budget ended inside a period); raise max_events or use the quasi-static method")
+    if sampled_energy is not None and len(sampled_energy) >= 4:
+        half = len(sampled_energy) // 2
+        first, second = sampled_energy[:half].mean(axis=0), sampled_energy[half:].mean(axis=0)
+        diff = second - first
+        error = diff.std(ddof=1) / math.sqrt(diff.size) if diff.size > 1 else math.inf
+        if math.isfinite(error) and abs(diff.mean()) > DRIFT_SIGMAS * error + 1e-12 * abs(first.mean()):
+            notes.append(f"the mean energy still drifted while sampled ({first.mean():.4g} -> {second.mean():.4g} "
+                         "eV over the sampled time): the swarm had not relaxed; raise max_events")
+    nan = [name for name, e in result.estimates.items() if not math.isfinite(e.value)
+           and name not in UNDEFINED_WITHOUT_IONIZATION]
+    if nan:
+        notes.append(f"NaN estimates: {', '.join(nan)} (too few sampled events or no position-moment window "
+                     "finished; raise max_events)")
+    return not notes, notes
 
 
 def _json_float(value) -> float | None:

@@ -74,7 +74,8 @@ from .estimators import (
     swarm_estimates,
 )
 from .magnetic import NO_FIELD, MagneticField, make_magnetic
-from .results import ESTIMATE_UNITS, SwarmResult
+from .quasistatic import exact_settings, quasi_static_swarm
+from .results import ESTIMATE_UNITS, SwarmResult, assess_convergence
 from .tables import (  # noqa: F401  (re-exported: the engine's tables are part of its interface)
     ACTIONS,
     COLD_GAS_GROUPS,
@@ -120,6 +121,14 @@ class Settings:
     eedf_bins: int
     diffusion_skip: float
     diffusion_segment: float
+    max_wall_seconds: float | None = None
+    ac_method: str = "auto"
+
+
+AC_METHODS = ("auto", "exact", "quasi-static")
+"""``ac_method`` of :func:`swarm`: "auto" computes the cycle from DC points when the drive is quasi-static
+(:mod:`avalanche.engine.quasistatic`) and tracks it exactly otherwise; "exact" always tracks; "quasi-static" always
+uses DC points."""
 
 
 def _positive(name: str, value, integer: bool = False, allow_none: bool = False):
@@ -153,7 +162,8 @@ def _seed(value) -> int | tuple[int, ...]:
 def make_settings(*, seed=0, precision=0.01, electrons=16384, max_events=1_000_000_000, sharing="opb",
                   scattering="isotropic", replicas=16, precision_on="auto", energy_cells=8192, energy_max_eV=None,
                   energy_limit_eV=1e5, initial_energy_eV=1.0, events_per_chunk=48.0, population_bounds=(0.6, 1.5),
-                  eedf_bins=200, diffusion_skip=4.0, diffusion_segment=3.0) -> Settings:
+                  eedf_bins=200, diffusion_skip=4.0, diffusion_segment=3.0, max_wall_seconds=None,
+                  ac_method="auto") -> Settings:
     """Validate the keyword arguments of :func:`swarm`; raise :class:`ConfigError` naming the bad one."""
     replicas = _positive("replicas", replicas, integer=True)
     if replicas < 2:
@@ -186,7 +196,9 @@ def make_settings(*, seed=0, precision=0.01, electrons=16384, max_events=1_000_0
         population_bounds=(float(population_bounds[0]), float(population_bounds[1])),
         eedf_bins=_positive("eedf_bins", eedf_bins, integer=True),
         diffusion_skip=_positive("diffusion_skip", diffusion_skip),
-        diffusion_segment=_positive("diffusion_segment", diffusion_segment))
+        diffusion_segment=_positive("diffusion_segment", diffusion_segment),
+        max_wall_seconds=_positive("max_wall_seconds", max_wall_seconds, allow_none=True),
+        ac_method=_choice("ac_method", ac_method, AC_METHODS))
 
 
 # ------------------------------------------------------------------------------------------------ the run
@@ -413,7 +425,10 @@ def swarm(mixture: Mixture | str, reduced_field_Td: float, magnetic_field_T: flo
         initial Maxwellian: 1.0 in a cold gas; at T > 0 the elastic energy balance at E/N, at most 1.0, so that
         low-field points start near their steady state), events_per_chunk (48, trial events per electron per chunk),
         population_bounds ((0.6, 1.5)), eedf_bins (200), diffusion_skip (4 energy relaxation times),
-        diffusion_segment (3 × the skip).
+        diffusion_segment (3 × the skip), max_wall_seconds (None: a wall-clock limit [s], always honoured: sampling
+        starts and the run stops when it is spent, checked after every chunk), ac_method ("auto": in the
+        quasi-static regime the AC cycle is computed from DC points, :mod:`avalanche.engine.quasistatic`; "exact"
+        tracks every period; "quasi-static" always uses DC points).
 
     Returns
     -------
@@ -458,8 +473,17 @@ def swarm(mixture: Mixture | str, reduced_field_Td: float, magnetic_field_T: flo
     try:
         ensure_compiled()
         cpu0, wall0 = time.process_time(), time.perf_counter()
-        run = _Run(mixture, reduced_field_Td, settings, drive, magnetic)
-        result = _simulate(run, reduced_field_Td)
+        result, probe_events = None, 0
+        if drive is not None and settings.ac_method != "exact":  # AC: DC points in the quasi-static regime
+            result, probe_events = quasi_static_swarm(
+                mixture, drive, settings, lambda field, s: _simulate(_Run(mixture, field, s, None, magnetic), field),
+                BOLTZMANN_J_K * mixture.temperature_K / EV_J, force=settings.ac_method == "quasi-static")
+        if result is None:
+            run = _Run(mixture, reduced_field_Td, exact_settings(settings, probe_events, wall0), drive, magnetic)
+            result = _simulate(run, reduced_field_Td)
+            result.events += probe_events
+            if drive is not None:
+                result.inputs["method"] = result.regime["method"] = "exact"
         result.cpu_seconds = time.process_time() - cpu0
         result.wall_seconds = time.perf_counter() - wall0
     finally:
@@ -522,7 +546,8 @@ def _simulate(run: _Run, reduced_field_Td: float) -> SwarmResult:
     stop_reason = "max_events"
     ion_kinds = np.array([k in IONIZING_KINDS for k in run.table.kinds])
     precision_on = s.precision_on
-    drive = run.drive  # AC: chunks end on a grid holding every period boundary; tests and stops at boundaries only
+    drive = run.drive  # AC: chunks end on a grid holding every period boundary; the relaxation test runs there
+    started = time.perf_counter()
     phase_tallies = ac.PhaseTallies.zeros(s.replicas, drive.phase_bins, len(run.table.processes)) if drive else None
     slack = 1e-9 * drive.period_s if drive else 0.0
     while True:
@@ -557,13 +582,17 @@ def _simulate(run: _Run, reduced_field_Td: float) -> SwarmResult:
             tau = _energy_relaxation_time(run, energy, drift, frequency)
             enough = len(series) >= RELAXATION_MIN_CHUNKS and (
                 not math.isfinite(tau) or t >= RELAXATION_MIN_ENERGY_TIMES * tau)
-            forced = boundary and run.events >= 0.5 * s.max_events
+            # the budget and the wall-clock limit are checked after every chunk, also inside a period
+            over_time = _over_time(s, started)
+            forced = run.events >= 0.5 * s.max_events or over_time
             if (ok and enough) or forced:
                 if forced and not (ok and enough):
                     run.anomalies["not_relaxed"] = 1
+                    limit = (f"max_wall_seconds = {s.max_wall_seconds:g}" if over_time
+                             else f"half of max_events = {s.max_events:g}")
                     warnings.warn(f"E/N = {reduced_field_Td:g} Td: the swarm did not pass the relaxation test "
-                                  f"within half of max_events = {s.max_events:g}; sampling starts anyway (raise "
-                                  "max_events)", PhysicsWarning, stacklevel=3)
+                                  f"within {limit}; sampling starts anyway (raise max_events)", PhysicsWarning,
+                                  stacklevel=3)
                 sampling = True
                 relaxation_time = t
                 _shrink_grid(run, float(series.array("max_energy")[len(series) // 2:].max()), 1.5)
@@ -606,14 +635,24 @@ def _simulate(run: _Run, reduced_field_Td: float) -> SwarmResult:
             start_b = moments()
             mature_from = t + skip
             window_end = mature_from + segment
-        if run.events >= s.max_events and tallies["events"].sum() > 0 and boundary:
+        if tallies["events"].sum() > 0 and run.events >= s.max_events:
+            break
+        if tallies["events"].sum() > 0 and _over_time(s, started):
+            stop_reason = "max_wall_seconds"
             break
     run.windows = {"skip_s": skip, "segment_s": segment}
     result = _result(run, reduced_field_Td, tallies, series, relaxation_time, stop_reason, precision_on)
     if drive is not None:
         ac.finish(result, drive, _phase_estimates(run, phase_tallies), phase_tallies, run.table.target_density_m3,
                   run.table.scatter == K.SCATTER_SCREENED_COULOMB, run.kT_eV)
+    sampled = series.array("sampling") > 0
+    energy = series.array("energy_sum")[sampled] / series.array("events")[sampled] if drive is None else None
+    result.converged, result.convergence_notes = assess_convergence(result, energy)
     return result
+
+
+def _over_time(settings: Settings, started: float) -> bool:
+    return settings.max_wall_seconds is not None and time.perf_counter() - started > settings.max_wall_seconds
 
 
 def _phase_estimates(run: _Run, phase_tallies: ac.PhaseTallies) -> ac.PhaseEstimates:

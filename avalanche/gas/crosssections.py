@@ -40,9 +40,12 @@ DEFAULT_EXTRAPOLATION = {
 UNITS_m2 = {"m2": 1.0, "cm2": 1e-4, "A2": 1e-20}
 ENERGY_UNITS_eV = {"eV": 1.0, "meV": 1e-3, "keV": 1e3}
 SUSPICIOUS_m2 = 1e-17
-"""A cross section above 1e-17 m² (1000 Å²) declared in m² by default is almost surely a value in cm² (typical
-electron-atom cross sections are 1e-21–1e-18 m², i.e. 1e-17–1e-14 in cm²; common practice). A file that really
-means m² says ``units = "m2"`` explicitly."""
+"""A cross section above 1e-17 m² (1000 Å²) is almost surely a unit mistake, whatever unit the file declares
+(typical electron-atom cross sections are 1e-21–1e-18 m², i.e. 1e-17–1e-14 in cm²; common practice). A process
+whose values really are that large says ``allow_large_cross_section = true``."""
+IONIZATION_ENERGY_TOLERANCE_eV = 1e-3
+"""[species] ionization_energy_eV and the lowest ionization threshold may differ by at most this much [eV] (the
+shipped sets give both to the same digits)."""
 
 _SPECIES_KEYS = {"name", "formula", "mass_amu", "ionization_energy_eV", "description"}
 _PROVENANCE_KEYS = {"date", "sources", "notes"}
@@ -50,6 +53,7 @@ _TOP_KEYS = {"format_version", "species", "provenance", "process"}
 _PROCESS_KEYS = {
     "kind", "label", "threshold_eV", "energy_eV", "cross_section", "table", "units", "source", "scattering",
     "wavelength_nm", "group", "opb_w_eV", "extrapolation", "three_body", "reference_density_m3", "enabled",
+    "allow_large_cross_section",
 }
 
 
@@ -229,23 +233,30 @@ def _as_float(value, where: str, key: str) -> float:
 
 
 def _read_csv_table(path: Path, where: str) -> tuple[np.ndarray, np.ndarray]:
-    if not path.is_file():
+    """The two columns of a CSV table. Messages give the file and line, never the line's text: a path that is
+    not a cross-section table (e.g. a system file) must not have its content echoed."""
+    from ..errors import read_user_text
+
+    if not path.exists():
         raise CrossSectionError(f"{where}: table file '{path}' not found; give a path relative to the TOML file")
+    text_of_file = read_user_text(path, f"{where}: table file", CrossSectionError)
     rows = []
-    for lineno, line in enumerate(path.read_text().splitlines(), start=1):
+    for lineno, line in enumerate(text_of_file.splitlines(), start=1):
         text = line.split("#", 1)[0].strip()
         if not text:
             continue
         parts = text.replace(",", " ").split()
         if len(parts) != 2:
             raise CrossSectionError(
-                f"{path}:{lineno}: expected two columns (energy, cross section), got {len(parts)}: {line!r}")
+                f"{where}: table {path}:{lineno}: expected two columns (energy, cross section), got {len(parts)}; "
+                "is this a cross-section table?")
         try:
             rows.append((float(parts[0]), float(parts[1])))
         except ValueError:
-            raise CrossSectionError(f"{path}:{lineno}: not a number in {line!r}") from None
+            raise CrossSectionError(f"{where}: table {path}:{lineno}: a cell is not a number; is this a "
+                                    "cross-section table?") from None
     if not rows:
-        raise CrossSectionError(f"{path}: table has no data rows")
+        raise CrossSectionError(f"{where}: table {path} has no data rows")
     arr = np.array(rows, dtype=float)
     return arr[:, 0], arr[:, 1]
 
@@ -283,15 +294,44 @@ def validate_table(energy_eV: np.ndarray, sigma_m2: np.ndarray, kind: str, thres
                 f"{threshold_eV} eV; an inelastic cross section must be zero below its threshold")
 
 
+def _as_bool(raw: dict, key: str, where: str, default: bool) -> bool:
+    value = raw.get(key, default)
+    if not isinstance(value, bool):
+        raise CrossSectionError(f"{where}: field '{key}' = {value!r} must be a TOML boolean, true or false "
+                                "(without quotes)")
+    return value
+
+
+def _table(value, where: str, name: str) -> dict:
+    if not isinstance(value, dict):
+        raise CrossSectionError(f"{where}: '{name}' must be a table [{name}] with fields, got {value!r}")
+    return value
+
+
+def check_ionization_energy(ionization_energy_eV: float | None, processes: Sequence[Process], where: str) -> None:
+    """The species' ionization energy: positive, and equal (within :data:`IONIZATION_ENERGY_TOLERANCE_eV`) to the
+    lowest threshold of its ionization processes, since Penning transfer and energy sharing use it."""
+    if ionization_energy_eV is None:
+        return
+    if ionization_energy_eV <= 0:
+        raise CrossSectionError(f"{where}: [species] ionization_energy_eV = {ionization_energy_eV} must be positive "
+                                "(the first ionization energy in eV, e.g. 15.76 for argon)")
+    thresholds = [p.threshold_eV for p in processes if p.kind == "ionization"]
+    if thresholds and abs(min(thresholds) - ionization_energy_eV) > IONIZATION_ENERGY_TOLERANCE_eV:
+        raise CrossSectionError(f"{where}: [species] ionization_energy_eV = {ionization_energy_eV} differs from the "
+                                f"lowest ionization threshold_eV = {min(thresholds)}; make them equal (the "
+                                "ionization energy is the threshold of ionization to the ground-state ion)")
+
+
 def _parse_process(raw: dict, index: int, base: Path, where_file: str) -> Process:
     where = f"{where_file}: process #{index + 1}"
     if not isinstance(raw, dict):
         raise CrossSectionError(f"{where}: each [[process]] must be a table")
     if "label" in raw:
-        where = f"{where_file}: process '{raw['label']}'"
+        where = f"{where_file}: process {str(raw['label'])!r}"
     for key in raw:
         if key not in _PROCESS_KEYS:
-            raise CrossSectionError(f"{where}: unknown field '{key}'{_did_you_mean(key, _PROCESS_KEYS)}")
+            raise CrossSectionError(f"{where}: unknown field {key!r}{_did_you_mean(key, _PROCESS_KEYS)}")
     kind = _require(raw, "kind", where, f"set kind to one of {list(KINDS)}")
     if kind not in KINDS:
         raise CrossSectionError(f"{where}: unknown kind '{kind}'{_did_you_mean(str(kind), KINDS)}; "
@@ -302,16 +342,23 @@ def _parse_process(raw: dict, index: int, base: Path, where_file: str) -> Proces
                           where, "threshold_eV")
     if threshold < 0:
         raise CrossSectionError(f"{where}: threshold_eV = {threshold} is negative; it must be >= 0")
-    units_given = "units" in raw
+    if kind == "elastic" and threshold != 0:
+        raise CrossSectionError(f"{where}: threshold_eV = {threshold} for an elastic process; elastic collisions "
+                                "lose no threshold energy: set threshold_eV = 0 (or use kind = \"excitation\")")
+    flags = {key: _as_bool(raw, key, where, default) for key, default in
+             (("three_body", False), ("enabled", True), ("allow_large_cross_section", False))}
     units = raw.get("units", "m2")
-    if units not in UNITS_m2:
+    if not isinstance(units, str) or units not in UNITS_m2:
         raise CrossSectionError(f"{where}: unknown units '{units}'{_did_you_mean(str(units), UNITS_m2)}; "
                                 f"choose one of {list(UNITS_m2)}")
     table_path = None
     if "table" in raw:
         if "energy_eV" in raw or "cross_section" in raw:
             raise CrossSectionError(f"{where}: give either 'table' or inline 'energy_eV'/'cross_section', not both")
-        table_path = str(raw["table"])
+        if not isinstance(raw["table"], str) or not raw["table"].strip():
+            raise CrossSectionError(f"{where}: field 'table' must be the path of a CSV file in quotes, got "
+                                    f"{raw['table']!r}")
+        table_path = raw["table"]
         energy, sigma = _read_csv_table(base / table_path, where)
     else:
         energy = _require(raw, "energy_eV", where, "give energy_eV and cross_section arrays, or a 'table' CSV path")
@@ -323,11 +370,13 @@ def _parse_process(raw: dict, index: int, base: Path, where_file: str) -> Proces
             raise CrossSectionError(f"{where}: energy_eV and cross_section must be arrays of numbers") from None
     sigma = sigma * UNITS_m2[units]
     validate_table(energy, sigma, kind, threshold, where)
-    if not units_given and sigma.max() > SUSPICIOUS_m2:
+    if sigma.max() > SUSPICIOUS_m2 and not flags["allow_large_cross_section"]:
         i = int(np.argmax(sigma))
+        hint = "the values look like cm2: add units = \"cm2\"" if "units" not in raw else "check units and the values"
         raise CrossSectionError(
-            f"{where}: cross section {sigma[i]:g} at {energy[i]} eV is implausibly large for m2 (> {SUSPICIOUS_m2:g});"
-            " the values look like cm2 — add units = \"cm2\" (or units = \"m2\" if they really are m2)")
+            f"{where}: cross section {sigma[i]:g} m2 at {energy[i]} eV (units = \"{units}\") is implausibly large "
+            f"(> {SUSPICIOUS_m2:g} m2); {hint}, or add allow_large_cross_section = true if they really are that "
+            "large")
     scattering = raw.get("scattering", "isotropic")
     if scattering not in SCATTERING_MODELS:
         hint = _did_you_mean(str(scattering), SCATTERING_MODELS)
@@ -341,7 +390,7 @@ def _parse_process(raw: dict, index: int, base: Path, where_file: str) -> Proces
             optional[key] = _as_float(raw[key], where, key)
             if optional[key] <= 0:
                 raise CrossSectionError(f"{where}: {key} = {optional[key]} must be positive")
-    three_body = bool(raw.get("three_body", False))
+    three_body = flags["three_body"]
     if three_body and "reference_density_m3" not in raw:
         raise CrossSectionError(f"{where}: a three_body process needs reference_density_m3 (the partner density "
                                 "[m^-3] for which the cross section is given)")
@@ -349,7 +398,7 @@ def _parse_process(raw: dict, index: int, base: Path, where_file: str) -> Proces
         raise CrossSectionError(f"{where}: three_body is supported for attachment only, got kind '{kind}'")
     return Process(kind=kind, label=label, threshold_eV=threshold, energy_eV=energy, cross_section_m2=sigma,
                    source=str(raw.get("source", "")), extrapolation=extrapolation, scattering=scattering,
-                   group=raw.get("group"), three_body=three_body, enabled=bool(raw.get("enabled", True)),
+                   group=raw.get("group"), three_body=three_body, enabled=flags["enabled"],
                    units=units, table_path=table_path, **optional)
 
 
@@ -372,14 +421,15 @@ def parse_set(data: dict, where: str, base: Path | None = None) -> CrossSectionS
     base = Path(".") if base is None else base
     for key in data:
         if key not in _TOP_KEYS:
-            raise CrossSectionError(f"{where}: unknown top-level field '{key}'{_did_you_mean(key, _TOP_KEYS)}")
+            raise CrossSectionError(f"{where}: unknown top-level field {key!r}{_did_you_mean(key, _TOP_KEYS)}")
     version = data.get("format_version", FORMAT_VERSION)
     if version != FORMAT_VERSION:
         raise CrossSectionError(f"{where}: format_version = {version!r}; this avalanche reads version {FORMAT_VERSION}")
-    species = _require(data, "species", where, "add a [species] table with name, formula, mass_amu")
+    species = _table(_require(data, "species", where, "add a [species] table with name, formula, mass_amu"), where,
+                     "species")
     for key in species:
         if key not in _SPECIES_KEYS:
-            raise CrossSectionError(f"{where}: [species] unknown field '{key}'{_did_you_mean(key, _SPECIES_KEYS)}")
+            raise CrossSectionError(f"{where}: [species] unknown field {key!r}{_did_you_mean(key, _SPECIES_KEYS)}")
     name = str(_require(species, "name", f"{where}: [species]", "give the species name"))
     mass = _as_float(_require(species, "mass_amu", f"{where}: [species]", "give the target mass in amu"),
                      f"{where}: [species]", "mass_amu")
@@ -388,16 +438,17 @@ def parse_set(data: dict, where: str, base: Path | None = None) -> CrossSectionS
     ion = species.get("ionization_energy_eV")
     if ion is not None:
         ion = _as_float(ion, f"{where}: [species]", "ionization_energy_eV")
-    provenance = data.get("provenance", {})
+    provenance = _table(data.get("provenance", {}), where, "provenance")
     for key in provenance:
         if key not in _PROVENANCE_KEYS:
             hint = _did_you_mean(key, _PROVENANCE_KEYS)
-            raise CrossSectionError(f"{where}: [provenance] unknown field '{key}'{hint}")
+            raise CrossSectionError(f"{where}: [provenance] unknown field {key!r}{hint}")
     raw_processes = data.get("process", [])
     if not isinstance(raw_processes, list):
         raise CrossSectionError(f"{where}: 'process' must be an array of tables ([[process]])")
     processes = tuple(_parse_process(raw, i, base, where) for i, raw in enumerate(raw_processes))
     check_processes(processes, where)
+    check_ionization_energy(ion, processes, where)
     return CrossSectionSet(name=name, formula=str(species.get("formula", name)), mass_amu=mass,
                            ionization_energy_eV=ion, processes=processes, provenance=dict(provenance),
                            description=str(species.get("description", "")), path=None)
@@ -411,15 +462,15 @@ def load_set(path: str | Path) -> CrossSectionSet:
     CrossSectionError
         With the file name, the process label, the field and the offending value.
     """
+    from ..errors import read_user_text
+
     path = Path(path)
-    if not path.is_file():
+    if not path.exists():
         raise CrossSectionError(f"{path}: no such cross-section file")
     try:
-        data = tomllib.loads(path.read_text())
+        data = tomllib.loads(read_user_text(path, "cross-section file", CrossSectionError))
     except tomllib.TOMLDecodeError as exc:
         raise CrossSectionError(f"{path}: malformed TOML: {exc}") from None
-    except UnicodeDecodeError as exc:
-        raise CrossSectionError(f"{path}: not a text file ({exc})") from None
     result = parse_set(data, str(path), base=path.parent)
     return replace(result, path=str(path))
 
@@ -502,6 +553,7 @@ def make_set(name: str, *, mass_amu: float, processes: Sequence[Process], formul
     if not (isinstance(mass_amu, (int, float)) and mass_amu > 0 and math.isfinite(mass_amu)):
         raise CrossSectionError(f"{where}: mass_amu = {mass_amu!r} must be a positive number")
     check_processes(tuple(processes), where)
+    check_ionization_energy(ionization_energy_eV, processes, where)
     return CrossSectionSet(name=name, formula=formula or name, mass_amu=float(mass_amu),
                            ionization_energy_eV=ionization_energy_eV, processes=tuple(processes),
                            provenance=dict(provenance or {}), description=description,

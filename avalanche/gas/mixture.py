@@ -3,8 +3,9 @@
 from __future__ import annotations
 
 import math
+import warnings
 from collections.abc import Mapping
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 from ..constants import STANDARD_ATMOSPHERE_Pa
 from ..constants import number_density_m3 as ideal_gas_density_m3
@@ -14,6 +15,9 @@ from .library import get_set, named_mixtures
 from .penning import PenningChannel, penning_channels
 
 FRACTION_TOLERANCE = 1e-6
+"""Mole fractions summing to 1 within this are used as given."""
+NORMALISE_TOLERANCE = 1e-3
+"""Mole fractions summing to 1 within this (e.g. dry air typed from a table, 0.9996) are normalised, with a note."""
 
 
 def parse_composition(text: str) -> dict[str, float]:
@@ -120,11 +124,17 @@ class Mixture:
                 except AvalancheError as exc:
                     raise ConfigError(f"mixture: {exc}") from None
             components.append(Component(name=str(name), fraction=fraction, cross_sections=xs))
-        total = sum(c.fraction for c in components)
+        total = math.fsum(c.fraction for c in components)
+        listing = ", ".join(f"{k}: {v}" for k, v in composition.items())
+        if abs(total - 1.0) > NORMALISE_TOLERANCE:
+            named = ", ".join(sorted(named_mixtures()))
+            raise ConfigError(f"mole fractions ({listing}) sum to {total:.9g}, not 1 (within {NORMALISE_TOLERANCE:g} "
+                              f"they are normalised); adjust them so they add up to 1, or use a named mixture "
+                              f"({named})")
         if abs(total - 1.0) > FRACTION_TOLERANCE:
-            listing = ", ".join(f"{k}: {v}" for k, v in composition.items())
-            raise ConfigError(f"mole fractions ({listing}) sum to {total:.9g}, not 1 (tolerance "
-                              f"{FRACTION_TOLERANCE:g}); adjust them so they add up to 1")
+            warnings.warn(f"mole fractions ({listing}) sum to {total:.9g}; normalised to 1", UserWarning,
+                          stacklevel=2)
+            components = [replace(c, fraction=c.fraction / total) for c in components]
         self.components: tuple[Component, ...] = tuple(components)
         self.temperature_K = temperature_K
         self.number_density_m3 = density

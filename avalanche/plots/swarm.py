@@ -73,10 +73,12 @@ def read_reference(path) -> ReferenceData:
         unknown quantity (with a did-you-mean), a cell that is not a number.
     """
     path = Path(path)
-    if not path.is_file():
+    if not path.exists():
         raise ConfigError(f"reference file '{path}' not found; give a CSV with columns reduced_field_Td,<quantity>,..")
     label, header, rows = path.name, None, []
-    for number, line in enumerate(path.read_text(encoding="utf-8").splitlines(), start=1):
+    from ..errors import read_user_text
+
+    for number, line in enumerate(read_user_text(path, "reference file").splitlines(), start=1):
         text = line.strip()
         if not text:
             continue
@@ -90,15 +92,16 @@ def read_reference(path) -> ReferenceData:
             header = cells
             continue
         if len(cells) != len(header):
-            raise ConfigError(f"{path}, line {number}: {len(cells)} cells for {len(header)} columns {header}")
+            raise ConfigError(f"{path}, line {number}: {len(cells)} cells for the {len(header)} columns of the header")
         try:
             rows.append([float(cell) if cell else math.nan for cell in cells])
         except ValueError:
-            raise ConfigError(f"{path}, line {number}: a cell is not a number: {cells}") from None
+            raise ConfigError(f"{path}, line {number}: a cell is not a number; is this a reference CSV?") from None
     if header is None or not rows:
         raise ConfigError(f"reference file '{path}' has no header line and data rows; see avalanche plot --help")
     if header[0] != "reduced_field_Td":
-        raise ConfigError(f"{path}: the first column is {header[0]!r}; it must be 'reduced_field_Td' (E/N in Td)")
+        raise ConfigError(f"{path}: the first column of the header line must be 'reduced_field_Td' (E/N in Td); is "
+                          "this a reference CSV?")
     data = np.array(rows, dtype=float)
     quantities = {}
     for j, name in enumerate(header[1:], start=1):

@@ -5,7 +5,8 @@ Layout of a point group (the root of a file written by :func:`save_result`; swee
 * attributes: ``file_type`` = "avalanche swarm point", ``format_version`` (checked on read), ``package_version``,
   ``created_utc``, ``reduced_field_Td``, ``temperature_K``, ``number_density_m3``, ``mixture`` (label), ``seed``
   (JSON), ``stop_reason``, ``precision_on``, ``events``, ``cpu_seconds``, ``wall_seconds``, ``relaxation_time_s``,
-  ``sampled_time_s``, ``extrapolated_fraction``; JSON text: ``inputs_json`` (every input and setting),
+  ``sampled_time_s``, ``extrapolated_fraction``, ``converged`` (bool; the reasons in ``convergence_notes_json``);
+  JSON text: ``inputs_json`` (every input and setting),
   ``composition_json``, ``checksums_json`` (SHA-256 of each species' cross-section set), ``provenance_json``
   (sources of each set), ``anomalies_json``.
 * ``estimates/<name>``: float64 (2,) = (value, standard error), attributes ``units`` and ``description``.
@@ -89,6 +90,8 @@ def write_result(group: h5py.Group, result: SwarmResult) -> None:
     attrs["checksums_json"] = _json(mixture.get("checksums", {}))
     attrs["provenance_json"] = _json(inputs.get("provenance", {}))
     attrs["anomalies_json"] = _json(result.anomalies)
+    attrs["converged"] = bool(result.converged)
+    attrs["convergence_notes_json"] = _json(list(result.convergence_notes))
     est = group.create_group("estimates")
     for name, units, description in ESTIMATES:
         if name in result.estimates:
@@ -228,6 +231,8 @@ def read_result(group: h5py.Group) -> SwarmResult:
         reduced_field_Td = float(attrs["reduced_field_Td"])
         phase = _read_phase(group["phase"]) if "phase" in group else {}
         magnetic = _read_magnetic(group["magnetic"]) if "magnetic" in group else None
+        convergence = {"converged": bool(attrs.get("converged", True)),
+                       "convergence_notes": json.loads(attrs.get("convergence_notes_json", "[]"))}
     except KeyError as exc:
         raise AvalancheError(f"{where}: incomplete swarm point, missing {exc}; the file is damaged or was not "
                              "written by avalanche.store.point.write_result") from None
@@ -239,22 +244,39 @@ def read_result(group: h5py.Group) -> SwarmResult:
                        relaxation_time_s=float(scalars["relaxation_time_s"]),
                        sampled_time_s=float(scalars["sampled_time_s"]),
                        extrapolated_fraction=float(scalars["extrapolated_fraction"]), anomalies=anomalies,
-                       inputs=inputs, time_series=time_series, tallies=tallies, magnetic=magnetic, **phase)
+                       inputs=inputs, time_series=time_series, tallies=tallies, magnetic=magnetic, **phase,
+                       **convergence)
 
 
-def save_result(path: str | Path, result: SwarmResult) -> Path:
-    """Write ``result`` as the root group of a new HDF5 file ``path`` (overwritten if it exists)."""
-    path = Path(path)
-    with h5py.File(path, "w") as f:
-        write_result(f, result)
-    return path
+def save_result(path: str | Path, result: SwarmResult, *, overwrite: bool = True) -> Path:
+    """Write ``result`` as the root group of a new HDF5 file ``path``.
+
+    The file is written under a temporary name in the same folder and renamed into place, so ``path`` never holds a
+    half-written file (after a crash or a full disk the previous file, if any, is unchanged).
+
+    Parameters
+    ----------
+    path : str or Path
+    result : SwarmResult or TownsendResult
+    overwrite : bool
+        Replace an existing file (default); False refuses with a :class:`ConfigError` naming the path.
+    """
+    from .files import check_output_file, write_atomically
+
+    path = check_output_file(path, force=overwrite)
+
+    def write(temporary: Path) -> None:
+        with h5py.File(temporary, "w") as f:
+            write_result(f, result)
+
+    return write_atomically(path, write)
 
 
 def load_result(path: str | Path) -> SwarmResult:
     """Read the swarm point stored at the root of the HDF5 file ``path``."""
     path = Path(path)
     if not path.is_file():
-        raise AvalancheError(f"{path}: no such file")
+        raise AvalancheError(f"{path}: no such file" if not path.exists() else f"{path}: not a regular file")
     try:
         f = h5py.File(path, "r")
     except OSError as exc:

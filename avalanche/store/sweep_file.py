@@ -38,8 +38,9 @@ from __future__ import annotations
 
 import datetime as _dt
 import json
+import os
 from collections.abc import Callable, Mapping
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from pathlib import Path
 
 import h5py
@@ -106,6 +107,46 @@ def _now() -> str:
     return _dt.datetime.now(_dt.UTC).isoformat(timespec="seconds")
 
 
+HDF5_SIGNATURE = b"\x89HDF\r\n\x1a\n"
+INCOMPLETE_MAX_BYTES = 1 << 16
+"""A file that does not open as HDF5 is taken as one whose creation was interrupted only when it is this small
+(a results file is written under a temporary name and linked complete, so only older or foreign writers leave
+such files); larger damaged files are reported, never deleted."""
+
+
+def incomplete_reason(path: str | Path) -> str | None:
+    """Why the results file ``path`` is an incomplete leftover of an interrupted creation (safe to delete and
+    start afresh), or None when it is not one: empty; a small HDF5 file that does not open (truncated); or an HDF5
+    file without the sweep's parts."""
+    path = Path(path)
+    try:
+        size = path.stat().st_size
+        if size == 0:
+            return "it is empty"
+        with open(path, "rb") as handle:
+            head = handle.read(len(HDF5_SIGNATURE))
+    except OSError:
+        return None
+    if head != HDF5_SIGNATURE:
+        return None
+    try:
+        f = h5py.File(path, "r", locking=False)
+    except OSError:
+        return f"it is truncated ({size} bytes) and does not open" if size <= INCOMPLETE_MAX_BYTES else None
+    with f:
+        parts = ("runfile", "config", "grid", "table", "points")
+        if not f.attrs.get("file_type") and not list(f.keys()):
+            return "it has no content"
+        if f.attrs.get("file_type") == FILE_TYPE and not all(part in f for part in parts):
+            return "its creation was interrupted (parts missing)"
+    return None
+
+
+def _incomplete_message(path: Path, reason: str) -> str:
+    return (f"results file '{path}' is incomplete ({reason}): its creation was interrupted and it holds no results; "
+            "it is safe to delete, and `avalanche sweep --resume` starts it afresh")
+
+
 def _open(path: Path, mode: str, **kwargs) -> h5py.File:
     try:
         return h5py.File(path, mode, **kwargs)
@@ -161,30 +202,72 @@ class ResultsWriter:
         Indices of points committed with status "ok" (a resumed sweep skips them).
     """
 
+    broken = False
+    """True after a write failed (e.g. a full disk); the file then only gets closed."""
+
     def __init__(self, path: str | Path, runfile, *, resume: bool = False, payload_io: PayloadIO | None = None):
         self.path = Path(path)
         self.runfile = runfile
         self._write_payload = (payload_io or engine_payload_io())[0]
+        self.restarted: str | None = None
+        """Why an incomplete file was started afresh by ``resume`` (None when it was not)."""
+        from .files import FileLock, check_output_file
+
+        check_output_file(self.path, force=True, option="results file")
+        self._lock = FileLock(self.path)
+        try:
+            self._open_or_create(resume)
+        except BaseException:
+            self._lock.release()
+            raise
+        self.finished = {i for i, s in enumerate(_point_statuses(self.file, len(runfile.points))) if s == STATUS_OK}
+
+    # -- set-up
+    def _open_or_create(self, resume: bool) -> None:
+        reason = incomplete_reason(self.path) if self.path.exists() else None
         if resume:
-            if not self.path.is_file():
+            if not self.path.exists():
                 raise ConfigError(f"--resume: results file '{self.path}' does not exist; run without --resume to "
                                   "start the sweep")
+            if reason is not None:
+                self.path.unlink()
+                self.restarted = reason
+                return self._create_complete()
+            if not self.path.is_file():
+                raise ConfigError(f"results file '{self.path}' is not a regular file; give another --out")
             self.file = _open(self.path, "r+")
             try:
                 self._check_resumable()
             except BaseException:
                 self.file.close()
                 raise
-        else:
-            if self.path.exists():
-                raise ConfigError(f"results file '{self.path}' already exists; continue it with --resume, write "
-                                  "to another file with --out, or delete it")
-            self.path.parent.mkdir(parents=True, exist_ok=True)
-            self.file = _open(self.path, "w-")
-            self._create()
-        self.finished = {i for i, s in enumerate(_point_statuses(self.file, len(runfile.points))) if s == STATUS_OK}
+            return None
+        if reason is not None:
+            raise ConfigError(_incomplete_message(self.path, reason))
+        if self.path.exists() or self.path.is_symlink():
+            raise ConfigError(f"results file '{self.path}' already exists; continue it with --resume, write "
+                              "to another file with --out, or delete it")
+        return self._create_complete()
 
-    # -- set-up
+    def _create_complete(self) -> None:
+        """Create the file under a temporary name, complete, then link it to its name (never over another file),
+        so a results file under its final name always has every part."""
+        from .files import disk_error
+
+        temporary = self.path.with_name(f".{self.path.name}.{os.getpid()}.partial")
+        try:
+            with _open(temporary, "w") as self.file:
+                self._create()
+            os.link(temporary, self.path)
+        except FileExistsError:
+            raise ConfigError(f"results file '{self.path}' appeared while it was being created; another sweep "
+                              "writes it") from None
+        except OSError as exc:
+            raise disk_error(exc, self.path, "creating the results file") from None
+        finally:
+            temporary.unlink(missing_ok=True)
+        self.file = _open(self.path, "r+")
+
     def _create(self) -> None:
         f, rf = self.file, self.runfile
         points = rf.points
@@ -290,29 +373,52 @@ class ResultsWriter:
             ``attempts``, ``wall_seconds`` [s], ``worker`` (host:pid) and ``warnings`` (list of str).
         """
         info = info or {}
-        group = self._fresh_group(point.index)
-        self._write_payload(group, result)
-        self._point_attrs(group, point, info)
-        for quantity, (value, stderr, units) in headline_values(result).items():
-            self._column("value", quantity, units)[point.index] = value
-            self._column("stderr", quantity, units)[point.index] = stderr
-        group.attrs["sweep_status"] = STATUS_OK
-        self.file.flush()
+        try:
+            group = self._fresh_group(point.index)
+            self._write_payload(group, result)
+            self._point_attrs(group, point, info)
+            group.attrs["sweep_converged"] = bool(getattr(result, "converged", True))
+            group.attrs["sweep_convergence_notes"] = json.dumps(list(getattr(result, "convergence_notes", [])))
+            for quantity, (value, stderr, units) in headline_values(result).items():
+                self._column("value", quantity, units)[point.index] = value
+                self._column("stderr", quantity, units)[point.index] = stderr
+            group.attrs["sweep_status"] = STATUS_OK
+            self.file.flush()
+        except OSError as exc:
+            raise self._write_error(exc, point) from None
         self.finished.add(point.index)
+
+    def _write_error(self, exc: OSError, point) -> AvalancheError:
+        from .files import disk_error
+
+        error = disk_error(exc, self.path, f"committing point {point.index}")
+        self.broken = True
+        return AvalancheError(f"{error}; the {len(self.finished)} points committed before are intact (the "
+                              "interrupted one counts as missing): continue with --resume")
 
     def commit_failure(self, point, reason: str, info: Mapping | None = None) -> None:
         """Record that a point failed, with the reason; flush. A resumed sweep tries it again."""
-        group = self._fresh_group(point.index)
-        self._point_attrs(group, point, info or {})
-        group.attrs["sweep_reason"] = str(reason)
-        group.attrs["sweep_status"] = STATUS_FAILED
-        self.file.flush()
+        try:
+            group = self._fresh_group(point.index)
+            self._point_attrs(group, point, info or {})
+            group.attrs["sweep_reason"] = str(reason)
+            group.attrs["sweep_status"] = STATUS_FAILED
+            self.file.flush()
+        except OSError as exc:
+            raise self._write_error(exc, point) from None
         self.finished.discard(point.index)
 
     def close(self) -> None:
-        """Flush and close the file."""
-        if self.file.id.valid:
-            self.file.close()
+        """Flush and close the file, then release the lock. After a failed write (full disk) the close may fail
+        too; the committed points are on disk already, so that failure is ignored."""
+        try:
+            if self.file.id.valid:
+                self.file.close()
+        except OSError:
+            if not self.broken:
+                raise
+        finally:
+            self._lock.release()
 
     def __enter__(self):
         return self
@@ -342,11 +448,14 @@ class SweepResults:
     grid : numpy.ndarray
         Structured array, one row per point: ``index``, ``mixture_index``, ``mixture``, ``reduced_field_Td``
         [Td], ``frequency_Hz`` [Hz], ``seed``, ``status`` ("ok", "failed" or "missing"), ``magnetic_field_T`` [T],
-        ``reduced_magnetic_field_Hx`` [Hx], ``field_angle_deg`` [deg] (0, 0, 90 for a sweep without a magnetic field).
+        ``reduced_magnetic_field_Hx`` [Hx], ``field_angle_deg`` [deg] (0, 0, 90 for a sweep without a magnetic
+        field), ``converged`` (False for a finished point marked not converged: not relaxed, or a NaN estimate).
     units : dict
         Quantity → units of every tabulated quantity, in table order.
     failures : list of dict
         ``index``, ``reason``, ``attempts`` of every failed point.
+    not_converged : list of dict
+        ``index`` and ``notes`` (the reasons) of every finished point marked not converged.
     """
 
     path: Path
@@ -361,6 +470,7 @@ class SweepResults:
     _values: dict
     _stderrs: dict
     _read_payload: Callable | None = None
+    not_converged: list = field(default_factory=list)
 
     @property
     def quantities(self) -> list[str]:
@@ -457,7 +567,11 @@ def open_results(path: str | Path, *, payload_io: PayloadIO | None = None) -> Sw
     """
     path = Path(path)
     if not path.is_file():
-        raise ConfigError(f"results file '{path}' not found")
+        raise ConfigError(f"results file '{path}' not found" if not path.exists() else
+                          f"results file '{path}' is not a regular file; give the .h5 file written by avalanche sweep")
+    reason = incomplete_reason(path)
+    if reason is not None:
+        raise AvalancheError(_incomplete_message(path, reason))
     with _open(path, "r") as f:
         _check_type(f, path)
         n = int(f.attrs["n_points"])
@@ -470,7 +584,8 @@ def open_results(path: str | Path, *, payload_io: PayloadIO | None = None) -> Sw
         grid = np.zeros(n, dtype=[("index", np.int64), ("mixture_index", np.int64), ("mixture", f"U{width}"),
                                   ("reduced_field_Td", np.float64), ("frequency_Hz", np.float64),
                                   ("seed", np.int64), ("status", "U7"), ("magnetic_field_T", np.float64),
-                                  ("reduced_magnetic_field_Hx", np.float64), ("field_angle_deg", np.float64)])
+                                  ("reduced_magnetic_field_Hx", np.float64), ("field_angle_deg", np.float64),
+                                  ("converged", bool)])
         grid["index"] = np.arange(n)
         grid["mixture_index"] = mixture_index
         grid["mixture"] = [mixtures[i] for i in mixture_index]
@@ -480,6 +595,14 @@ def open_results(path: str | Path, *, payload_io: PayloadIO | None = None) -> Sw
         grid["status"] = status.astype(str)
         for name, default in (("magnetic_field_T", 0.0), ("reduced_magnetic_field_Hx", 0.0), ("field_angle_deg", 90.0)):
             grid[name] = g[name][()] if name in g else default
+        grid["converged"] = True
+        not_converged = []
+        for i in np.flatnonzero(ok):
+            attrs = f["points"][f"{i:06d}"].attrs
+            if not bool(attrs.get("sweep_converged", True)):
+                grid["converged"][i] = False
+                not_converged.append({"index": int(i),
+                                      "notes": json.loads(_text(attrs.get("sweep_convergence_notes", "[]")))})
         columns = {}
         for column in f["table"]["value"].values():
             quantity = _text(column.attrs["quantity"])
@@ -499,4 +622,4 @@ def open_results(path: str | Path, *, payload_io: PayloadIO | None = None) -> Sw
             checksums={k: _text(v) for k, v in f["crosssections"].attrs.items()}, mixtures=mixtures, grid=grid,
             units={q: columns[q][0] for q in order}, failures=failures,
             _values={q: columns[q][1] for q in order}, _stderrs={q: columns[q][2] for q in order},
-            _read_payload=(payload_io[1] if payload_io else None))
+            _read_payload=(payload_io[1] if payload_io else None), not_converged=not_converged)

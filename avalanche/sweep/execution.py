@@ -370,7 +370,7 @@ def dask_client(scheduler: str, timeout_s: float = 30.0):
                              "(tcp://HOST:PORT) or the scheduler file") from None
 
 
-def jobqueue_cluster(settings: dict):
+def jobqueue_cluster(settings: dict, directives: tuple[str, ...] = (), prologue: tuple[str, ...] = ()):
     """A dask-jobqueue cluster (Slurm or PBS) from a run file's ``[cluster]`` table, not yet scaled.
 
     Parameters
@@ -378,6 +378,9 @@ def jobqueue_cluster(settings: dict):
     settings : dict
         :attr:`avalanche.sweep.runfile.RunFile.cluster`: ``kind``, ``cores``, ``processes``, ``memory``,
         ``walltime``, optional ``queue`` and ``account``, and ``options`` passed on to the cluster class.
+    directives, prologue : tuple of str
+        Batch-system directive lines and shell lines run before the worker starts, given on the command line
+        (``--job-directive``, ``--job-prologue``); a run file cannot add job-script lines.
     """
     try:
         import dask_jobqueue
@@ -387,6 +390,11 @@ def jobqueue_cluster(settings: dict):
     kwargs = {k: settings[k] for k in ("cores", "processes", "memory", "walltime", "queue", "account")
               if k in settings}
     kwargs.update(settings.get("options", {}))
+    for name, lines in (("job_extra_directives", directives), ("job_script_prologue", prologue)):
+        if any("\n" in line or "\r" in line for line in lines):
+            raise ConfigError(f"--{name}: give one line per flag (no line breaks)")
+        if lines:
+            kwargs[name] = list(lines)
     try:
         return cls(**kwargs)
     except (TypeError, ValueError) as exc:
@@ -407,6 +415,9 @@ class SweepReport:
         Grid points; points finished in this run; points already finished in the file (``--resume``).
     failed : list of dict
         ``index``, ``reason``, ``attempts`` of the points that failed in this run.
+    not_converged : list of dict
+        ``index`` and ``notes`` of the points computed in this run whose result is marked not converged (not
+        relaxed, or a NaN estimate; see ``SwarmResult.converged``). They are stored, and counted apart.
     wall_seconds : float
         Wall-clock time of the whole sweep [s] (start-up of workers included).
     compute_seconds : float
@@ -426,6 +437,7 @@ class SweepReport:
     computed: int = 0
     skipped: int = 0
     failed: list = field(default_factory=list)
+    not_converged: list = field(default_factory=list)
     wall_seconds: float = 0.0
     compute_seconds: float = 0.0
     cpu_seconds: float = 0.0
@@ -440,8 +452,9 @@ class SweepReport:
 
     def summary(self) -> str:
         """One line: points computed, already done and failed, the wall-clock time and the file."""
+        unconverged = f" ({len(self.not_converged)} of them not converged)" if self.not_converged else ""
         return (f"{self.computed} computed, {self.skipped} already done, {len(self.failed)} failed, of {self.points} "
-                f"points, in {self.wall_seconds:.1f} s -> {self.path}")
+                f"points{unconverged}, in {self.wall_seconds:.1f} s -> {self.path}")
 
 
 def _progress_text(runfile: RunFile, point, result) -> str:
@@ -471,17 +484,23 @@ def _log_failure(log_path: Path, runfile: RunFile, point, outcome: Outcome) -> s
             f"{point.frequency_Hz:g} Hz, {magnetic}seed {point.seed}) failed after {outcome.attempts} attempt"
             f"{'s' if outcome.attempts != 1 else ''}: {outcome.reason}")
     stamp = _dt.datetime.now(_dt.UTC).isoformat(timespec="seconds")
-    with open(log_path, "a") as log:
-        log.write(f"{stamp} {line}\n")
-        if outcome.detail:
-            log.write("".join(f"    {row}\n" for row in outcome.detail.rstrip().splitlines()))
+    try:
+        with open(log_path, "a") as log:
+            log.write(f"{stamp} {line}\n")
+            if outcome.detail:
+                log.write("".join(f"    {row}\n" for row in outcome.detail.rstrip().splitlines()))
+    except OSError as exc:
+        from ..store.files import disk_error
+
+        raise disk_error(exc, log_path, "logging a failed point (the results file holds the failure)") from None
     return line
 
 
 def run_sweep(runfile: str | Path | RunFile, *, workers: int | None = None, scheduler: str | None = None,
               cluster: bool = False, out: str | Path | None = None, resume: bool = False, quiet: bool = False,
               threads_per_worker: int = 1, max_retries: int = DEFAULT_MAX_RETRIES,
-              executor=None, compute: Callable = compute_point) -> SweepReport:
+              executor=None, compute: Callable = compute_point, job_directives: tuple[str, ...] = (),
+              job_prologue: tuple[str, ...] = ()) -> SweepReport:
     """Compute every missing point of a run file's grid and commit each into the results file as it finishes.
 
     Parameters
@@ -509,6 +528,9 @@ def run_sweep(runfile: str | Path | RunFile, *, workers: int | None = None, sche
     executor : optional
         An object with ``map_unordered(fn, tasks)`` and ``description`` (e.g. a :class:`LocalPool` or
         :class:`DaskExecutor` you configured); overrides ``workers``, ``scheduler`` and ``cluster``.
+    job_directives, job_prologue : tuple of str
+        With ``cluster``: batch-system directive lines and shell lines added to the job script (the command line's
+        ``--job-directive`` and ``--job-prologue``; a run file cannot add them).
     compute : callable
         The per-point computation, a module-level function of :func:`point_task`'s dict returning
         ``{"result": ..., "warnings": [...]}``; default :func:`compute_point` (the engine).
@@ -535,6 +557,9 @@ def run_sweep(runfile: str | Path | RunFile, *, workers: int | None = None, sche
                           "memory, walltime, ...)")
     if int(threads_per_worker) < 1:
         raise ConfigError(f"threads_per_worker = {threads_per_worker} must be >= 1")
+    if workers is not None and (isinstance(workers, bool) or int(workers) < 1):
+        raise ConfigError(f"--workers {workers}: give at least 1 worker process (leave --workers out for one per "
+                          "core)")
     path = Path(out) if out is not None else rf.output
     report = SweepReport(path=path, points=len(rf.points))
     with contextlib.ExitStack() as stack:
@@ -544,7 +569,8 @@ def run_sweep(runfile: str | Path | RunFile, *, workers: int | None = None, sche
         if executor is None:
             if scheduler is not None or cluster:
                 if cluster:
-                    jq = stack.enter_context(jobqueue_cluster(rf.cluster))
+                    jq = stack.enter_context(jobqueue_cluster(rf.cluster, tuple(job_directives),
+                                                              tuple(job_prologue)))
                     jq.scale(jobs=rf.cluster["jobs"])
                     client = stack.enter_context(dask_client(jq.scheduler_address))
                 else:
@@ -558,11 +584,14 @@ def run_sweep(runfile: str | Path | RunFile, *, workers: int | None = None, sche
         bar = stack.enter_context(tqdm(total=len(rf.points), initial=report.skipped, unit="point",
                                        disable=quiet, file=sys.stderr, dynamic_ncols=True,
                                        desc=rf.name, smoothing=0.1))
+        if writer.restarted:
+            bar.write(f"avalanche sweep: {path} was incomplete ({writer.restarted}); started afresh", file=sys.stderr)
         if not quiet:
             where = "all points already finished" if not todo else f"{len(todo)} points on {report.executor}"
             bar.write(f"avalanche sweep {rf.source} -> {path}: {where}", file=sys.stderr)
         log_path = path.with_suffix(".failures.log")
-        for outcome in executor.map_unordered(compute, tasks):
+        outcomes = stack.enter_context(contextlib.closing(executor.map_unordered(compute, tasks)))
+        for outcome in outcomes:
             point = rf.points[outcome.key]
             info = {"attempts": outcome.attempts, "wall_seconds": outcome.wall_seconds, "worker": outcome.worker}
             if outcome.ok:
@@ -573,6 +602,11 @@ def run_sweep(runfile: str | Path | RunFile, *, workers: int | None = None, sche
                 report.compute_seconds += outcome.wall_seconds
                 report.cpu_seconds += float(getattr(result, "cpu_seconds", 0.0) or 0.0)
                 report.events += int(getattr(result, "events", 0) or 0)
+                if not getattr(result, "converged", True):
+                    notes = list(getattr(result, "convergence_notes", []))
+                    report.not_converged.append({"index": point.index, "notes": notes})
+                    bar.write(f"avalanche sweep: point {point.index} (E/N {point.reduced_field_Td:g} Td, "
+                              f"{point.frequency_Hz:g} Hz) not converged: {'; '.join(notes)}", file=sys.stderr)
                 bar.set_postfix_str(_progress_text(rf, point, result), refresh=False)
             else:
                 writer.commit_failure(point, outcome.reason, info)

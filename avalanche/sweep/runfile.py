@@ -52,6 +52,14 @@ _SECTIONS = {
 }
 _RANGE_KEYS = {"start", "stop", "count", "spacing"}
 CLUSTER_KINDS = ("slurm", "pbs")
+CLUSTER_OPTIONS = frozenset({"job_name", "interface", "local_directory", "log_directory", "death_timeout", "job_cpu",
+                             "job_mem", "nanny", "scheduler_options"})
+"""Extra dask-jobqueue arguments a run file's ``[cluster.options]`` may set (none of them adds job-script lines)."""
+JOB_SCRIPT_OPTIONS = frozenset({"job_script_prologue", "job_extra_directives", "job_extra", "env_extra",
+                                "job_directives_skip", "shebang", "python", "worker_extra_args", "extra",
+                                "worker_command", "header_skip"})
+"""dask-jobqueue arguments that add or change lines of the job script: refused in run files; the command line
+gives directives and prologue lines with ``--job-directive`` and ``--job-prologue``."""
 
 # Engine options checked here (type and range) before the run starts; any other keyword must be a parameter of
 # avalanche.engine.time_of_flight.swarm (checked against its signature).
@@ -297,10 +305,10 @@ def load_runfile(path: str | Path) -> RunFile:
     ConfigError
         With the file, the field, the value and the fix, for every kind of malformed input.
     """
+    from ..errors import read_user_text
+
     path = Path(path)
-    if not path.is_file():
-        raise ConfigError(f"run file '{path}' not found")
-    return parse_runfile(path.read_text(), source=str(path), base=path.parent)
+    return parse_runfile(read_user_text(path, "run file"), source=str(path), base=path.parent)
 
 
 def parse_runfile(text: str, source: str = "<run file>", base: str | Path | None = None) -> RunFile:
@@ -309,6 +317,7 @@ def parse_runfile(text: str, source: str = "<run file>", base: str | Path | None
         data = tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
         raise ConfigError(f"{source}: not valid TOML: {exc}") from None
+    folder_given = base is not None
     base = Path(base) if base is not None else Path.cwd()
     check = _Checker(source)
     check.keys(data, set(_SECTIONS), "the top level")
@@ -339,9 +348,8 @@ def parse_runfile(text: str, source: str = "<run file>", base: str | Path | None
     description = check.string(sweep, "[sweep]", "description", default="")
     stem = "sweep" if source.startswith("<") else Path(source).stem
     name = check.string(sweep, "[sweep]", "name", default=stem)
-    output = Path(check.string(sweep, "[sweep]", "output", default=f"{stem}.h5"))
-    if not output.name:
-        raise ConfigError(f"{source}: [sweep] output = \"{output}\" is not a file name")
+    output = _output_path(check.string(sweep, "[sweep]", "output", default=f"{stem}.h5"),
+                          base if folder_given else None, check)
 
     gas = sections["gas"]
     mixtures = _mixtures(gas, check, base)
@@ -475,30 +483,55 @@ class _Checker:
             if count > 1 and start == stop:
                 self.fail(where, key, value, "start equals stop; give a single value as a list instead")
             values = np.geomspace(start, stop, count) if spacing == "log" else np.linspace(start, stop, count)
-            values = [float(v) for v in values]
         elif isinstance(value, list):
             if not value:
                 self.fail(where, key, value, f"the grid is empty; give at least one value in {unit}")
-            for item in value:
-                if isinstance(item, bool) or not isinstance(item, (int, float)) or not math.isfinite(item):
-                    self.fail(where, key, value, f"every entry must be a finite number in {unit}, got {item!r}")
-            values = [float(v) for v in value]
+            if not all(type(item) in (int, float) for item in value):  # bool is not int's type
+                item = next(item for item in value if type(item) not in (int, float))
+                self.fail(where, key, value, f"every entry must be a finite number in {unit}, got {item!r}")
+            values = np.array(value, dtype=float)
+            if not np.all(np.isfinite(values)):
+                item = values[~np.isfinite(values)][0]
+                self.fail(where, key, value, f"every entry must be a finite number in {unit}, got {item!r}")
         elif isinstance(value, (int, float)) and not isinstance(value, bool) and math.isfinite(value):
-            values = [float(value)]
+            values = np.array([float(value)])
         else:
             self.fail(where, key, value, f"must be a list of numbers in {unit} or a range table "
                       "{ start = ..., stop = ..., count = ..., spacing = \"log\" }")
-        bad = [v for v in values if v < 0 or (positive and v == 0)]
-        if bad:
+        # whole-array checks, and one sort after which duplicates are neighbours: linear in the grid size
+        bad = values[(values < 0) | ((values == 0) if positive else False)]
+        if bad.size:
             self.fail(where, key, value, f"{'negative ' if bad[0] < 0 else ''}value {bad[0]:g} {unit}; values must "
                       f"be {'> 0' if positive else '>= 0'}")
-        duplicates = sorted({v for v in values if values.count(v) > 1})
-        if duplicates:
+        ordered = np.sort(values)
+        duplicates = ordered[1:][ordered[1:] == ordered[:-1]]
+        if duplicates.size:
             self.fail(where, key, value, f"{duplicates[0]:g} {unit} appears more than once")
-        return tuple(sorted(values))
+        return tuple(ordered.tolist())
+
+
+def _output_path(text: str, base: Path | None, check: _Checker) -> Path:
+    """The ``[sweep] output`` file: a relative path resolves against the run file's folder (as species paths do)
+    and must stay inside it; a file elsewhere needs an absolute path, so a shared run file cannot write outside
+    its folder unnoticed."""
+    if not text.strip():
+        check.fail("[sweep]", "output", text, "is empty; give a file name such as \"sweep.h5\"")
+    given = Path(text)
+    if text.endswith(("/", "\\")) or given.name in ("", ".", ".."):
+        check.fail("[sweep]", "output", text, "names a folder; give a file name such as \"results/sweep.h5\"")
+    if given.is_absolute():
+        return given
+    folder = (base or Path.cwd()).resolve()
+    path = (folder / given).resolve()
+    if not path.is_relative_to(folder):
+        check.fail("[sweep]", "output", text, f"leaves the run file's folder '{folder}'; give an absolute path to "
+                   "write elsewhere")
+    return path if base is not None else given
 
 
 def _show(value) -> str:
+    if isinstance(value, list) and len(value) > 20:
+        return f"[{_show(value[0])}, {_show(value[1])}, ... ({len(value)} values)]"
     return json.dumps(value) if isinstance(value, (str, list, dict, int, float)) else repr(value)
 
 
@@ -689,8 +722,30 @@ def _cluster(table: dict, check: _Checker) -> dict:
     for key in ("queue", "account"):
         if key in table:
             out[key] = check.string(table, "[cluster]", key, default="")
+    for key in ("memory", "walltime", "queue", "account"):
+        if key in out:
+            _one_line(out[key], "[cluster]", key, check)
     options = table.get("options", {})
     if not isinstance(options, Mapping):
         check.fail("[cluster]", "options", options, "must be a table of extra dask-jobqueue arguments")
+    for key, value in options.items():
+        if key in JOB_SCRIPT_OPTIONS:
+            check.fail("[cluster.options]", key, value, "adds lines to the job script, which a run file may not do "
+                       "(a shared run file would control the job); give such lines on the command line with "
+                       "--job-directive or --job-prologue")
+        if key not in CLUSTER_OPTIONS:
+            check.fail("[cluster.options]", key, value, f"is not an allowed option{_did_you_mean(key, CLUSTER_OPTIONS)}"
+                       f"; allowed: {sorted(CLUSTER_OPTIONS)} (job-script lines go on the command line)")
+        for inner in (value.values() if key == "scheduler_options" and isinstance(value, Mapping) else [value]):
+            if isinstance(inner, bool) or not isinstance(inner, (str, int, float)):
+                check.fail("[cluster.options]", key, value, "must be a string or a number (scheduler_options: a "
+                           "table of them)")
+            if isinstance(inner, str):
+                _one_line(inner, "[cluster.options]", key, check)
     out["options"] = dict(options)
     return out
+
+
+def _one_line(value: str, where: str, key: str, check: _Checker) -> None:
+    if any(ord(c) < 32 or ord(c) == 127 for c in value):
+        check.fail(where, key, value, "must be one line of text (no line breaks or control characters)")

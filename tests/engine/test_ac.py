@@ -142,7 +142,7 @@ def test_bad_drive_arguments(kwargs, word):
 def test_bad_waveform_files(tmp_path):
     path = tmp_path / "w.csv"
     path.write_text("phase,value\n0.0, 1.0\n0.5, abc\n")
-    with pytest.raises(ConfigError, match=r"w.csv', line 3: '0.5, abc'"):
+    with pytest.raises(ConfigError, match=r"w.csv', line 3: not two numbers"):  # the line is not quoted
         load_waveform(path)
     path.write_text("0.0,1\n0.6,0\n0.4,-1\n")
     with pytest.raises(ConfigError, match="does not increase"):

@@ -44,7 +44,14 @@ def test_bad_mixtures(composition, fragment):
         Mixture(composition)
 
 
-def test_fraction_tolerance_is_1e_6():
-    Mixture({"maxwell": 0.5, "reid-ramp": 0.5 + 5e-7})
-    with pytest.raises(ConfigError):
-        Mixture({"maxwell": 0.5, "reid-ramp": 0.5 + 5e-6})
+def test_fractions_within_1e_6_are_used_as_given_within_1e_3_normalised_beyond_refused():
+    import warnings
+
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")  # no note within 1e-6
+        Mixture({"maxwell": 0.5, "reid-ramp": 0.5 + 5e-7})
+    with pytest.warns(UserWarning, match="normalised to 1"):
+        normalised = Mixture({"maxwell": 0.5, "reid-ramp": 0.5 + 5e-4})
+    assert sum(c.fraction for c in normalised.components) == pytest.approx(1.0, abs=1e-12)
+    with pytest.raises(ConfigError, match="named mixture"):
+        Mixture({"maxwell": 0.5, "reid-ramp": 0.5 + 5e-3})

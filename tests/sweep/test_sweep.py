@@ -365,11 +365,10 @@ def test_a_batch_cluster_from_the_run_file(tmp_path):
     path = tmp_path / "cluster.toml"
     path.write_text(SWEEP + '\n[cluster]\nkind = "slurm"\njobs = 4\ncores = 8\nmemory = "16GB"\n'
                     'walltime = "02:00:00"\nqueue = "short"\naccount = "plasma"\n'
-                    'options = { job_extra_directives = ["--exclusive"], '
-                    'scheduler_options = { dashboard_address = ":0" } }\n')
+                    'options = { scheduler_options = { dashboard_address = ":0" } }\n')
     rf = load_runfile(path)
     assert rf.cluster["jobs"] == 4 and rf.cluster["processes"] == 8
-    with jobqueue_cluster(rf.cluster) as cluster:
+    with jobqueue_cluster(rf.cluster, directives=("--exclusive",)) as cluster:  # --job-directive on the command line
         script = cluster.job_script()
     for line in ("#SBATCH -p short", "#SBATCH -A plasma", "#SBATCH --cpus-per-task=8", "#SBATCH -t 02:00:00",
                  "#SBATCH --exclusive"):
