@@ -178,6 +178,11 @@ class _Run:
             ex, ey, ez, _ = KG.unit_field(self.geo, *start)
             direction = -np.sign(v0) * np.array([ex, ey, ez]) / max(math.sqrt(ex * ex + ey * ey + ez * ez), 1e-300)
         self.start, self.direction = start, direction
+        n = direction / np.linalg.norm(direction)
+        helper = np.array([1.0, 0.0, 0.0]) if abs(n[0]) < 0.9 else np.array([0.0, 1.0, 0.0])
+        e1 = np.cross(n, helper)
+        e1 /= np.linalg.norm(e1)
+        self.basis = (n, e1, np.cross(n, e1))
         # maps: slot 0 = electrons created, then one per excitation and ionization process
         self.map_names = ["created"]
         slots = []
@@ -214,11 +219,7 @@ class _Run:
         cos_t = 1.0 - 2.0 * gen.random() if self.settings.initial_direction == "isotropic" else 1.0 - gen.random()
         phi = 2.0 * math.pi * gen.random()
         sin_t = math.sqrt(max(0.0, 1.0 - cos_t * cos_t))
-        n = self.direction / np.linalg.norm(self.direction)
-        helper = np.array([1.0, 0.0, 0.0]) if abs(n[0]) < 0.9 else np.array([0.0, 1.0, 0.0])
-        e1 = np.cross(n, helper)
-        e1 /= np.linalg.norm(e1)
-        e2 = np.cross(n, e1)
+        n, e1, e2 = self.basis
         return speed * (cos_t * n + sin_t * (math.cos(phi) * e1 + math.sin(phi) * e2))
 
     def run_batch(self, primaries: np.ndarray, cap: int, bins: int, map_bins: int, samples: int,

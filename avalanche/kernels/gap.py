@@ -184,9 +184,8 @@ def _map_vector(code, params, arr, x, y, z):
 
 
 @jit
-def unit_field(geometry, x, y, z):
-    """The field E₁ [V/m per V] at (x, y, z) [m] for +1 V on the driven electrode, and the gradient length [m]."""
-    code, params, field, weight, potential, mask = geometry
+def analytic_field(code, params, x, y, z):
+    """E₁ [V/m per V] and the gradient length [m] of an analytic geometry (code < MAP_RZ) at (x, y, z) [m]."""
     if code == PLATES:
         return 0.0, 0.0, -1.0 / params[0], math.inf
     if code == COAXIAL:
@@ -198,20 +197,33 @@ def unit_field(geometry, x, y, z):
         r = math.sqrt(r2)
         s = params[0] * params[1] / ((params[1] - params[0]) * r2 * r)
         return s * x, s * y, s * z, 0.5 * r
-    if code == POINT_PLANE:
-        c = params[2]
-        rho2 = x * x + y * y
-        r_minus = math.sqrt(rho2 + (z + c) * (z + c))
-        r_plus = math.sqrt(rho2 + (z - c) * (z - c))
-        eta = (r_minus - r_plus) / (2.0 * c)
-        # E = −∇φ = −∇η / ((1 − η²) artanh η₀), ∇η = (∇r₋ − ∇r₊)/(2c)
-        s = -1.0 / ((1.0 - eta * eta) * params[4] * 2.0 * c)
-        gx = x / r_minus - x / r_plus
-        gy = y / r_minus - y / r_plus
-        gz = (z + c) / r_minus - (z - c) / r_plus
-        return s * gx, s * gy, s * gz, 0.5 * r_plus
+    c = params[2]
+    rho2 = x * x + y * y
+    r_minus = math.sqrt(rho2 + (z + c) * (z + c))
+    r_plus = math.sqrt(rho2 + (z - c) * (z - c))
+    eta = (r_minus - r_plus) / (2.0 * c)
+    # E = −∇φ = −∇η / ((1 − η²) artanh η₀), ∇η = (∇r₋ − ∇r₊)/(2c)
+    s = -1.0 / ((1.0 - eta * eta) * params[4] * 2.0 * c)
+    gx = x / r_minus - x / r_plus
+    gy = y / r_minus - y / r_plus
+    gz = (z + c) / r_minus - (z - c) / r_plus
+    return s * gx, s * gy, s * gz, 0.5 * r_plus
+
+
+@jit
+def map_field(geometry, x, y, z):
+    """E₁ [V/m per V] interpolated from a field map, and the gradient length (the smallest grid spacing) [m]."""
+    code, params, field, weight, potential, mask = geometry
     ex, ey, ez = _map_vector(code, params, field, x, y, z)
     return ex, ey, ez, min(params[3], params[4]) if code == MAP_RZ else min(params[3], min(params[4], params[5]))
+
+
+@jit
+def unit_field(geometry, x, y, z):
+    """The field E₁ [V/m per V] at (x, y, z) [m] for +1 V on the driven electrode, and the gradient length [m]."""
+    if geometry[0] < MAP_RZ:
+        return analytic_field(geometry[0], geometry[1], x, y, z)
+    return map_field(geometry, x, y, z)
 
 
 @jit
@@ -247,9 +259,8 @@ def weighting_potential(geometry, x, y, z):
 
 
 @jit
-def region(geometry, x, y, z):
-    """GAS, DRIVEN or GROUNDED (inside that electrode), or OUTSIDE a map, for the point (x, y, z)."""
-    code, params, field, weight, potential, mask = geometry
+def analytic_region(code, params, x, y, z):
+    """GAS, DRIVEN or GROUNDED for the point (x, y, z) of an analytic geometry."""
     if code == PLATES:
         if z <= 0.0:
             return GROUNDED
@@ -259,13 +270,18 @@ def region(geometry, x, y, z):
         if r2 <= params[0] * params[0]:
             return DRIVEN
         return GROUNDED if r2 >= params[1] * params[1] else GAS
-    if code == POINT_PLANE:
-        if z <= 0.0:
-            return GROUNDED
-        c = params[2]
-        rho2 = x * x + y * y
-        eta = (math.sqrt(rho2 + (z + c) * (z + c)) - math.sqrt(rho2 + (z - c) * (z - c))) / (2.0 * c)
-        return DRIVEN if eta >= params[3] else GAS
+    if z <= 0.0:
+        return GROUNDED
+    c = params[2]
+    rho2 = x * x + y * y
+    eta = (math.sqrt(rho2 + (z + c) * (z + c)) - math.sqrt(rho2 + (z - c) * (z - c))) / (2.0 * c)
+    return DRIVEN if eta >= params[3] else GAS
+
+
+@jit
+def map_region(geometry, x, y, z):
+    """GAS, DRIVEN, GROUNDED (nearest node of the mask) or OUTSIDE the map, for the point (x, y, z)."""
+    code, params, field, weight, potential, mask = geometry
     c0, c1, c2, rho = _map_coordinates(code, params, x, y, z)
     u0 = (c0 - params[0]) / params[3]
     u1 = (c1 - params[1]) / params[4]
@@ -277,6 +293,14 @@ def region(geometry, x, y, z):
         return OUTSIDE
     label = mask[int(u0 + 0.5), int(u1 + 0.5), int(u2 + 0.5)]
     return GAS if label == 0 else (DRIVEN if label == 1 else GROUNDED)
+
+
+@jit
+def region(geometry, x, y, z):
+    """GAS, DRIVEN or GROUNDED (inside that electrode), or OUTSIDE a map, for the point (x, y, z)."""
+    if geometry[0] < MAP_RZ:
+        return analytic_region(geometry[0], geometry[1], x, y, z)
+    return map_region(geometry, x, y, z)
 
 
 @jit
@@ -372,6 +396,11 @@ def _slice_row(r, state, rng, weights, geometry, drive, gas, control, tallies):
     bin_width = control[CONTROL_BIN_WIDTH]
     t_origin = control[CONTROL_T_ORIGIN]
     code = geometry[0]
+    params = geometry[1]
+    const_voltage = drive[1] == 0.0 and drive[5].shape[0] == 0
+    v_const = drive[0]
+    steps = 0
+    events = 0
     w = weights[r]
     inv_nu_star = 1.0 / nu_star
     top_energy = 0.0
@@ -387,11 +416,25 @@ def _slice_row(r, state, rng, weights, geometry, drive, gas, control, tallies):
         uy = vy[r, i]
         uz = vz[r, i]
         t = pt[r, i]
-        ax, ay, az, length = acceleration(geometry, drive, x, y, z, t)
+        volts = v_const if const_voltage else voltage(drive, t)
         if code < MAP_RZ:
-            wx, wy, wz, unused = unit_field(geometry, x, y, z)
+            ex, ey, ez, length = analytic_field(code, params, x, y, z)
+        else:
+            ex, ey, ez, length = map_field(geometry, x, y, z)
+        ax = -CHARGE_PER_MASS * volts * ex
+        ay = -CHARGE_PER_MASS * volts * ey
+        az = -CHARGE_PER_MASS * volts * ez
+        if code < MAP_RZ:
+            wx = ex
+            wy = ey
+            wz = ez
         else:
             wx, wy, wz = weighting_field(geometry, x, y, z)
+        # induced charge [C/weight] gathered in a local sum for the time bin of the current step (flushed when the
+        # bin changes and when the electron's slice ends)
+        b = _time_bin(t, t_origin, bin_width, n_bins)
+        bin_end = t_origin + (b + 1) * bin_width
+        charge = 0.0
         fate = GAS
         while True:
             u, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
@@ -402,9 +445,13 @@ def _slice_row(r, state, rng, weights, geometry, drive, gas, control, tallies):
                 at_end = True
             # ---- velocity Verlet through the non-uniform field up to t_flight
             while t < t_flight:
-                speed = math.sqrt(ux * ux + uy * uy + uz * uz)
-                a_abs = math.sqrt(ax * ax + ay * ay + az * az)
-                h = min(t_flight - t, min(step_limit(speed, a_abs, length, kappa), max_step))
+                h = t_flight - t
+                if length < math.inf:
+                    speed = math.sqrt(ux * ux + uy * uy + uz * uz)
+                    a_abs = math.sqrt(ax * ax + ay * ay + az * az)
+                    h = min(h, step_limit(speed, a_abs, length, kappa))
+                if h > max_step:
+                    h = max_step
                 hx = ux + 0.5 * h * ax
                 hy = uy + 0.5 * h * ay
                 hz = uz + 0.5 * h * az
@@ -412,9 +459,14 @@ def _slice_row(r, state, rng, weights, geometry, drive, gas, control, tallies):
                 ny = y + h * hy
                 nz = z + h * hz
                 t_new = t_flight if h == t_flight - t else t + h
-                counts[r, COUNT_STEPS] += 1
-                where = region(geometry, nx, ny, nz)
-                b = _time_bin(t + 0.5 * h, t_origin, bin_width, n_bins)
+                steps += 1
+                if t >= bin_end:
+                    current[r, b] -= w * ELEMENTARY_CHARGE_C * charge
+                    charge = 0.0
+                    b = _time_bin(t, t_origin, bin_width, n_bins)
+                    bin_end = t_origin + (b + 1) * bin_width if b < n_bins - 1 else math.inf
+                where = analytic_region(code, params, nx, ny, nz) if code < MAP_RZ else map_region(geometry, nx, ny,
+                                                                                                  nz)
                 if where != GAS:
                     # the step ends inside an electrode: the surface crossing by bisection along the chord, and
                     # the left-point rule for the induced charge of the part in the gas
@@ -422,20 +474,28 @@ def _slice_row(r, state, rng, weights, geometry, drive, gas, control, tallies):
                     nx = x + lam * (nx - x)
                     ny = y + lam * (ny - y)
                     nz = z + lam * (nz - z)
-                    current[r, b] -= w * ELEMENTARY_CHARGE_C * (wx * (nx - x) + wy * (ny - y) + wz * (nz - z))
+                    charge += wx * (nx - x) + wy * (ny - y) + wz * (nz - z)
                     fate = where
                     x = nx
                     y = ny
                     z = nz
                     t = t + lam * h
                     break
-                ax1, ay1, az1, length = acceleration(geometry, drive, nx, ny, nz, t_new)
+                volts = v_const if const_voltage else voltage(drive, t_new)
                 if code < MAP_RZ:
-                    wx1, wy1, wz1, unused = unit_field(geometry, nx, ny, nz)
+                    ex, ey, ez, length = analytic_field(code, params, nx, ny, nz)
+                else:
+                    ex, ey, ez, length = map_field(geometry, nx, ny, nz)
+                ax1 = -CHARGE_PER_MASS * volts * ex
+                ay1 = -CHARGE_PER_MASS * volts * ey
+                az1 = -CHARGE_PER_MASS * volts * ez
+                if code < MAP_RZ:
+                    wx1 = ex
+                    wy1 = ey
+                    wz1 = ez
                 else:
                     wx1, wy1, wz1 = weighting_field(geometry, nx, ny, nz)
-                current[r, b] -= w * ELEMENTARY_CHARGE_C * 0.5 * ((wx + wx1) * (nx - x) + (wy + wy1) * (ny - y)
-                                                                  + (wz + wz1) * (nz - z))
+                charge += 0.5 * ((wx + wx1) * (nx - x) + (wy + wy1) * (ny - y) + (wz + wz1) * (nz - z))
                 ux = hx + 0.5 * h * ax1
                 uy = hy + 0.5 * h * ay1
                 uz = hz + 0.5 * h * az1
@@ -461,7 +521,7 @@ def _slice_row(r, state, rng, weights, geometry, drive, gas, control, tallies):
             if e_cell >= n_cells:
                 status = 1
                 break
-            counts[r, COUNT_EVENTS] += 1
+            events += 1
             u, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
             level = u * nu_star
             c = int(e_cell)
@@ -508,6 +568,7 @@ def _slice_row(r, state, rng, weights, geometry, drive, gas, control, tallies):
                 _map_add(maps, r, 0, x, y, z, control, w)
                 if child == CHILD_PENNING:
                     process_counts[r, penning_slot[k]] += 1
+        current[r, b] -= w * ELEMENTARY_CHARGE_C * charge
         if status != 0:
             break
         if fate == GAS:
@@ -535,6 +596,8 @@ def _slice_row(r, state, rng, weights, geometry, drive, gas, control, tallies):
                     sample_count[r] = m + 1
         i += 1
     count[r] = alive
+    counts[r, COUNT_EVENTS] = events
+    counts[r, COUNT_STEPS] = steps
     counts[r, COUNT_ABOVE_GRID] = 1 if status == 1 else 0
     counts[r, COUNT_OVERFLOW] = 1 if status == 2 else 0
     counts[r, COUNT_UNKNOWN_ACTION] = 1 if status == 3 else 0
