@@ -10,7 +10,6 @@ from .gas.crosssections import CrossSectionSet, Process, load_set, make_set, pro
 from .gas.library import available_gases, get_set, model_gas, named_mixture
 from .gas.mixture import Mixture
 
-
 _GAPS = ("gap", "ParallelPlates", "Coaxial", "ConcentricSpheres", "PointPlane", "FieldMap")
 
 

@@ -37,7 +37,7 @@ from .._version import __version__
 from ..constants import ELEMENTARY_CHARGE_C, TOWNSEND_V_m2
 from ..engine.drive import make_drive
 from ..engine.results import Estimate
-from ..engine.tables import EnergyGrid, ProcessTable, SCATTERING_MODELS, SHARING_RULES
+from ..engine.tables import SCATTERING_MODELS, SHARING_RULES, EnergyGrid, ProcessTable
 from ..errors import AvalancheError, ConfigError
 from ..gas.crosssections import _did_you_mean
 from ..gas.mixture import Mixture
@@ -150,7 +150,7 @@ class _Run:
         self.voltage_V = voltage_V
         self.geo = geometry.kernel_geometry()
         self.table = ProcessTable.build(mixture, settings.sharing, settings.scattering)
-        self.grid = EnergyGrid.build(self.table, max(20.0 * settings.initial_energy_eV, 50.0), settings.energy_cells)
+        self.grid = EnergyGrid.build(self.table, max(4.0 * settings.initial_energy_eV, 30.0), settings.energy_cells)
         self.drive_obj = None
         empty = np.zeros(0)
         if settings.frequency_Hz:
