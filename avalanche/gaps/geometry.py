@@ -302,7 +302,8 @@ class FieldMap(Geometry):
         ``weighting_field``, ``weighting_potential``, ``potential``, with the scalars (npz entries or HDF5 root
         attributes) ``kind`` ('rz' or 'xyz'), ``voltage_V``, ``length_unit`` (one of :data:`LENGTH_UNITS`) and
         ``field_unit`` (one of :data:`FIELD_UNITS`; potentials are in volts). A CSV file starts
-        with a line ``# kind=rz length_unit=mm field_unit=V/m voltage_V=1000`` and has the header ``r,z,Er,Ez,mask`` (or ``x,y,z,Ex,Ey,Ez,mask``), optionally followed by
+        with a line ``# kind=rz length_unit=mm field_unit=V/m voltage_V=1000`` and has the header
+        ``r,z,Er,Ez,mask`` (or ``x,y,z,Ex,Ey,Ez,mask``), optionally followed by
         ``potential`` and the weighting columns ``Wr,Wz`` (``Wx,Wy,Wz``) and ``weighting_potential``; its nodes
         must fill a regular grid.
 
