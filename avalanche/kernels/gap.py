@@ -304,14 +304,15 @@ def region(geometry, x, y, z):
 
 
 @jit
-def surface_fraction(geometry, x0, y0, z0, x1, y1, z1):
-    """The fraction λ of the chord from a gas point to a point in an electrode where it enters the electrode
-    (bisection to 2⁻⁴⁰ of the chord)."""
+def surface_time(geometry, x, y, z, ux, uy, uz, ax, ay, az, h):
+    """The time s ∈ (0, h] [s] at which the path x + u s + a s²/2 (velocity u [m/s], acceleration a [m/s²] at the
+    step's start) from a gas point enters an electrode it reaches within h (bisection to 2⁻⁴⁰ h)."""
     low = 0.0
-    high = 1.0
+    high = h
     for _ in range(40):
         mid = 0.5 * (low + high)
-        if region(geometry, x0 + mid * (x1 - x0), y0 + mid * (y1 - y0), z0 + mid * (z1 - z0)) == GAS:
+        q = 0.5 * mid * mid
+        if region(geometry, x + ux * mid + ax * q, y + uy * mid + ay * q, z + uz * mid + az * q) == GAS:
             low = mid
         else:
             high = mid
@@ -468,18 +469,18 @@ def _slice_row(r, state, rng, weights, geometry, drive, gas, control, tallies):
                 where = analytic_region(code, params, nx, ny, nz) if code < MAP_RZ else map_region(geometry, nx, ny,
                                                                                                   nz)
                 if where != GAS:
-                    # the step ends inside an electrode: the surface crossing by bisection along the chord, and
-                    # the left-point rule for the induced charge of the part in the gas
-                    lam = surface_fraction(geometry, x, y, z, nx, ny, nz)
-                    nx = x + lam * (nx - x)
-                    ny = y + lam * (ny - y)
-                    nz = z + lam * (nz - z)
+                    # the step ends inside an electrode: the crossing by bisection on the step's parabola, and the
+                    # left-point rule for the induced charge of the part in the gas
+                    h = surface_time(geometry, x, y, z, ux, uy, uz, ax, ay, az, h)
+                    nx = x + h * (ux + 0.5 * h * ax)
+                    ny = y + h * (uy + 0.5 * h * ay)
+                    nz = z + h * (uz + 0.5 * h * az)
                     charge += wx * (nx - x) + wy * (ny - y) + wz * (nz - z)
                     fate = where
                     x = nx
                     y = ny
                     z = nz
-                    t = t + lam * h
+                    t = t + h
                     break
                 volts = v_const if const_voltage else voltage(drive, t_new)
                 if code < MAP_RZ:
