@@ -170,8 +170,9 @@ class _Run:
             raise ConfigError(f"gap(): the voltage is 0 at start_time_s = {settings.start_time_s:g} s; electrons "
                               "would not drift (choose another start time or a nonzero voltage)")
         self.v0 = v0
-        start, direction = geometry.emitter(v0 > 0)
-        if settings.start_position_m is not None:
+        if settings.start_position_m is None:
+            start, direction = geometry.emitter(v0 > 0)
+        else:
             start = np.asarray(settings.start_position_m, dtype=float)
             if KG.region(self.geo, *start) != KG.GAS:
                 raise ConfigError(f"gap(): start_position_m = {list(start)} is not in the gas of {geometry!r}")
