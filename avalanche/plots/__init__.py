@@ -1,6 +1,6 @@
 """Figures drawn from tables read out of results files (never from live workers): swarm parameters, EEDFs, AC
-phase panels, steady-state Townsend profiles (``swarm``), Paschen curves and emission (``breakdown``), avalanches in gaps
-(``gap``); the shared style and :func:`save_figure` (``style``). May import ``analysis``, ``gaps`` and the layers
+phase panels, steady-state Townsend profiles (``swarm``), Paschen curves and emission (``breakdown``), avalanches in
+gaps (``gap``); the shared style and :func:`save_figure` (``style``). May import ``analysis``, ``gaps`` and the layers
 below them.
 """
 
