@@ -1,7 +1,7 @@
 """avalanche: electron swarm parameters in gases by Monte Carlo simulation (null-collision method).
 
 Public entry points: :class:`Mixture`, :func:`get_set`, :func:`model_gas`, :func:`load_set`, :func:`swarm`,
-:func:`townsend`.
+:func:`townsend`, :func:`gap` (avalanches in electrode gaps).
 """
 
 from ._version import __version__
@@ -9,6 +9,8 @@ from .errors import AvalancheError, ConfigError, CrossSectionError, PhysicsWarni
 from .gas.crosssections import CrossSectionSet, Process, load_set, make_set, process_from_table, save_set
 from .gas.library import available_gases, get_set, model_gas, named_mixture
 from .gas.mixture import Mixture
+
+_GAPS = ("gap", "ParallelPlates", "Coaxial", "ConcentricSpheres", "PointPlane", "FieldMap")
 
 
 def __getattr__(name):
@@ -21,6 +23,10 @@ def __getattr__(name):
         from .engine.townsend import townsend
 
         return townsend
+    if name in _GAPS:
+        from . import gaps
+
+        return getattr(gaps, name)
     if name == "open_results":
         from .store.sweep_file import open_results
 
@@ -36,5 +42,5 @@ __all__ = [
     "__version__", "AvalancheError", "ConfigError", "CrossSectionError", "PhysicsWarning",
     "CrossSectionSet", "Process", "load_set", "save_set", "make_set", "process_from_table",
     "available_gases", "get_set", "model_gas", "named_mixture", "Mixture", "swarm", "townsend", "open_results",
-    "run_sweep",
+    "run_sweep", "gap", "ParallelPlates", "Coaxial", "ConcentricSpheres", "PointPlane", "FieldMap",
 ]

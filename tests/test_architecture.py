@@ -19,12 +19,13 @@ ALLOWED = {
     "kernels": {"constants"},
     "gas": {"constants", "errors", "_version"},
     "engine": {"kernels", "gas"} | BASE,
-    "store": {"engine", "gas"} | BASE,
+    "gaps": {"kernels", "gas", "engine"} | BASE,
+    "store": {"gaps", "engine", "gas"} | BASE,
     "sweep": {"store", "engine", "gas"} | BASE,
     "analysis": {"store", "engine", "gas"} | BASE,
-    "plots": {"analysis", "store", "engine", "gas"} | BASE,
-    "cli": {"sweep", "analysis", "plots", "store", "engine", "gas", "kernels"} | BASE,
-    "root": {"gas", "engine", "store", "sweep", "cli"} | BASE,
+    "plots": {"analysis", "store", "gaps", "engine", "gas"} | BASE,
+    "cli": {"sweep", "analysis", "plots", "store", "gaps", "engine", "gas", "kernels"} | BASE,
+    "root": {"gas", "engine", "gaps", "store", "sweep", "cli"} | BASE,
 }
 """Layer → the layers it may import (besides itself)."""
 

@@ -12,10 +12,11 @@ from collections.abc import Sequence
 
 from .. import __version__
 from ..errors import AvalancheError
-from . import breakdown, library, outputs, point, sweep  # noqa: F401  (importing a command module registers it)
+from . import breakdown, gap, library, outputs, point, sweep  # noqa: F401  (importing a command module registers it)
 from .registry import _COMMANDS, SAFETY_NOTE, command
 
-COMMAND_ORDER = ("gases", "check", "swarm", "townsend", "sweep", "plot", "table", "breakdown", "emission", "demo")
+COMMAND_ORDER = ("gases", "check", "swarm", "townsend", "sweep", "plot", "table", "breakdown", "emission", "gap",
+                 "demo")
 """The order of the commands in ``avalanche --help``: library, one point, sweeps, outputs, the demo."""
 
 

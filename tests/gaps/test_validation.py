@@ -1,0 +1,178 @@
+"""Avalanches in gaps against outside references: the Townsend growth law, the Furry distribution, the
+Shockley–Ramo charge balance and the quasi-static AC limit.
+
+The model gas is the Lucas–Saelee ionization model (Lucas J & Saelee H T 1975, J. Phys. D 8 640; constant elastic
+collision frequency, linear excitation and ionization ramps from 15.6 eV; cold gas), where every check is exact in
+its limit and runs in seconds.
+"""
+
+from __future__ import annotations
+
+import math
+import warnings
+
+import numpy as np
+import pytest
+from scipy import stats
+
+import avalanche as av
+from avalanche import Mixture, model_gas
+from avalanche.constants import ELEMENTARY_CHARGE_C, TOWNSEND_V_m2
+
+N_m3 = 1e25
+
+
+def lucas_saelee(F=0.5):
+    return Mixture({"lucas-saelee": 1.0}, number_density_m3=N_m3, temperature_K=0,
+                   sets={"lucas-saelee": model_gas("lucas-saelee", F=F)})
+
+
+def plate_voltage(reduced_field_Td, gap_m):
+    return reduced_field_Td * TOWNSEND_V_m2 * N_m3 * gap_m
+
+
+@pytest.mark.slow
+def test_townsend_growth_law_between_plates():
+    # Townsend J S (1910) The Theory of Ionization of Gases by Collision (Constable): between plates at fixed E/N
+    # the mean number of electrons grows as exp((α − η) d) once the electrons have relaxed, so the slope of
+    # ln(mean gain) against d is the steady-state Townsend α − η of the same gas and E/N (avalanche.townsend,
+    # standard error ~0.3 %). Tolerance 3 % (the issue's), about 3 standard errors of the fitted slope here.
+    en = 200.0
+    mixture = lucas_saelee()
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", av.PhysicsWarning)
+        reference = av.townsend(mixture, en, precision=0.005, sharing="uniform", seed=3)
+    alpha_eff = reference.effective_alpha_N.value * N_m3
+    gaps = np.array([60e-6, 110e-6, 160e-6])
+    primaries = (1500, 1000, 700)
+    means, errors = [], []
+    for k, (d, n) in enumerate(zip(gaps, primaries, strict=True)):
+        r = av.gap(av.ParallelPlates(d), mixture, plate_voltage(en, d), primaries=n, seed=k, sharing="uniform",
+                   local_field=False)
+        means.append(r.mean_gain.value)
+        errors.append(r.mean_gain.relative_stderr)
+    y, w = np.log(means), 1.0 / np.square(errors)
+    slope, offset = np.polyfit(gaps, y, 1, w=np.sqrt(w))
+    equilibration_m = -offset / slope  # where the fitted line crosses ln(gain) = 0: the relaxation offset
+    print(f"slope {slope:.5g} /m vs SST alpha_eff {alpha_eff:.5g} /m; equilibration offset {equilibration_m:.3g} m")
+    assert slope == pytest.approx(alpha_eff, rel=0.03)
+    assert 0 < equilibration_m < gaps[0]
+
+
+def furry_chi2(gains, minimum_expected=5.0):
+    """χ² of integer gains against the geometric law P(n) = (1/n̄)(1 − 1/n̄)^(n−1) with n̄ the sample mean (bins
+    n = 1, 2, ... merged from the top so that each expects at least ``minimum_expected``); returns (χ², dof)."""
+    n = np.rint(gains).astype(int)
+    mean = n.mean()
+    p = 1.0 / mean
+    top = int(math.floor(math.log(minimum_expected / (n.size * p)) / math.log(1 - p))) + 1
+    edges = np.arange(1, top + 1)
+    expected = n.size * p * (1 - p) ** (edges - 1)
+    observed = np.array([np.sum(n == k) for k in edges], float)
+    expected = np.append(expected, n.size * (1 - p) ** top)
+    observed = np.append(observed, np.sum(n > top))
+    return float(np.sum((observed - expected) ** 2 / expected)), expected.size - 2
+
+
+@pytest.mark.slow
+def test_furry_distribution_between_plates():
+    # Furry W H (1937) Phys. Rev. 52 569; Legler W (1955) Z. Naturforsch. A 10 1 (from memory): when the chance to
+    # ionize does not depend on the electron's history, the avalanche from one electron has the geometric size
+    # distribution P(n) = (1/n̄)(1 − 1/n̄)^(n−1). Legler's correction is of order α U_i/E; with F = 0.02 only one
+    # inelastic event in 50 ionizes, α U_i/E ≈ 0.02 and the ionizations are a thinned, nearly memoryless sequence.
+    # The primaries start in equilibrium: isotropic, with the swarm's mean energy, 20 µm into the gap. χ² test at
+    # the 1 % level (fixed seed).
+    en, z0 = 200.0, 20e-6
+    mixture = lucas_saelee(F=0.02)
+    mean_energy = 14.28  # eV: avalanche.swarm of this gas at 200 Td (0.05 % standard error)
+    alpha = 2.51e-22 * N_m3  # 1/m: the same run's α/N (0.7 %)
+    d = z0 + math.log(6.0) / alpha
+    r = av.gap(av.ParallelPlates(d), mixture, plate_voltage(en, d), primaries=1200, seed=11, sharing="uniform",
+               local_field=False, initial_energy_eV=mean_energy, initial_direction="isotropic",
+               start_position_m=(0.0, 0.0, z0))
+    gains = r.gain_distribution.per_primary
+    assert not r.gain_distribution.controlled.any()
+    chi2, dof = furry_chi2(gains)
+    print(f"n_mean {gains.mean():.4g}, chi2 {chi2:.4g} for {dof} dof, Polya theta {r.polya_theta}")
+    assert stats.chi2.sf(chi2, dof) > 0.01
+
+
+def test_furry_chi2_rejects_a_narrow_distribution():
+    # the χ² check can fail: Pólya gains with θ = 1 (half the relative variance of Furry's) are rejected
+    gen = np.random.default_rng(5)
+    gains = np.maximum(1, np.rint(gen.gamma(2.0, 3.0, 1200)))
+    chi2, dof = furry_chi2(gains)
+    assert stats.chi2.sf(chi2, dof) < 1e-3
+    geometric = gen.geometric(1 / 6.0, 1200)
+    chi2, dof = furry_chi2(geometric)
+    assert stats.chi2.sf(chi2, dof) > 0.01
+
+
+def test_induced_charge_balance_in_the_coaxial_gap():
+    # Shockley W (1938) J. Appl. Phys. 9 635; Ramo S (1939) Proc. IRE 27 584: the charge induced on an electrode by
+    # a moving charge q is −q φ_w, so ∫ I dt over the run equals e Σ (φ_w(end) − φ_w(start)) over the electrons
+    # (arrival at the wire counts φ_w = 1, at the tube 0; created electrons start where they are born), and the
+    # tube carries the opposite. The current is a quadrature of E_w · dx along the Verlet steps, the balance an
+    # exact difference of potentials: they agree to the integrator's accuracy.
+    mixture = lucas_saelee()
+    a, b = 50e-6, 2e-3
+    V = 200 * TOWNSEND_V_m2 * N_m3 * a * math.log(b / a)
+    r = av.gap(av.Coaxial(a, b), mixture, V, primaries=40, seed=2, sharing="uniform", local_field=False,
+               start_position_m=(3.0 * a, 0.0, 0.0))
+    balance = r.charge_balance
+    assert r.mean_gain.value > 2
+    assert balance["induced_driven_C"] == pytest.approx(balance["expected_driven_C"], rel=1e-3)
+    assert balance["induced_grounded_C"] == pytest.approx(balance["expected_grounded_C"], rel=1e-3)
+    # and the whole charge reaches the wire: expected ≈ e × (electrons collected − Σ φ_w at birth) > 0
+    assert 0 < balance["expected_driven_C"] < ELEMENTARY_CHARGE_C * r.mean_collected["driven"].value
+    assert np.sum(r.current["charge_C"]) == pytest.approx(balance["induced_driven_C"], rel=1e-12)
+
+
+def test_ac_gain_at_a_phase_equals_the_dc_gain():
+    # Quasi-static limit (common practice): when the transit time (~0.1 ns here) is a tiny fraction of the period
+    # (1 µs), electrons released at phase φ see the constant voltage V0 sin φ, so the mean gain equals the DC gain
+    # at that voltage within the runs' standard errors (3 σ).
+    mixture = lucas_saelee()
+    d = 60e-6
+    peak = plate_voltage(250.0, d)
+    f = 1e6
+    phase = math.radians(53.0)
+    ac = av.gap(av.ParallelPlates(d), mixture, peak, primaries=400, seed=4, sharing="uniform", local_field=False,
+                frequency_Hz=f, start_time_s=phase / (2 * math.pi * f))
+    dc = av.gap(av.ParallelPlates(d), mixture, peak * math.sin(phase), primaries=400, seed=5, sharing="uniform",
+                local_field=False)
+    full = av.gap(av.ParallelPlates(d), mixture, peak, primaries=400, seed=6, sharing="uniform", local_field=False)
+    sigma = math.hypot(ac.mean_gain.stderr, dc.mean_gain.stderr)
+    assert abs(ac.mean_gain.value - dc.mean_gain.value) < 3 * sigma
+    assert full.mean_gain.value > dc.mean_gain.value + 3 * math.hypot(full.mean_gain.stderr, dc.mean_gain.stderr)
+
+
+@pytest.mark.slow
+def test_coaxial_gain_against_the_local_field_integral():
+    # Local-field approximation (Townsend 1910 growth law along the field line, common practice for counters, e.g.
+    # Raizer Y P 1991 Gas Discharge Physics §4 — from memory): with a thick wire (gradient length r ≳ 0.5 mm, far
+    # above the ~20 µm energy relaxation length of argon at 100–150 Td) the gain is exp(∫ α dr) within 10 % (the
+    # issue's tolerance; the α table of avalanche.swarm at 1 % precision adds ~3 % to exp(∫ α dr) here). With a
+    # thin wire (a = 10 µm, the same E/N at the wire and at the start) the ratio departs from 1; non-local theory
+    # expects it below 1 (electrons lag a rising field). Electrons start isotropic with 5 eV where E/N = 75 Td,
+    # below the ionization region, and relax on the way in.
+    from avalanche.gaps.local_field import alpha_table_from_swarm
+
+    mixture = av.Mixture("Ar")
+    N = mixture.number_density_m3
+    en_wire, en_start = 120.0, 75.0
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", av.PhysicsWarning)
+        table = alpha_table_from_swarm(mixture, (en_start, en_wire), seed=1, precision=0.01)
+    ratios = {}
+    for name, a, b, primaries in (("thick", 0.5e-3, 5e-3, 150), ("thin", 10e-6, 5e-3, 300)):
+        V = en_wire * TOWNSEND_V_m2 * N * a * math.log(b / a)
+        r0 = a * en_wire / en_start
+        r = av.gap(av.Coaxial(a, b), mixture, V, primaries=primaries, seed=7, start_position_m=(r0, 0.0, 0.0),
+                   initial_energy_eV=5.0, initial_direction="isotropic", alpha_table=table)
+        ratios[name] = r.local_field_ratio
+        print(f"{name} wire: gain {r.mean_gain}, local-field gain {r.local_field_gain:.4g}, ratio "
+              f"{r.local_field_ratio}")
+    thick, thin = ratios["thick"], ratios["thin"]
+    assert abs(thick.value - 1.0) < 0.10 + 2 * thick.stderr
+    assert abs(thin.value - 1.0) > 3 * thin.stderr  # departs from 1; its direction is reported (README)
