@@ -65,7 +65,12 @@ class Mixture:
     number_density_m3 : float, optional
         Total number density N [m⁻³]; overrides the pressure.
     sets : mapping, optional
-        Cross-section sets to use for some species instead of the library's (e.g. model gases with parameters).
+        Cross-section sets to use for some species instead of the library's default: a
+        :class:`~avalanche.gas.crosssections.CrossSectionSet` (e.g. a model gas with parameters) or the name of a
+        shipped alternative (``sets={"N2": "itikawa"}`` is the same as the species spelling ``"N2@itikawa"``).
+    vibrational_temperature_K : float, optional
+        Temperature [K] of the vibrational level populations of sets with superelastic vibrational pairs
+        (a thermally excited gas); default the gas temperature. Rotational levels follow ``temperature_K``.
     penning : mapping, optional
         Penning transfer: level group → transfer probability r in [0, 1] (default none), e.g. ``{"Ne": 0.3}`` (every
         neon level above the receiver's ionization energy) or ``{"Ne:1s": 0.2, "Ne:2p->Ar": 0.5}`` (levels whose
@@ -80,8 +85,8 @@ class Mixture:
     """
 
     def __init__(self, composition, temperature_K: float = 300.0, pressure_Pa: float | None = None,
-                 number_density_m3: float | None = None, sets: Mapping[str, CrossSectionSet] | None = None,
-                 penning: Mapping[str, float] | None = None):
+                 number_density_m3: float | None = None, sets: Mapping[str, CrossSectionSet | str] | None = None,
+                 penning: Mapping[str, float] | None = None, vibrational_temperature_K: float | None = None):
         if isinstance(composition, str):
             composition = parse_composition(composition)
         if not isinstance(composition, Mapping) or not composition:
@@ -114,6 +119,8 @@ class Mixture:
             if fraction == 0:
                 continue
             xs = sets.get(name) if name in sets else None
+            if isinstance(xs, str):
+                name, xs = f"{name}@{xs}", None
             if xs is None:
                 try:
                     xs = get_set(str(name))
@@ -127,6 +134,13 @@ class Mixture:
                               f"{FRACTION_TOLERANCE:g}); adjust them so they add up to 1")
         self.components: tuple[Component, ...] = tuple(components)
         self.temperature_K = temperature_K
+        if vibrational_temperature_K is not None:
+            vibrational_temperature_K = self._number("vibrational_temperature_K", vibrational_temperature_K)
+            if vibrational_temperature_K < 0:
+                raise ConfigError(f"vibrational_temperature_K = {vibrational_temperature_K} is negative")
+        self.vibrational_temperature_K = temperature_K if vibrational_temperature_K is None \
+            else vibrational_temperature_K
+        """Temperature [K] of the vibrational level populations (default: the gas temperature)."""
         self.number_density_m3 = density
         self.pressure_Pa = pressure_Pa if number_density_m3 is None else None
         self.penning_channels: tuple[PenningChannel, ...] = penning_channels(penning, self.components)
@@ -157,6 +171,8 @@ class Mixture:
         out = {"composition": {c.name: c.fraction for c in self.components},
                "temperature_K": self.temperature_K, "number_density_m3": self.number_density_m3,
                "pressure_Pa": self.pressure_Pa, "checksums": self.checksums()}
+        if self.vibrational_temperature_K != self.temperature_K:
+            out["vibrational_temperature_K"] = self.vibrational_temperature_K
         if self.penning_channels:
             out["penning"] = {"groups": dict(self.penning),
                               "channels": [c.describe() for c in self.penning_channels]}
