@@ -19,9 +19,9 @@ DELTA_eV = 0.1
 
 
 def _excitation_m2(energy_eV):
-    # sigma_exc = 5 (e - Δ)/e Å²: zero at the threshold, so sigma_sup = (g0/g1) 5 Å² is finite at 0 eV
+    # sigma_exc = 50 (e - Δ)/e Å²: zero at the threshold, so sigma_sup = (g0/g1) 50 Å² is finite at 0 eV
     energy = np.asarray(energy_eV, dtype=float)
-    return np.where(energy > DELTA_eV, 5e-20 * (energy - DELTA_eV) / np.maximum(energy, 1e-300), 0.0)
+    return np.where(energy > DELTA_eV, 5e-19 * (energy - DELTA_eV) / np.maximum(energy, 1e-300), 0.0)
 
 
 def two_level_gas(superelastic: bool = True):
