@@ -10,6 +10,7 @@ from ..constants import STANDARD_ATMOSPHERE_Pa
 from ..constants import number_density_m3 as ideal_gas_density_m3
 from ..errors import AvalancheError, ConfigError
 from .crosssections import CrossSectionSet
+from .humid import humid_air_composition
 from .library import get_set, named_mixtures
 from .penning import PenningChannel, penning_channels
 
@@ -46,6 +47,16 @@ class Component:
     name: str
     fraction: float
     cross_sections: CrossSectionSet
+
+
+def humid_air(relative_humidity: float, temperature_K: float = 293.15, pressure_Pa: float | None = None,
+              **options) -> Mixture:
+    """Humid air at ``temperature_K`` [K] and ``pressure_Pa`` [Pa] (default 1 atm) with ``relative_humidity``
+    (0 to 1): a :class:`Mixture` of the named dry ``air`` and H2O
+    (:func:`~avalanche.gas.humid.humid_air_composition`); ``options`` go to :class:`Mixture`."""
+    pressure = STANDARD_ATMOSPHERE_Pa if pressure_Pa is None else pressure_Pa
+    composition = humid_air_composition(relative_humidity, temperature_K, pressure)
+    return Mixture(composition, temperature_K=temperature_K, pressure_Pa=pressure, **options)
 
 
 class Mixture:
