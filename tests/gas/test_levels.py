@@ -159,3 +159,37 @@ def test_mixture_chooses_a_set_by_name():
     assert Mixture("Ar").components[0].cross_sections.set_name == ""  # the default argon set is unchanged
     with pytest.raises(ConfigError, match="vibrational_temperature_K = -1.0 is negative"):
         Mixture("N2", vibrational_temperature_K=-1.0)
+
+
+def test_run_file_compares_data_sets():
+    from avalanche.sweep.runfile import parse_runfile
+
+    text = """format_version = 1
+[sweep]
+name = "sets"
+seed = 1
+output = "sets.h5"
+[gas]
+mixtures = ["Ar", "Ar@phelps"]
+temperature_K = 300.0
+pressure_Pa = 1000.0
+[grid]
+reduced_field_Td = [100.0]
+"""
+    run = parse_runfile(text)
+    names = [run.build_mixture(i).components[0].cross_sections.set_name for i in range(2)]
+    assert names == ["", "phelps"]
+    assert run.mixtures[0].key != run.mixtures[1].key  # different seeds and rows in the results file
+
+
+def test_vibrational_temperature_populates_the_n2_ladder():
+    from avalanche.engine.tables import ProcessTable
+
+    hot = ProcessTable.build(Mixture("N2", vibrational_temperature_K=3000.0), "equal", "isotropic")
+    cold = ProcessTable.build(Mixture("N2"), "equal", "isotropic")
+    key = "vibration v=0-1 (de-excitation)"
+    x = math.exp(-0.29 / (KT_PER_K_eV * 3000.0))  # levels 0.29 n eV to v = 8 in the set (Boltzmann, weights 1)
+    populations = [math.exp(-e / (KT_PER_K_eV * 3000.0)) for e in (0, .29, .59, .88, 1.17, 1.47, 1.76, 2.06, 2.35)]
+    assert hot.density_factor[hot.keys.index(key)] == pytest.approx(populations[1] / sum(populations), rel=1e-12)
+    assert 0.2 < x < 0.35
+    assert cold.density_factor[cold.keys.index(key)] < 1e-4  # 300 K: exp(-0.29/kT) ~ 1.4e-5
