@@ -8,7 +8,7 @@ from ._version import __version__
 from .errors import AvalancheError, ConfigError, CrossSectionError, PhysicsWarning
 from .gas.crosssections import CrossSectionSet, Process, load_set, make_set, process_from_table, save_set
 from .gas.library import available_gases, get_set, model_gas, named_mixture
-from .gas.mixture import Mixture
+from .gas.mixture import Mixture, humid_air
 
 _GAPS = ("gap", "ParallelPlates", "Coaxial", "ConcentricSpheres", "PointPlane", "FieldMap")
 
@@ -42,5 +42,5 @@ __all__ = [
     "__version__", "AvalancheError", "ConfigError", "CrossSectionError", "PhysicsWarning",
     "CrossSectionSet", "Process", "load_set", "save_set", "make_set", "process_from_table",
     "available_gases", "get_set", "model_gas", "named_mixture", "Mixture", "swarm", "townsend", "open_results",
-    "run_sweep", "gap", "ParallelPlates", "Coaxial", "ConcentricSpheres", "PointPlane", "FieldMap",
+    "run_sweep", "gap", "ParallelPlates", "Coaxial", "ConcentricSpheres", "PointPlane", "FieldMap", "humid_air",
 ]

@@ -18,7 +18,9 @@ def _summary_rows(xs: CrossSectionSet) -> list[str]:
         if p.opb_w_eV:
             extra.append(f"w={p.opb_w_eV:g} eV")
         if p.three_body:
-            extra.append("three-body")
+            extra.append(f"three-body (M = {p.third_body or xs.name})")
+        if p.superelastic:
+            extra.append(f"+ de-excitation ({p.level_type})")
         if not p.enabled:
             extra.append("disabled")
         hi = "analytic" if p.formula is not None else f"{p.energy_eV[0]:g}–{p.energy_eV[-1]:g} eV"
@@ -28,12 +30,16 @@ def _summary_rows(xs: CrossSectionSet) -> list[str]:
     return rows
 
 
-def describe_set(xs: CrossSectionSet, provenance: bool = True) -> str:
-    """A readable summary of a set: header, processes, energy range and provenance."""
+def describe_set(xs: CrossSectionSet, provenance: bool = True, library_name: str | None = None) -> str:
+    """A readable summary of a set: header, processes, energy range and provenance (``library_name``: the name the
+    library knows it by, to mark a species' default data set)."""
     lo, hi = xs.energy_range_eV
     ion = f"{xs.ionization_energy_eV:g} eV" if xs.ionization_energy_eV else "-"
     lines = [f"{xs.name}  ({xs.formula}, {xs.mass_amu:g} amu, ionization energy {ion}, "
              f"{len(xs.processes)} processes, {lo:g}–{hi:g} eV)"]
+    if xs.set_name:
+        default = ", the default" if library_name == xs.name else ""
+        lines[0] += f"  data set '{xs.set_name}' ({xs.name}@{xs.set_name}{default})"
     if xs.description:
         lines.append(f"  {xs.description}")
     lines += _summary_rows(xs)
@@ -50,7 +56,7 @@ def describe_set(xs: CrossSectionSet, provenance: bool = True) -> str:
          configure=lambda p: p.add_argument("--brief", action="store_true", help="omit provenance lines"))
 def _gases(args) -> int:
     for name in available_gases():
-        print(describe_set(get_set(name), provenance=not args.brief))
+        print(describe_set(get_set(name), provenance=not args.brief, library_name=name))
         print()
     mixtures = named_mixtures()
     if mixtures:

@@ -19,13 +19,18 @@ import numpy as np
 from .. import kernels as K
 from ..constants import BOLTZMANN_J_K, ELEMENTARY_CHARGE_C, EV_J, ATOMIC_MASS_UNIT_kg, ELECTRON_MASS_kg, TOWNSEND_V_m2
 from ..errors import ConfigError, PhysicsWarning
+from ..gas.levels import SUPERELASTIC, level_populations, superelastic_process
 from ..gas.mixture import Mixture
 from ..gas.penning import kernel_arrays
 
 SHARING_RULES = {"equal": K.SHARING_EQUAL, "uniform": K.SHARING_UNIFORM, "opb": K.SHARING_OPB}
 SCATTERING_MODELS = {"isotropic": K.SCATTER_ISOTROPIC, "screened-coulomb": K.SCATTER_SCREENED_COULOMB}
 ACTIONS = {"elastic": K.ACTION_ELASTIC, "excitation": K.ACTION_EXCITATION, "ionization": K.ACTION_IONIZATION,
-           "attachment": K.ACTION_ATTACHMENT, "penning": K.ACTION_PENNING}
+           "attachment": K.ACTION_ATTACHMENT, "penning": K.ACTION_PENNING,
+           SUPERELASTIC: K.ACTION_EXCITATION}
+"""Process kind → kernel action. A superelastic row is an excitation with a negative energy loss −Δ: the kernel's
+excitation branch sets the energy to ε − loss = ε + Δ (``scatter_electron``) and never rejects it as below its
+threshold (ε < loss is never true)."""
 ENERGY_FLOOR_eV = 1e-9
 """Cross sections are evaluated at ε ≥ this, so σ ∝ ε^-1/2 gives a finite σ v."""
 TRIAL_MARGIN = 1e-3
@@ -57,6 +62,16 @@ def extrapolation_notice(where: str, extrapolated, process_counts, keys) -> str 
             f"cross-section table, where it is extrapolated: {listing}; extend the tables to higher energy")
 
 # ------------------------------------------------------------------------------------------- process tables
+
+def _energy_loss_eV(proc) -> float:
+    """The electron's energy loss in a collision [eV]: the threshold of an excitation or ionization, minus the level
+    energy for a de-excitation (an energy gain), zero otherwise."""
+    if proc.kind in ("excitation", "ionization"):
+        return proc.threshold_eV
+    if proc.kind == SUPERELASTIC:
+        return -proc.threshold_eV
+    return 0.0
+
 
 def momentum_transfer_fraction(energy_eV) -> np.ndarray:
     """⟨1 − cos χ⟩ = σ_m/σ_T of the screened-Coulomb distribution at ``energy_eV`` [eV].
@@ -98,18 +113,48 @@ class ProcessTable:
     penning_energy_eV: np.ndarray
     penning_slot: np.ndarray
 
+    @staticmethod
+    def _expanded(xs, temperatures_K: dict) -> list:
+        """(process, population factor) of a set's enabled processes, each ``superelastic`` excitation followed by
+        its de-excitation; the factors are the Boltzmann populations of the initial levels (1 for other
+        processes)."""
+        out = []
+        populations = level_populations(xs.processes, temperatures_K, xs.name)
+        for proc in xs.processes:
+            if not proc.enabled:
+                continue
+            if not proc.superelastic:
+                out.append((proc, 1.0))
+                continue
+            out.append((proc, populations[proc.initial_state]))
+            out.append((superelastic_process(proc), populations[proc.final_state]))
+        return out
+
+    @staticmethod
+    def _partner_density(proc, species_density: float, mixture: Mixture) -> float:
+        """Density [m⁻³] of the third body of a three-body process (the species itself, a named one or the gas)."""
+        if not proc.third_body:
+            return species_density
+        if proc.third_body == "*":
+            return mixture.number_density_m3
+        return sum(c.fraction for c in mixture.components
+                   if c.name == proc.third_body or c.cross_sections.name == proc.third_body) \
+            * mixture.number_density_m3
+
     @classmethod
     def build(cls, mixture: Mixture, sharing: str, scattering: str) -> ProcessTable:
         rows = []
         single = len(mixture.components) == 1
+        temperatures = {"rotational": mixture.temperature_K, "electronic": mixture.temperature_K,
+                        "vibrational": mixture.vibrational_temperature_K}
         for comp in mixture.components:
             xs = comp.cross_sections
             density = comp.fraction * mixture.number_density_m3
             mass = xs.mass_amu * ATOMIC_MASS_UNIT_kg
-            for proc in xs.processes:
-                if not proc.enabled:
-                    continue
-                factor = density / proc.reference_density_m3 if proc.three_body else 1.0
+            for proc, population in cls._expanded(xs, temperatures):
+                factor = population
+                if proc.three_body:
+                    factor *= cls._partner_density(proc, density, mixture) / proc.reference_density_m3
                 rule = SHARING_RULES[sharing]
                 w = proc.opb_w_eV or 0.0
                 if proc.kind == "ionization" and sharing == "opb" and not w:
@@ -121,7 +166,7 @@ class ProcessTable:
                 rows.append(dict(
                     process=proc, key=proc.label if single else f"{comp.name}:{proc.label}", kind=proc.kind,
                     species=comp.name, density=density, factor=factor, action=ACTIONS[proc.kind],
-                    loss=proc.threshold_eV if proc.kind in ("excitation", "ionization") else 0.0,
+                    loss=_energy_loss_eV(proc),
                     electron_fraction=ELECTRON_MASS_kg / (ELECTRON_MASS_kg + mass),
                     target_fraction=mass / (ELECTRON_MASS_kg + mass),
                     thermal=math.sqrt(BOLTZMANN_J_K * mixture.temperature_K / mass),

@@ -25,14 +25,18 @@ from pathlib import Path
 import numpy as np
 
 from ..errors import CrossSectionError
+from .levels import LEVEL_TYPES, check_levels, resolve_effective
 
 FORMAT_VERSION = 1
-KINDS = ("elastic", "excitation", "ionization", "attachment")
+KINDS = ("elastic", "effective", "excitation", "ionization", "attachment")
+"""Kinds a file may give. ``effective`` is the total momentum-transfer cross section (elastic momentum transfer plus
+every inelastic cross section); loading turns it into the elastic one by :func:`elastic_from_effective`."""
 INELASTIC_KINDS = ("excitation", "ionization", "attachment")
 SCATTERING_MODELS = ("isotropic", "screened-coulomb")
 EXTRAPOLATIONS = ("constant", "bethe", "zero")
 DEFAULT_EXTRAPOLATION = {
     "elastic": "constant",
+    "effective": "constant",
     "excitation": "bethe",
     "ionization": "bethe",
     "attachment": "constant",
@@ -47,14 +51,17 @@ IONIZATION_ENERGY_TOLERANCE_eV = 1e-3
 """[species] ionization_energy_eV and the lowest ionization threshold may differ by at most this much [eV] (the
 shipped sets give both to the same digits)."""
 
-_SPECIES_KEYS = {"name", "formula", "mass_amu", "ionization_energy_eV", "description"}
+_SPECIES_KEYS = {"name", "formula", "mass_amu", "ionization_energy_eV", "description", "set"}
 _PROVENANCE_KEYS = {"date", "sources", "notes"}
 _TOP_KEYS = {"format_version", "species", "provenance", "process"}
 _PROCESS_KEYS = {
     "kind", "label", "threshold_eV", "energy_eV", "cross_section", "table", "units", "source", "scattering",
     "wavelength_nm", "group", "opb_w_eV", "extrapolation", "three_body", "reference_density_m3", "enabled",
     "allow_large_cross_section",
+    "third_body", "original_keyword", "initial_state", "final_state", "statistical_weights", "initial_energy_eV",
+    "level_type", "superelastic",
 }
+_METADATA_KEYS = ("original_keyword", "initial_state", "final_state", "level_type", "third_body")
 
 
 def _did_you_mean(word: str, choices) -> str:
@@ -78,11 +85,25 @@ class Process:
         The table [eV], [m²]. Ignored for evaluation when ``formula`` is given.
     formula : callable, optional
         Analytic cross section ``formula(energy_eV) -> m²`` (model gases); the table then samples it.
-    three_body, reference_density_m3 :
-        A three-body process (e.g. e + O2 + O2 → O2⁻ + O2): the cross section is given for a partner density
-        ``reference_density_m3`` and scales with the partner's actual density.
+    three_body, reference_density_m3, third_body :
+        A three-body process (e.g. e + O2 + M → O2⁻ + M): the cross section is given for a partner density
+        ``reference_density_m3`` [m⁻³] and scales with the partner's actual density. The partner M is
+        ``third_body``: a species name of the mixture (absent species: density 0), ``"*"`` for the whole gas, or
+        empty for the target species itself.
     enabled : bool
         Disabled processes are kept in the set but not simulated.
+    original_keyword, initial_state, final_state : str
+        Structured metadata: the keyword of the source table (e.g. ``EXCITATION``), and the initial and final
+        state of the target (e.g. ``"X(v=0)"``, ``"X(v=1)"``).
+    statistical_weights : tuple of two floats, optional
+        (g_initial, g_final), the statistical weights of the two levels.
+    initial_energy_eV : float
+        Energy of the initial level above the ground state [eV] (0 for a ground-state process).
+    level_type : {'rotational', 'vibrational', 'electronic', ''}
+        Which temperature populates the levels (see :func:`level_populations`).
+    superelastic : bool
+        Add the reverse (de-excitation) process by detailed balance (:func:`superelastic_process`) and weight both
+        by the Boltzmann populations of their initial levels. Needs ``statistical_weights`` and ``level_type``.
     """
 
     kind: str
@@ -102,6 +123,14 @@ class Process:
     formula: Callable[[np.ndarray], np.ndarray] | None = field(default=None, repr=False)
     units: str = "m2"
     table_path: str | None = None
+    third_body: str = ""
+    original_keyword: str = ""
+    initial_state: str = ""
+    final_state: str = ""
+    statistical_weights: tuple[float, float] | None = None
+    initial_energy_eV: float = 0.0
+    level_type: str = ""
+    superelastic: bool = False
 
     def __post_init__(self):
         if not self.extrapolation:
@@ -163,6 +192,8 @@ class CrossSectionSet:
     description: str = ""
     path: str | None = None
     parameters: dict = field(default_factory=dict)
+    set_name: str = ""
+    """Name of the data set (``'phelps'`` in ``'N2@phelps'``); empty for sets without alternatives."""
 
     @property
     def energy_range_eV(self) -> tuple[float, float]:
@@ -190,12 +221,18 @@ class CrossSectionSet:
             entry["cross_section"] = [float(x) for x in p.cross_section_m2]
             entry["units"] = "m2"
             for key in ("source", "scattering", "wavelength_nm", "group", "opb_w_eV", "extrapolation",
-                        "reference_density_m3"):
+                        "reference_density_m3", *_METADATA_KEYS):
                 value = getattr(p, key)
                 if value not in (None, ""):
                     entry[key] = value
+            if p.statistical_weights is not None:
+                entry["statistical_weights"] = [float(g) for g in p.statistical_weights]
+            if p.initial_energy_eV:
+                entry["initial_energy_eV"] = float(p.initial_energy_eV)
             if p.three_body:
                 entry["three_body"] = True
+            if p.superelastic:
+                entry["superelastic"] = True
             if not p.enabled:
                 entry["enabled"] = False
             procs.append(entry)
@@ -204,6 +241,8 @@ class CrossSectionSet:
             species["ionization_energy_eV"] = float(self.ionization_energy_eV)
         if self.description:
             species["description"] = self.description
+        if self.set_name:
+            species["set"] = self.set_name
         return {"format_version": FORMAT_VERSION, "species": species, "provenance": dict(self.provenance),
                 "process": procs}
 
@@ -346,7 +385,7 @@ def _parse_process(raw: dict, index: int, base: Path, where_file: str) -> Proces
         raise CrossSectionError(f"{where}: threshold_eV = {threshold} for an elastic process; elastic collisions "
                                 "lose no threshold energy: set threshold_eV = 0 (or use kind = \"excitation\")")
     flags = {key: _as_bool(raw, key, where, default) for key, default in
-             (("three_body", False), ("enabled", True), ("allow_large_cross_section", False))}
+             (("three_body", False), ("enabled", True), ("allow_large_cross_section", False), ("superelastic", False))}
     units = raw.get("units", "m2")
     if not isinstance(units, str) or units not in UNITS_m2:
         raise CrossSectionError(f"{where}: unknown units '{units}'{_did_you_mean(str(units), UNITS_m2)}; "
@@ -396,19 +435,50 @@ def _parse_process(raw: dict, index: int, base: Path, where_file: str) -> Proces
                                 "[m^-3] for which the cross section is given)")
     if three_body and kind != "attachment":
         raise CrossSectionError(f"{where}: three_body is supported for attachment only, got kind '{kind}'")
+    if "third_body" in raw and not three_body:
+        raise CrossSectionError(f"{where}: third_body = {raw['third_body']!r} needs three_body = true")
+    metadata = {key: str(raw[key]) for key in _METADATA_KEYS if key in raw}
+    if metadata.get("level_type", "") not in ("", *LEVEL_TYPES):
+        hint = _did_you_mean(metadata["level_type"], LEVEL_TYPES)
+        raise CrossSectionError(f"{where}: unknown level_type '{metadata['level_type']}'{hint}; choose "
+                                f"{list(LEVEL_TYPES)}")
+    if "statistical_weights" in raw:
+        weights = raw["statistical_weights"]
+        if not (isinstance(weights, list) and len(weights) == 2):
+            raise CrossSectionError(f"{where}: statistical_weights must be [g_initial, g_final], got {weights!r}")
+        weights = tuple(_as_float(g, where, "statistical_weights") for g in weights)
+        if min(weights) <= 0:
+            raise CrossSectionError(f"{where}: statistical_weights = {list(weights)} must be positive")
+        optional["statistical_weights"] = weights
+    if "initial_energy_eV" in raw:
+        optional["initial_energy_eV"] = _as_float(raw["initial_energy_eV"], where, "initial_energy_eV")
+        if optional["initial_energy_eV"] < 0:
+            raise CrossSectionError(f"{where}: initial_energy_eV = {optional['initial_energy_eV']} is negative")
+    superelastic = flags["superelastic"]
+    if superelastic:
+        if kind != "excitation" or threshold <= 0:
+            raise CrossSectionError(f"{where}: superelastic = true needs an excitation with threshold_eV > 0")
+        missing = [k for k in ("statistical_weights", "level_type", "initial_state", "final_state") if k not in raw]
+        if missing:
+            raise CrossSectionError(f"{where}: superelastic = true needs {missing} (the two levels, their "
+                                    "statistical weights and which temperature populates them)")
     return Process(kind=kind, label=label, threshold_eV=threshold, energy_eV=energy, cross_section_m2=sigma,
                    source=str(raw.get("source", "")), extrapolation=extrapolation, scattering=scattering,
                    group=raw.get("group"), three_body=three_body, enabled=flags["enabled"],
-                   units=units, table_path=table_path, **optional)
+                   units=units, table_path=table_path, superelastic=superelastic, **metadata, **optional)
 
 
 def check_processes(processes: Sequence[Process], where: str) -> None:
     """Set-level checks: at least one elastic process, unique labels."""
     if not processes:
         raise CrossSectionError(f"{where}: the set has no [[process]] entries")
-    if not any(p.kind == "elastic" for p in processes):
+    momentum = [p for p in processes if p.kind in ("elastic", "effective")]
+    if not momentum:
         raise CrossSectionError(f"{where}: no elastic (momentum-transfer) process; every set needs one, "
-                                "add a [[process]] with kind = \"elastic\"")
+                                "add a [[process]] with kind = \"elastic\" (or \"effective\")")
+    if any(p.kind == "effective" for p in processes) and len(momentum) > 1:
+        raise CrossSectionError(f"{where}: an 'effective' cross section already holds the elastic momentum "
+                                f"transfer; remove the other momentum-transfer processes {[p.label for p in momentum]}")
     seen = set()
     for p in processes:
         if p.label in seen:
@@ -448,10 +518,13 @@ def parse_set(data: dict, where: str, base: Path | None = None) -> CrossSectionS
         raise CrossSectionError(f"{where}: 'process' must be an array of tables ([[process]])")
     processes = tuple(_parse_process(raw, i, base, where) for i, raw in enumerate(raw_processes))
     check_processes(processes, where)
+    processes = resolve_effective(processes, where)
+    check_levels(processes, where)
     check_ionization_energy(ion, processes, where)
     return CrossSectionSet(name=name, formula=str(species.get("formula", name)), mass_amu=mass,
                            ionization_energy_eV=ion, processes=processes, provenance=dict(provenance),
-                           description=str(species.get("description", "")), path=None)
+                           description=str(species.get("description", "")), path=None,
+                           set_name=str(species.get("set", "")))
 
 
 def load_set(path: str | Path) -> CrossSectionSet:
@@ -491,7 +564,11 @@ def _toml_value(value) -> str:
 
 def dumps_set(xs: CrossSectionSet) -> str:
     """The set as TOML text in the project's format (inline tables, values in m², full float precision)."""
-    data = xs.to_dict()
+    return dumps_data(xs.to_dict())
+
+
+def dumps_data(data: dict) -> str:
+    """Plain set data (the layout of :meth:`CrossSectionSet.to_dict`) as TOML text in the project's format."""
     lines = [f"format_version = {FORMAT_VERSION}", "", "[species]"]
     lines += [f"{k} = {_toml_value(v)}" for k, v in data["species"].items()]
     lines += ["", "[provenance]"]
@@ -553,6 +630,8 @@ def make_set(name: str, *, mass_amu: float, processes: Sequence[Process], formul
     if not (isinstance(mass_amu, (int, float)) and mass_amu > 0 and math.isfinite(mass_amu)):
         raise CrossSectionError(f"{where}: mass_amu = {mass_amu!r} must be a positive number")
     check_processes(tuple(processes), where)
+    processes = resolve_effective(tuple(processes), where)
+    check_levels(processes, where)
     check_ionization_energy(ionization_energy_eV, processes, where)
     return CrossSectionSet(name=name, formula=formula or name, mass_amu=float(mass_amu),
                            ionization_energy_eV=ionization_energy_eV, processes=tuple(processes),

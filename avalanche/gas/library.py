@@ -33,7 +33,11 @@ def library_dirs() -> list[Path]:
 
 
 def shipped_dir() -> Path:
-    """The folder of the shipped cross-section sets (installed package data, or the source checkout)."""
+    """The folder of the shipped cross-section sets: the ``crosssections/`` folder beside the imported package in a
+    source checkout, else the installed package data (``avalanche.gasdata``)."""
+    checkout = Path(__file__).resolve().parents[2] / "crosssections"
+    if (checkout / "mixtures.toml").is_file():
+        return checkout
     try:
         from importlib.resources import files
 
@@ -42,7 +46,7 @@ def shipped_dir() -> Path:
             return path
     except ModuleNotFoundError:
         pass
-    return Path(__file__).resolve().parents[2] / "crosssections"
+    return checkout
 
 
 def _shipped_names() -> list[str]:
@@ -174,7 +178,9 @@ def _load_cached(path: str, mtime: float) -> CrossSectionSet:
 
 
 def get_set(name: str, **parameters) -> CrossSectionSet:
-    """The set for a library name (``'Ar'``, ``'reid-ramp'``...) or a path to a user's ``.toml`` file."""
+    """The set for a library name (``'Ar'``, ``'reid-ramp'``...), a named data set of a species (``'N2@itikawa'``:
+    file ``N2@itikawa.toml``, or the default file ``N2.toml`` when its ``[species] set`` is that name) or a path to
+    a user's ``.toml`` file."""
     if name in MODEL_GASES:
         return model_gas(name, **parameters)
     if parameters:
@@ -188,9 +194,35 @@ def get_set(name: str, **parameters) -> CrossSectionSet:
         path = folder / f"{name}.toml"
         if path.is_file():
             return _load_cached(str(path), path.stat().st_mtime)
+    species, sep, set_name = name.partition("@")
+    if sep:
+        for folder in library_dirs():
+            path = folder / f"{species}.toml"
+            if path.is_file():
+                xs = _load_cached(str(path), path.stat().st_mtime)
+                if xs.set_name == set_name:
+                    return xs
+        sets = data_sets(species)
+        if sets:
+            raise ConfigError(f"unknown data set '{set_name}' of {species}{_did_you_mean(set_name, sets)}; the "
+                              f"sets of {species} are {sets} (spelled '{species}@<set>')")
     known = available_gases()
     raise ConfigError(f"unknown gas '{name}'{_did_you_mean(name, known)}; known gases are {known}, "
                       "or give the path of a .toml cross-section file")
+
+
+def data_sets(species: str) -> list[str]:
+    """Names of the shipped data sets of ``species``, the default first (``data_sets('N2')`` → ``['phelps',
+    'itikawa', ...]``); empty when the species has no named sets."""
+    names = []
+    for folder in library_dirs():
+        default = folder / f"{species}.toml"
+        if default.is_file() and not names:
+            set_name = get_set(str(default)).set_name
+            if set_name:
+                names.append(set_name)
+        names += [p.stem.partition("@")[2] for p in sorted(folder.glob(f"{species}@*.toml"))]
+    return list(dict.fromkeys(names))
 
 
 def named_mixtures() -> dict[str, dict]:

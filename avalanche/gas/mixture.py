@@ -11,6 +11,7 @@ from ..constants import STANDARD_ATMOSPHERE_Pa
 from ..constants import number_density_m3 as ideal_gas_density_m3
 from ..errors import AvalancheError, ConfigError
 from .crosssections import CrossSectionSet
+from .humid import humid_air_composition
 from .library import get_set, named_mixtures
 from .penning import PenningChannel, penning_channels
 
@@ -52,6 +53,16 @@ class Component:
     cross_sections: CrossSectionSet
 
 
+def humid_air(relative_humidity: float, temperature_K: float = 293.15, pressure_Pa: float | None = None,
+              **options) -> Mixture:
+    """Humid air at ``temperature_K`` [K] and ``pressure_Pa`` [Pa] (default 1 atm) with ``relative_humidity``
+    (0 to 1): a :class:`Mixture` of the named dry ``air`` and H2O
+    (:func:`~avalanche.gas.humid.humid_air_composition`); ``options`` go to :class:`Mixture`."""
+    pressure = STANDARD_ATMOSPHERE_Pa if pressure_Pa is None else pressure_Pa
+    composition = humid_air_composition(relative_humidity, temperature_K, pressure)
+    return Mixture(composition, temperature_K=temperature_K, pressure_Pa=pressure, **options)
+
+
 class Mixture:
     """A gas mixture at a given temperature and density.
 
@@ -69,7 +80,12 @@ class Mixture:
     number_density_m3 : float, optional
         Total number density N [m⁻³]; overrides the pressure.
     sets : mapping, optional
-        Cross-section sets to use for some species instead of the library's (e.g. model gases with parameters).
+        Cross-section sets to use for some species instead of the library's default: a
+        :class:`~avalanche.gas.crosssections.CrossSectionSet` (e.g. a model gas with parameters) or the name of a
+        shipped alternative (``sets={"N2": "itikawa"}`` is the same as the species spelling ``"N2@itikawa"``).
+    vibrational_temperature_K : float, optional
+        Temperature [K] of the vibrational level populations of sets with superelastic vibrational pairs
+        (a thermally excited gas); default the gas temperature. Rotational levels follow ``temperature_K``.
     penning : mapping, optional
         Penning transfer: level group → transfer probability r in [0, 1] (default none), e.g. ``{"Ne": 0.3}`` (every
         neon level above the receiver's ionization energy) or ``{"Ne:1s": 0.2, "Ne:2p->Ar": 0.5}`` (levels whose
@@ -84,8 +100,8 @@ class Mixture:
     """
 
     def __init__(self, composition, temperature_K: float = 300.0, pressure_Pa: float | None = None,
-                 number_density_m3: float | None = None, sets: Mapping[str, CrossSectionSet] | None = None,
-                 penning: Mapping[str, float] | None = None):
+                 number_density_m3: float | None = None, sets: Mapping[str, CrossSectionSet | str] | None = None,
+                 penning: Mapping[str, float] | None = None, vibrational_temperature_K: float | None = None):
         if isinstance(composition, str):
             composition = parse_composition(composition)
         if not isinstance(composition, Mapping) or not composition:
@@ -118,6 +134,8 @@ class Mixture:
             if fraction == 0:
                 continue
             xs = sets.get(name) if name in sets else None
+            if isinstance(xs, str):
+                name, xs = f"{name}@{xs}", None
             if xs is None:
                 try:
                     xs = get_set(str(name))
@@ -137,6 +155,13 @@ class Mixture:
             components = [replace(c, fraction=c.fraction / total) for c in components]
         self.components: tuple[Component, ...] = tuple(components)
         self.temperature_K = temperature_K
+        if vibrational_temperature_K is not None:
+            vibrational_temperature_K = self._number("vibrational_temperature_K", vibrational_temperature_K)
+            if vibrational_temperature_K < 0:
+                raise ConfigError(f"vibrational_temperature_K = {vibrational_temperature_K} is negative")
+        self.vibrational_temperature_K = temperature_K if vibrational_temperature_K is None \
+            else vibrational_temperature_K
+        """Temperature [K] of the vibrational level populations (default: the gas temperature)."""
         self.number_density_m3 = density
         self.pressure_Pa = pressure_Pa if number_density_m3 is None else None
         self.penning_channels: tuple[PenningChannel, ...] = penning_channels(penning, self.components)
@@ -167,6 +192,8 @@ class Mixture:
         out = {"composition": {c.name: c.fraction for c in self.components},
                "temperature_K": self.temperature_K, "number_density_m3": self.number_density_m3,
                "pressure_Pa": self.pressure_Pa, "checksums": self.checksums()}
+        if self.vibrational_temperature_K != self.temperature_K:
+            out["vibrational_temperature_K"] = self.vibrational_temperature_K
         if self.penning_channels:
             out["penning"] = {"groups": dict(self.penning),
                               "channels": [c.describe() for c in self.penning_channels]}

@@ -25,7 +25,9 @@ def test_shipped_files_are_valid():
         if path.stem == "mixtures":
             continue
         xs = get_set(path.stem)
-        assert xs.name == path.stem
+        species, _, set_name = path.stem.partition("@")  # a named data set: <species>@<set>.toml
+        assert xs.name == species
+        assert xs.set_name == set_name or not set_name
         assert xs.provenance.get("sources"), f"{path}: provenance has no sources"
 
 

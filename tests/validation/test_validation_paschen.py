@@ -77,14 +77,7 @@ def test_paschen_minimum_voltage_against_the_handbook(curves, gas):
 
 
 @pytest.mark.slow
-@pytest.mark.parametrize("gas", [
-    "Ar",
-    pytest.param("N2", marks=pytest.mark.xfail(strict=True, reason=(
-        "known discrepancy: the shipped N2 set's SST α/N rises more steeply with E/N than the formula (−27 % at "
-        "350 Td, +15 % at 1800 Td), so the flat minimum of (E/N)/(α/N) lies near 1600 Td instead of 1040 Td and "
-        "(p d)_min comes out near 0.69 Torr cm instead of 1.05 (V_min agrees within 3 %); open until the N2 "
-        "electronic cross sections are revised from a cited source"))),
-])
+@pytest.mark.parametrize("gas", ["Ar", "N2"])
 def test_paschen_minimum_position_against_the_handbook(curves, gas):
     _, pd_min = handbook_minimum(*RAIZER[gas], GAMMA)
     curve = curves[gas]

@@ -1,0 +1,325 @@
+"""Build the shipped N2, O2, CO2, H2O and Ar@phelps cross-section files from published data.
+
+A build-time tool, not part of the package: it reads the tables of the data package ``elmolcs`` 0.0.3
+(GPL-3.0-or-later; ``pip install ".[build-data]"``) through that package's own table reader
+(``elmolcs.tablehandler.TableHandler.readtable``; its higher-level ``loadCS`` fails on the O2, CO2 and H2O
+compilations, so one reader serves every file) and writes our TOML format with the original publication of every
+block. Only the published blocks are taken: blocks the carrier added of its own (bremsstrahlung, alternative
+tables) are left out, and blocks it marked to skip are taken when they are the published ones (N2 ionization).
+
+Usage::
+
+    python tools/build_crosssections.py               # writes every file into crosssections/
+    python tools/build_crosssections.py N2 --out DIR   # one set into DIR
+
+The output is deterministic (no date of the run in it), so a test can compare it with the shipped file.
+"""
+
+from __future__ import annotations
+
+import argparse
+import logging
+import os
+import sys
+import warnings
+from pathlib import Path
+
+ROOT = Path(__file__).resolve().parents[1]
+sys.path.insert(0, str(ROOT))
+
+from avalanche.gas.crosssections import dumps_data, parse_set  # noqa: E402
+
+CARRIER = ("carried by the data package elmolcs 0.0.3 (A. Jesenek, GPL-3.0-or-later), file {file}, read with its "
+           "table reader elmolcs.tablehandler.TableHandler.readtable")
+DATE = "2026-12-03"
+
+PHELPS_N2 = ("A. V. Phelps and L. C. Pitchford (1985) Phys. Rev. A 31, 2932, doi:10.1103/PhysRevA.31.2932: "
+             "anisotropic scattering of electrons by N2 and its effect on electron transport (the N2 set)")
+RAPP = ("D. Rapp and P. Englander-Golden (1965) J. Chem. Phys. 43, 1464, doi:10.1063/1.1696957: total ionization "
+        "cross sections")
+CARTWRIGHT = ("D. C. Cartwright, A. Chutjian, S. Trajmar and W. Williams (1977) Phys. Rev. A 16, 1013, "
+              "doi:10.1103/PhysRevA.16.1013: electronic excitation of N2")
+SCHULZ = "G. J. Schulz (1964) Phys. Rev. 135, A988, doi:10.1103/PhysRev.135.A988: vibrational excitation of N2"
+HAKE = ("R. D. Hake and A. V. Phelps (1967) Phys. Rev. 158, 70, doi:10.1103/PhysRev.158.70: single-level "
+        "approximation to rotational excitation")
+ZIPF = ("E. C. Zipf and R. W. McLaughlin (1978) Planet. Space Sci. 26, 449, doi:10.1016/0032-0633(78)90066-1: sum of "
+        "singlet states")
+LAWTON = ("S. A. Lawton and A. V. Phelps (1978) J. Chem. Phys. 69, 1055, doi:10.1063/1.436700: excitation of the "
+          "b1Sigma_g+ state of O2 by low energy electrons (the O2 set)")
+HAYASHI = ("M. Hayashi (1992) Electron collision cross sections, in Plasma Material Science Handbook (Japan Society "
+           "for the Promotion of Science, Ohmsha, Tokyo) pp. 748-766: the CO2 set; dissociative attachment from "
+           "D. Loffhagen (2016) in Plasma Modeling (IOP Publishing) ch. 3, fig. 3b")
+ITIKAWA_H2O = ("Y. Itikawa and N. Mason (2005) J. Phys. Chem. Ref. Data 34, 1, doi:10.1063/1.1799251: cross sections "
+               "for electron collisions with water molecules (recommended values)")
+YAMABE = ("C. Yamabe, S. J. Buckman and A. V. Phelps (1983) Phys. Rev. A 27, 1345, doi:10.1103/PhysRevA.27.1345: "
+          "the Ar set (effective momentum transfer, lumped excitation)")
+RAPP_AR = RAPP + " (argon, as taken by Yamabe, Buckman and Phelps 1983)"
+OPAL = ("C. B. Opal, W. K. Peterson and E. C. Beaty (1971) J. Chem. Phys. 55, 4100, doi:10.1063/1.1676707: "
+        "measurements of secondary-electron spectra (energy-sharing parameter w, as tabulated in the carrier's "
+        "elmolcs.constants.Constants.ION_FIT)")
+DOI_NOTE = "DOIs were written from memory and checked against nothing but the citation in the carrier's block headers."
+
+
+SECOND_POSITIVE = {"wavelength_nm": 337.1}
+"""0-0 band of the N2 second positive system C3Pi_u -> B3Pi_g in air: A. Lofthus and P. H. Krupenie (1977) J. Phys.
+Chem. Ref. Data 6, 113 (from memory; a radiating wavelength for emission estimates, not a cross section)."""
+N2_ELECTRONIC = (
+    ("A3,v0-4", "A3Sigma_u+ (v=0-4)", {}), ("A3,v5-9", "A3Sigma_u+ (v=5-9)", {}),
+    ("A3,v10-", "A3Sigma_u+ (v>=10)", {}), ("B3", "B3Pi_g", {}), ("W3", "W3Delta_u", {}),
+    ("B'3", "B'3Sigma_u-", {}), ("a'1", "a'1Sigma_u-", {}), ("a1", "a1Pi_g", {}), ("w1", "w1Delta_u", {}),
+    ("C3", "C3Pi_u", SECOND_POSITIVE), ("E3", "E3Sigma_g+", {}), ('a"1', "a''1Sigma_g+", {}),
+)
+
+
+def _vib(n: int, states=("X(v=0)", "X(v={})")) -> dict:
+    return {"level_type": "vibrational", "superelastic": True, "statistical_weights": [1.0, 1.0],
+            "initial_state": states[0], "final_state": states[1].format(n)}
+
+
+# Recipe: (keyword, reaction line of the block, our entry). The entry gives kind, label and any extra fields; the
+# energy table, threshold and source come from the block.
+RECIPES = {
+    "N2": {
+        "file": "N2/others/Cross section (phelps).e-N2", "set": "phelps",
+        "species": {"name": "N2", "formula": "N2", "mass_amu": 28.0134, "ionization_energy_eV": 15.581,
+                    "description": "Nitrogen, the swarm-consistent set of Phelps & Pitchford (1985)"},
+        "sources": [PHELPS_N2, RAPP, CARTWRIGHT, SCHULZ, HAKE, ZIPF],
+        "notes": ("Elastic scattering is given as the effective (total momentum-transfer) cross section; the elastic "
+                  "momentum transfer is derived on loading by subtracting the inelastic cross sections. Vibrational "
+                  "levels v=1-8 carry superelastic pairs (Boltzmann populations at the vibrational temperature; "
+                  "negligible at 300 K). The rotational excitation is the single-level approximation prepared for "
+                  "300 K (no de-excitation). Ionization: the total cross section of Rapp & Englander-Golden used by "
+                  "the set (the carrier marks this block to skip; the partial N2+(B) ionization, part of the total, "
+                  "and the carrier's own bremsstrahlung and integral-elastic blocks are left out). Ionization and "
+                  "momentum transfer of the set are valid to 1000 eV and 10 keV. Ionization energy in the header: "
+                  "NIST Chemistry WebBook 15.581 eV (from memory); the set's ionization threshold is 15.6 eV. The "
+                  "C3Pi_u wavelength (337.1 nm, emission estimates) is from memory (Lofthus & Krupenie 1977). "
+                  + DOI_NOTE),
+        "blocks": [
+            ("EFFECTIVE", "N2", {"kind": "effective", "label": "momentum transfer", "source": PHELPS_N2}),
+            ("EXCITATION", "N2 -> N2(rot)", {"kind": "excitation", "label": "rotation (single-level approximation)",
+                                             "source": HAKE, "level_type": "rotational"}),
+            *[("EXCITATION", f"N2 -> N2(v{n})", {"kind": "excitation", "label": f"vibration v=0-{n}",
+                                                 "source": PHELPS_N2 if n == 1 else SCHULZ, **_vib(n)})
+              for n in range(1, 9)],
+            *[("EXCITATION", f"N2 -> N2({s})", {"kind": "excitation", "label": label, "source": CARTWRIGHT,
+                                                "level_type": "electronic", "initial_state": "X1Sigma_g+",
+                                                "final_state": label, **extra})
+              for s, label, extra in N2_ELECTRONIC],
+            ("EXCITATION", "N2 -> N2(SUM)", {"kind": "excitation", "label": "sum of singlets", "source": ZIPF,
+                                             "level_type": "electronic"}),
+            ("IONIZATION", "N2 -> N2^+", {"kind": "ionization", "label": "total ionization", "source": RAPP,
+                                          "comment": "RAPP", "max_energy_eV": 1000.0}),
+        ],
+    },
+    "O2": {
+        "file": "O2/others/Cross section (phelps).e-O2", "set": "phelps",
+        "species": {"name": "O2", "formula": "O2", "mass_amu": 31.9988, "ionization_energy_eV": 12.0697,
+                    "description": "Oxygen, the swarm-consistent set of Lawton & Phelps (1978)"},
+        "sources": [LAWTON],
+        "notes": ("Elastic scattering is given as the effective (total momentum-transfer) cross section; the elastic "
+                  "momentum transfer is derived on loading. Three-body attachment e + O2 + O2: the cross section is "
+                  "given for an O2 density of 1 cm^-3 (as the source states) and scales with the O2 density of the "
+                  "mixture. Vibrational levels v=1-4 carry superelastic pairs. The rotational excitation is the "
+                  "single-level approximation prepared for 300 K. The carrier's own bremsstrahlung block is left "
+                  "out. Ionization energy in the header: NIST Chemistry WebBook 12.0697 eV (from memory); the set's "
+                  "ionization threshold is 12.06 eV. " + DOI_NOTE),
+        "blocks": [
+            ("ATTACHMENT", "O2 -> O2-", {"kind": "attachment", "label": "three-body attachment e + O2 + O2 -> O2- + O2",
+                                         "three_body": True, "reference_density_m3": 1e6, "third_body": "O2"}),
+            ("ATTACHMENT", "O2 -> O^-+O", {"kind": "attachment", "label": "dissociative attachment O2 -> O- + O"}),
+            ("EFFECTIVE", "O2", {"kind": "effective", "label": "momentum transfer"}),
+            ("EXCITATION", "O2 -> O2(rot)", {"kind": "excitation", "label": "rotation (single-level approximation)",
+                                             "level_type": "rotational"}),
+            *[("EXCITATION", f"O2 -> O2(v{n})", {"kind": "excitation", "label": f"vibration v=0-{n}", **_vib(n)})
+              for n in range(1, 5)],
+            ("EXCITATION", "O2 -> O2(a1)", {"kind": "excitation", "label": "a1Delta_g", "level_type": "electronic"}),
+            ("EXCITATION", "O2 -> O2(b1)", {"kind": "excitation", "label": "b1Sigma_g+", "level_type": "electronic"}),
+            ("EXCITATION", "O2 -> O2(4.5 eV)", {"kind": "excitation", "label": "4.5 eV (A3Sigma_u+, C3Delta_u, "
+                                                "c1Sigma_u- lumped)", "level_type": "electronic"}),
+            ("EXCITATION", "O2 -> O2(6 eV)", {"kind": "excitation", "label": "6.0 eV (dissociation)",
+                                              "level_type": "electronic"}),
+            ("EXCITATION", "O2 -> O2(8.4eV)", {"kind": "excitation", "label": "8.4 eV (Schumann-Runge dissociation)",
+                                               "level_type": "electronic"}),
+            ("EXCITATION", "O2 -> O2(LB)", {"kind": "excitation", "label": "9.97 eV (higher states lumped)",
+                                            "level_type": "electronic"}),
+            ("IONIZATION", "O2 -> O2^+", {"kind": "ionization", "label": "total ionization"}),
+        ],
+    },
+    "CO2": {
+        "file": "CO2/others/Cross section (hayashi).e-CO2", "set": "hayashi",
+        "species": {"name": "CO2", "formula": "CO2", "mass_amu": 44.0095, "ionization_energy_eV": 13.777,
+                    "description": "Carbon dioxide, the swarm-derived set of Hayashi (1992)"},
+        "sources": [HAYASHI],
+        "notes": ("Elastic momentum transfer as tabulated. Vibrational excitations as lumped by the source (no "
+                  "superelastic pairs: the levels are not resolved). Ionization energy in the header: NIST "
+                  "Chemistry WebBook 13.777 eV (from memory); the set's ionization threshold is 13.7 eV."),
+        "blocks": [
+            ("ATTACHMENT", "CO2 -> CO + O-", {"kind": "attachment", "label": "dissociative attachment CO2 -> CO + O-"}),
+            ("ELASTIC", "CO2", {"kind": "elastic", "label": "momentum transfer"}),
+            *[("EXCITATION", f"CO2 -> CO2(V{n})({e}eV)", {"kind": "excitation", "label": f"vibration V{n} ({e} eV)",
+                                                          "level_type": "vibrational"})
+              for n, e in ((1, "0.083"), (2, "0.172"), (3, "0.291"), (4, "0.36"), (5, "2.5"))],
+            *[("EXCITATION", f"CO2 -> CO2*({e}eV)", {"kind": "excitation", "label": f"electronic {e} eV",
+                                                     "level_type": "electronic"})
+              for e in ("5.7", "9.0", "11.0")],
+            ("IONIZATION", "CO2 -> CO2^+", {"kind": "ionization", "label": "total ionization"}),
+        ],
+    },
+    "H2O": {
+        "file": "H2O/others/Cross section (itikawa).e-H2O", "set": "itikawa",
+        "species": {"name": "H2O", "formula": "H2O", "mass_amu": 18.0153, "ionization_energy_eV": 12.621,
+                    "description": "Water vapour, the recommended cross sections of Itikawa & Mason (2005)"},
+        "sources": [ITIKAWA_H2O],
+        "notes": ("A review's recommended values, not a swarm-adjusted set: momentum transfer (to 100 eV, constant "
+                  "beyond), rotational excitation J=0-1, 0-2, 0-3 (from the ground level, no de-excitation), "
+                  "vibrational (010) and (100)+(001), total ionization and the three dissociative-attachment "
+                  "channels. The review gives no total electronic excitation (only emission cross sections, left "
+                  "out), so energy losses between 7 and 13 eV are missing: use H2O as a minor admixture (humid air), "
+                  "not as a pure gas. Ionization energy in the header: NIST Chemistry WebBook 12.621 eV (from "
+                  "memory); the review's ionization threshold is 13.5 eV. The ionization table starts with a step "
+                  "(two values at 13.5 eV): the upper value is kept. " + DOI_NOTE),
+        "blocks": [
+            ("ATTACHMENT", "H2O -> H+OH^-", {"kind": "attachment", "label": "dissociative attachment -> OH- + H"}),
+            ("ATTACHMENT", "H2O -> H2+O^-", {"kind": "attachment", "label": "dissociative attachment -> O- + H2"}),
+            ("ATTACHMENT", "H2O -> HO+H^-", {"kind": "attachment", "label": "dissociative attachment -> H- + OH"}),
+            ("ELASTIC", "H2O", {"kind": "elastic", "label": "momentum transfer",
+                                "comment": "Momentum transfer cross sections."}),
+            ("EXCITATION", "H2O -> H2O(rot)", {"kind": "excitation", "label": "rotation J=0-1", "comment": "J=0-1.",
+                                               "level_type": "rotational"}),
+            ("EXCITATION", "H2O -> H2O(rot )", {"kind": "excitation", "label": "rotation J=0-2",
+                                                "comment": "J=0-2.", "level_type": "rotational"}),
+            ("EXCITATION", "H2O -> H2O(rot)", {"kind": "excitation", "label": "rotation J=0-3", "comment": "J=0-3.",
+                                               "level_type": "rotational"}),
+            ("EXCITATION", "H2O -> H2O(v 010)", {"kind": "excitation", "label": "vibration (010)",
+                                                 "level_type": "vibrational"}),
+            ("EXCITATION", "H2O -> H2O(v 100+001)", {"kind": "excitation", "label": "vibration (100)+(001)",
+                                                     "level_type": "vibrational"}),
+            ("IONIZATION", "H2O -> H2O^+", {"kind": "ionization", "label": "total ionization",
+                                            "comment": "Total Ionization."}),
+        ],
+    },
+    "Ar@phelps": {
+        "file": "Ar/others/Cross section (phelps).e-Ar", "set": "phelps",
+        "species": {"name": "Ar", "formula": "Ar", "mass_amu": 39.948, "ionization_energy_eV": 15.7596,
+                    "description": "Argon, the swarm-consistent set of Yamabe, Buckman & Phelps (1983)"},
+        "sources": [YAMABE, RAPP_AR],
+        "notes": ("Effective momentum transfer (elastic part derived on loading), one lumped electronic excitation "
+                  "at 11.5 eV and total ionization. Ionization energy in the header: NIST Atomic Spectra Database "
+                  "15.7596 eV (from memory); the set's ionization threshold is 15.8 eV. " + DOI_NOTE),
+        "blocks": [
+            ("EFFECTIVE", "Ar", {"kind": "effective", "label": "momentum transfer"}),
+            ("EXCITATION", "Ar -> Ar*(11.5eV)", {"kind": "excitation", "label": "electronic excitation (lumped)",
+                                                 "level_type": "electronic"}),
+            ("IONIZATION", "Ar -> Ar^+", {"kind": "ionization", "label": "total ionization", "source": RAPP_AR}),
+        ],
+    },
+}
+OUTPUT_NAME = {"N2": "N2.toml", "O2": "O2.toml", "CO2": "CO2.toml", "H2O": "H2O.toml", "Ar@phelps": "Ar@phelps.toml"}
+OPAL_SPECIES = ("N2", "O2", "Ar", "H2O", "CO2")
+KEYWORDS = ("EFFECTIVE", "ELASTIC", "EXCITATION", "IONIZATION", "ATTACHMENT")
+
+
+def read_blocks(relative_file: str) -> list:
+    """Every table of one data file of the carrier, with its header, through the carrier's own reader."""
+    logging.disable(logging.CRITICAL)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        from elmolcs import reader, tablehandler
+
+        path = os.path.join(reader.ROOT, "cs", relative_file)
+        return tablehandler.TableHandler.readtable(path, key="SPECIES", NA=tablehandler.NA, minrow=3)
+
+
+def opal_w_eV(species: str) -> float:
+    """The Opal–Peterson–Beaty sharing parameter w [eV] of ``species`` from the carrier's constants table (which
+    stores N2, O2, He, Ar, H2 in joules and the other species in eV)."""
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        from elmolcs import constants
+
+    value = float(constants.Constants.ION_FIT[species])
+    return round(value / constants.eV, 6) if value < 1e-10 else value
+
+
+def _keyword(header: dict) -> str:
+    return next((k for k in header if k in KEYWORDS), "")
+
+
+def _reaction(header: dict, keyword: str) -> str:
+    keys = list(header)
+    return keys[keys.index(keyword) + 1].strip()
+
+
+def _find(tables, keyword: str, reaction: str, comment: str | None, where: str):
+    found = [t for t in tables if _keyword(t.attrs["header"]) == keyword
+             and _reaction(t.attrs["header"], keyword) == reaction
+             and (comment is None or comment.lower() in t.attrs["header"].get("COMMENT", "").lower())]
+    if len(found) != 1:
+        raise SystemExit(f"{where}: expected one {keyword} block '{reaction}' (comment {comment!r}), found "
+                         f"{len(found)}")
+    return found[0]
+
+
+def _threshold(header: dict, keyword: str) -> float:
+    if keyword in ("EFFECTIVE", "ELASTIC", "ATTACHMENT"):
+        return 0.0
+    param = header.get("PARAM.", "")
+    text = param.split("E =", 1)[1].split("eV", 1)[0] if "E =" in param else ""
+    return float(text)
+
+
+def build(name: str) -> str:
+    """The TOML text of one shipped file (``name`` a key of RECIPES)."""
+    recipe = RECIPES[name]
+    tables = read_blocks(recipe["file"])
+    carrier = CARRIER.format(file=recipe["file"])
+    processes = []
+    for keyword, reaction, entry in recipe["blocks"]:
+        entry = dict(entry)
+        table = _find(tables, keyword, reaction, entry.pop("comment", None), f"{name} ({recipe['file']})")
+        header = table.attrs["header"]
+        if list(table.attrs["units"][:2]) != ["eV", "m2"]:
+            raise SystemExit(f"{name}: block {reaction} has units {table.attrs['units']}, expected eV and m2")
+        keep = table.iloc[:, 0] <= entry.pop("max_energy_eV", float("inf"))
+        energy = [float(x) for x in table.iloc[:, 0][keep]]
+        sigma = [float(x) for x in table.iloc[:, 1][keep]]
+        steps = [i for i in range(len(energy) - 1) if energy[i] == energy[i + 1]]
+        for i in reversed(steps):  # a step written as a repeated energy: our tables keep the upper value
+            del energy[i], sigma[i]
+        process = {"kind": entry.pop("kind"), "label": entry.pop("label"),
+                   "threshold_eV": _threshold(header, keyword)}
+        process.update({"energy_eV": energy, "cross_section": sigma, "units": "m2"})
+        source = entry.pop("source", recipe["sources"][0])
+        process["source"] = f"{source}; block '{header.get('PROCESS', reaction)}', {carrier}"
+        process["original_keyword"] = keyword
+        process.update(entry)
+        if process["kind"] == "ionization" and recipe["species"]["formula"] in OPAL_SPECIES:
+            process["opb_w_eV"] = opal_w_eV(recipe["species"]["formula"])
+            process["source"] += f"; opb_w_eV: {OPAL}"
+        processes.append(process)
+    species = dict(recipe["species"], set=recipe["set"])
+    data = {"format_version": 1, "species": species,
+            "provenance": {"date": DATE, "sources": [*recipe["sources"], carrier.replace(", file", "; file")],
+                           "notes": recipe["notes"]},
+            "process": processes}
+    text = ("# Built by tools/build_crosssections.py from published data (see [provenance]); do not edit by hand.\n"
+            + dumps_data(data))
+    parse_set(data, f"built {name}")  # the result must load and validate
+    return text
+
+
+def main(argv=None) -> int:
+    parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    parser.add_argument("names", nargs="*", choices=[*RECIPES, []], help="sets to build (default: all)")
+    parser.add_argument("--out", default=str(ROOT / "crosssections"), help="output folder")
+    args = parser.parse_args(argv)
+    for name in args.names or list(RECIPES):
+        path = Path(args.out) / OUTPUT_NAME[name]
+        path.write_text(build(name))
+        print(f"wrote {path}")
+    return 0
+
+
+if __name__ == "__main__":
+    raise SystemExit(main())
