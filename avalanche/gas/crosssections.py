@@ -47,11 +47,16 @@ SUSPICIOUS_m2 = 1e-17
 """A cross section above 1e-17 m² (1000 Å²) is almost surely a unit mistake, whatever unit the file declares
 (typical electron-atom cross sections are 1e-21–1e-18 m², i.e. 1e-17–1e-14 in cm²; common practice). A process
 whose values really are that large says ``allow_large_cross_section = true``."""
+IONIZATION_NOTE_LIMIT_eV = 2.0
+"""Largest difference [eV] between the ionization energy and the lowest ionization threshold that an
+``ionization_energy_note`` may explain (published total-ionization tables of molecules start up to about 1 eV above
+the spectroscopic energy, where the measured cross section becomes appreciable)."""
 IONIZATION_ENERGY_TOLERANCE_eV = 1e-3
 """[species] ionization_energy_eV and the lowest ionization threshold may differ by at most this much [eV] (the
 shipped sets give both to the same digits)."""
 
-_SPECIES_KEYS = {"name", "formula", "mass_amu", "ionization_energy_eV", "description", "set"}
+_SPECIES_KEYS = {"name", "formula", "mass_amu", "ionization_energy_eV", "ionization_energy_note", "description",
+                 "set"}
 _PROVENANCE_KEYS = {"date", "sources", "notes"}
 _TOP_KEYS = {"format_version", "species", "provenance", "process"}
 _PROCESS_KEYS = {
@@ -194,6 +199,9 @@ class CrossSectionSet:
     parameters: dict = field(default_factory=dict)
     set_name: str = ""
     """Name of the data set (``'phelps'`` in ``'N2@phelps'``); empty for sets without alternatives."""
+    ionization_energy_note: str = ""
+    """Why the ionization energy differs from the lowest ionization threshold of the tables, when it does (e.g. a
+    published table that starts at a rounded or an apparent threshold); see :func:`check_ionization_energy`."""
 
     @property
     def energy_range_eV(self) -> tuple[float, float]:
@@ -239,6 +247,8 @@ class CrossSectionSet:
         species = {"name": self.name, "formula": self.formula, "mass_amu": float(self.mass_amu)}
         if self.ionization_energy_eV is not None:
             species["ionization_energy_eV"] = float(self.ionization_energy_eV)
+        if self.ionization_energy_note:
+            species["ionization_energy_note"] = self.ionization_energy_note
         if self.description:
             species["description"] = self.description
         if self.set_name:
@@ -347,19 +357,30 @@ def _table(value, where: str, name: str) -> dict:
     return value
 
 
-def check_ionization_energy(ionization_energy_eV: float | None, processes: Sequence[Process], where: str) -> None:
+def check_ionization_energy(ionization_energy_eV: float | None, processes: Sequence[Process], where: str,
+                            note: str = "") -> None:
     """The species' ionization energy: positive, and equal (within :data:`IONIZATION_ENERGY_TOLERANCE_eV`) to the
-    lowest threshold of its ionization processes, since Penning transfer and energy sharing use it."""
+    lowest threshold of its ionization processes, since Penning transfer and energy sharing use it — unless
+    ``note`` (``[species] ionization_energy_note``) says why a published table starts elsewhere; even then the two
+    may differ by at most :data:`IONIZATION_NOTE_LIMIT_eV`."""
     if ionization_energy_eV is None:
         return
     if ionization_energy_eV <= 0:
         raise CrossSectionError(f"{where}: [species] ionization_energy_eV = {ionization_energy_eV} must be positive "
                                 "(the first ionization energy in eV, e.g. 15.76 for argon)")
     thresholds = [p.threshold_eV for p in processes if p.kind == "ionization"]
-    if thresholds and abs(min(thresholds) - ionization_energy_eV) > IONIZATION_ENERGY_TOLERANCE_eV:
-        raise CrossSectionError(f"{where}: [species] ionization_energy_eV = {ionization_energy_eV} differs from the "
-                                f"lowest ionization threshold_eV = {min(thresholds)}; make them equal (the "
-                                "ionization energy is the threshold of ionization to the ground-state ion)")
+    if not thresholds:
+        return
+    difference = abs(min(thresholds) - ionization_energy_eV)
+    if difference <= IONIZATION_ENERGY_TOLERANCE_eV:
+        return
+    if note.strip() and difference <= IONIZATION_NOTE_LIMIT_eV:
+        return
+    reason = (f"more than {IONIZATION_NOTE_LIMIT_eV:g} eV even with the ionization_energy_note" if note.strip() else
+              "make them equal (the ionization energy is the threshold of ionization to the ground-state ion), or "
+              "say why the tables start elsewhere in [species] ionization_energy_note")
+    raise CrossSectionError(f"{where}: [species] ionization_energy_eV = {ionization_energy_eV} differs from the "
+                            f"lowest ionization threshold_eV = {min(thresholds)}: {reason}")
 
 
 def _parse_process(raw: dict, index: int, base: Path, where_file: str) -> Process:
@@ -508,6 +529,9 @@ def parse_set(data: dict, where: str, base: Path | None = None) -> CrossSectionS
     ion = species.get("ionization_energy_eV")
     if ion is not None:
         ion = _as_float(ion, f"{where}: [species]", "ionization_energy_eV")
+    note = species.get("ionization_energy_note", "")
+    if not isinstance(note, str):
+        raise CrossSectionError(f"{where}: [species] ionization_energy_note must be text in quotes, got {note!r}")
     provenance = _table(data.get("provenance", {}), where, "provenance")
     for key in provenance:
         if key not in _PROVENANCE_KEYS:
@@ -520,11 +544,11 @@ def parse_set(data: dict, where: str, base: Path | None = None) -> CrossSectionS
     check_processes(processes, where)
     processes = resolve_effective(processes, where)
     check_levels(processes, where)
-    check_ionization_energy(ion, processes, where)
+    check_ionization_energy(ion, processes, where, note)
     return CrossSectionSet(name=name, formula=str(species.get("formula", name)), mass_amu=mass,
                            ionization_energy_eV=ion, processes=processes, provenance=dict(provenance),
                            description=str(species.get("description", "")), path=None,
-                           set_name=str(species.get("set", "")))
+                           set_name=str(species.get("set", "")), ionization_energy_note=note)
 
 
 def load_set(path: str | Path) -> CrossSectionSet:
@@ -624,16 +648,18 @@ def process_from_table(table, *, kind: str, label: str, threshold_eV: float, ene
 
 def make_set(name: str, *, mass_amu: float, processes: Sequence[Process], formula: str | None = None,
              ionization_energy_eV: float | None = None, provenance: dict | None = None,
-             description: str = "", parameters: dict | None = None) -> CrossSectionSet:
-    """Assemble a validated :class:`CrossSectionSet` in Python (e.g. from :func:`process_from_table` results)."""
+             description: str = "", parameters: dict | None = None,
+             ionization_energy_note: str = "") -> CrossSectionSet:
+    """Assemble a validated :class:`CrossSectionSet` in Python (e.g. from :func:`process_from_table` results);
+    ``ionization_energy_note`` as in :func:`check_ionization_energy`."""
     where = f"set '{name}'"
     if not (isinstance(mass_amu, (int, float)) and mass_amu > 0 and math.isfinite(mass_amu)):
         raise CrossSectionError(f"{where}: mass_amu = {mass_amu!r} must be a positive number")
     check_processes(tuple(processes), where)
     processes = resolve_effective(tuple(processes), where)
     check_levels(processes, where)
-    check_ionization_energy(ionization_energy_eV, processes, where)
+    check_ionization_energy(ionization_energy_eV, processes, where, ionization_energy_note)
     return CrossSectionSet(name=name, formula=formula or name, mass_amu=float(mass_amu),
                            ionization_energy_eV=ionization_energy_eV, processes=tuple(processes),
                            provenance=dict(provenance or {}), description=description,
-                           parameters=dict(parameters or {}))
+                           parameters=dict(parameters or {}), ionization_energy_note=ionization_energy_note)
