@@ -27,7 +27,7 @@ from pathlib import Path
 ROOT = Path(__file__).resolve().parents[1]
 sys.path.insert(0, str(ROOT))
 
-from avalanche.gas.crosssections import dumps_data, parse_set  # noqa: E402
+from avalanche.gas.crosssections import SUSPICIOUS_m2, dumps_data, parse_set  # noqa: E402
 
 CARRIER = ("carried by the data package elmolcs 0.0.3 (A. Jesenek, GPL-3.0-or-later), file {file}, read with its "
            "table reader elmolcs.tablehandler.TableHandler.readtable")
@@ -294,11 +294,18 @@ def build(name: str) -> str:
         process["source"] = f"{source}; block '{header.get('PROCESS', reaction)}', {carrier}"
         process["original_keyword"] = keyword
         process.update(entry)
+        if max(sigma) > SUSPICIOUS_m2:  # e.g. rotational excitation of a polar molecule near threshold: real
+            process["allow_large_cross_section"] = True
         if process["kind"] == "ionization" and recipe["species"]["formula"] in OPAL_SPECIES:
             process["opb_w_eV"] = opal_w_eV(recipe["species"]["formula"])
             process["source"] += f"; opb_w_eV: {OPAL}"
         processes.append(process)
     species = dict(recipe["species"], set=recipe["set"])
+    thresholds = [p["threshold_eV"] for p in processes if p["kind"] == "ionization"]
+    if thresholds and abs(min(thresholds) - species["ionization_energy_eV"]) > 1e-3:
+        species["ionization_energy_note"] = (
+            f"the published ionization table starts at its own threshold, {min(thresholds):g} eV; the header keeps "
+            "the spectroscopic ionization energy (provenance notes), which Penning transfer uses")
     data = {"format_version": 1, "species": species,
             "provenance": {"date": DATE, "sources": [*recipe["sources"], carrier.replace(", file", "; file")],
                            "notes": recipe["notes"]},

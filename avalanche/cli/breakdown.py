@@ -31,10 +31,10 @@ from .common import (
     value_error,
 )
 from .registry import command, print_json
+from .units import length_m, pressure_Pa, reduced_fields_Td
 
 PD_UNITS_Pa_m = {"torrcm": TORR_Pa / 100.0, "pam": 1.0}
 """Units accepted by ``--pd`` → their value in Pa m (1 Torr cm = 133.322 Pa × 0.01 m)."""
-_LENGTH_UNITS_m = {"m": 1.0, "cm": 1e-2, "mm": 1e-3, "um": 1e-6}
 DEFAULT_PD_UNIT = "torrcm"
 DEFAULT_PD_POINTS = 30
 DEFAULT_BREAKDOWN_GRID = "50:5000:12"
@@ -95,28 +95,12 @@ def parse_pd(text: str) -> np.ndarray:
 
 
 def parse_field_grid(text: str, name: str = "--en") -> np.ndarray:
-    """Reduced fields [Td] of ``LOW:HIGH:COUNT`` (log-spaced) or ``VALUE,VALUE,...``."""
-    try:
-        if ":" in text:
-            low, high, count = text.split(":")
-            low, high, count = float(low), float(high), int(count)
-            if not (0 < low < high) or count < 2:
-                raise ValueError
-            return np.geomspace(low, high, count)
-        values = np.array([float(v) for v in text.split(",")])
-    except ValueError:
-        raise ConfigError(f"{name} {text!r}: give LOW:HIGH:COUNT (log-spaced, Td) or a comma list, e.g. "
-                          f"{DEFAULT_BREAKDOWN_GRID}") from None
-    if values.size < 2 or np.any(values <= 0):
-        raise ConfigError(f"{name} {text!r}: give at least two positive reduced fields")
-    return np.sort(values)
-
-
-def _length_m(text: str, spec: str) -> float:
-    match = re.fullmatch(r"\s*([0-9.eE+-]+)\s*(m|cm|mm|um)?\s*", text)
-    if not match:
-        raise ConfigError(f"--geometry {spec!r}: {text!r} is not a length; give e.g. 2mm, 0.5cm or 0.01 (metres)")
-    return float(match.group(1)) * _LENGTH_UNITS_m[match.group(2) or "m"]
+    """Reduced fields [Td] in the one E/N syntax (:func:`avalanche.cli.units.reduced_fields_Td`), sorted; at least
+    two."""
+    values = np.unique(reduced_fields_Td(text, name))
+    if values.size < 2:
+        raise ConfigError(f"{name} {text!r}: give at least two reduced fields, e.g. {DEFAULT_BREAKDOWN_GRID}")
+    return values
 
 
 GEOMETRIES = {"plane": 1, "coaxial": 2, "spheres": 2, "sphere": 1}
@@ -133,7 +117,7 @@ def parse_geometry(spec: str):
     if kind not in GEOMETRIES:
         raise ConfigError(f"--geometry {spec!r}: unknown kind {kind!r}{did_you_mean(kind, GEOMETRIES)}; use "
                           "plane:GAP, coaxial:INNER,OUTER, spheres:INNER,OUTER or sphere:RADIUS")
-    values = [_length_m(item, spec) for item in lengths.split(",") if item.strip()]
+    values = [length_m(item, f"--geometry {spec!r}:") for item in lengths.split(",") if item.strip()]
     if len(values) != GEOMETRIES[kind]:
         raise ConfigError(f"--geometry {spec!r}: {kind} needs {GEOMETRIES[kind]} length(s), got {len(values)}")
     build = {"plane": PlaneGap, "coaxial": CoaxialGap, "spheres": ConcentricSpheres, "sphere": IsolatedSphere}
@@ -166,7 +150,7 @@ def _breakdown_configure(p) -> None:
     p.add_argument("--seed", type=int, default=0, help="master seed of computed points (0)")
     p.add_argument("--temperature", type=float, default=None, metavar="K",
                    help="gas temperature relating p to N [K] (default: the results file's, else 300)")
-    p.add_argument("--pressure", type=float, default=None, metavar="PA",
+    p.add_argument("--pressure", type=pressure_Pa, default=None, metavar="P",
                    help="gas pressure [Pa] of computed points (three-body processes) and of --geometry "
                         "(default 1 atm)")
     p.add_argument("--geometry", default=None, metavar="KIND:LENGTHS",
@@ -174,7 +158,8 @@ def _breakdown_configure(p) -> None:
                         "or sphere:RADIUS; lengths in m, or with mm/cm suffix (e.g. coaxial:1mm,20mm)")
     p.add_argument("--json", action="store_true", help="print the result as JSON (minimum_voltage_V, "
                                                        "minimum_pd_Pa_m, the curve arrays, caution)")
-    p.add_argument("--out", default=".", metavar="DIR", help="folder for the plot and CSV tables (current folder)")
+    p.add_argument("--out-dir", "--out", dest="out", default=".", metavar="DIR",
+                   help="folder for the plot and CSV tables (current folder; --out is the older spelling)")
     p.add_argument("--format", default="png,pdf", help="figure formats (png,pdf)")
 
 
@@ -367,7 +352,8 @@ def _emission_configure(p) -> None:
     results_arguments(p)
     p.add_argument("--en", default=None, metavar="TD,...",
                    help="E/N [Td] (nearest computed points; default every point of the sweep)")
-    p.add_argument("--out", default=".", metavar="DIR", help="folder for the spectra and the CSV (current folder)")
+    p.add_argument("--out-dir", "--out", dest="out", default=".", metavar="DIR",
+                   help="folder for the spectra and the CSV (current folder; --out is the older spelling)")
     p.add_argument("--json", action="store_true", help="print the estimates as JSON")
     p.add_argument("--format", default="png,pdf", help="figure formats (png,pdf)")
 

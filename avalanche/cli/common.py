@@ -2,13 +2,13 @@
 
 from __future__ import annotations
 
-import math
 import sys
 
 import numpy as np
 
 from ..analysis.tables import SwarmTable, did_you_mean
 from ..errors import ConfigError
+from .units import reduced_fields_Td
 
 SST_MODE = "steady-state-townsend"
 
@@ -131,16 +131,9 @@ def spread(count: int, points: int) -> list[int]:
 
 
 def fields_option(text: str | None, name: str) -> list[float] | None:
-    items = split_list(text)
-    if items is None:
-        return None
-    try:
-        values = [float(item) for item in items]
-    except ValueError:
-        raise ConfigError(f"{name} {text!r}: give reduced fields in Td separated by commas, e.g. 10,100") from None
-    if any(not math.isfinite(v) or v <= 0 for v in values):
-        raise ConfigError(f"{name} {text!r}: reduced fields must be positive")
-    return values
+    """Reduced fields [Td] of an option in the one E/N syntax (:func:`avalanche.cli.units.reduced_fields_Td`), or
+    None when the option is not given."""
+    return None if text is None else reduced_fields_Td(text, name).tolist()
 
 
 def value_error(entry):

@@ -102,7 +102,7 @@ def run_demo(out_dir: str | Path, run_command: Callable[[list[str]], int],
     print(table_summary(table))
 
     print(f"\n[2/5] plots with the handbook Townsend formula -> {out / 'demo_plots'}")
-    _step(run_command, ["plot", str(results), "--out", str(out / "demo_plots"), "--format", "png", "--force"])
+    _step(run_command, ["plot", str(results), "--out-dir", str(out / "demo_plots"), "--format", "png", "--force"])
     print(f"\n[3/5] fluid-model rate table -> {out / 'demo_rates.csv'}")
     _step(run_command, ["table", str(results), "--out", str(out / "demo_rates.csv"), "--force"])
     print(f"\n[4/5] one RF point: {DEMO_AC_AMPLITUDE_Td:g} Td amplitude at {DEMO_AC_FREQUENCY_Hz / 1e6:g} MHz -> "
@@ -114,7 +114,7 @@ def run_demo(out_dir: str | Path, run_command: Callable[[list[str]], int],
     _step(run_command, ["breakdown", "--gas", "Ar", "--pressure", "1000", "--temperature", "300",
                         "--coefficients", "sst", "--en", fields, "--gamma", f"{DEMO_GAMMA:g}",
                         "--pd", DEMO_PD_TORR_CM, "--precision", "0.03",
-                        "--out", str(out / "demo_paschen"), "--format", "png"])
+                        "--out-dir", str(out / "demo_paschen"), "--format", "png"])
     written = {"sweep": [runfile, results], "plots": sorted((out / "demo_plots").glob("demo_*")),
                "table": [out / "demo_rates.csv"], "ac": [ac_file],
                "paschen": sorted((out / "demo_paschen").glob("paschen_*"))}

@@ -36,7 +36,8 @@ from .registry import command
 
 def _plot_configure(p) -> None:
     results_arguments(p)
-    p.add_argument("--out", default=".", metavar="DIR", help="folder for the figures (default: current folder)")
+    p.add_argument("--out-dir", "--out", dest="out", default=".", metavar="DIR",
+                   help="folder for the figures (default: current folder; --out is the older spelling)")
     p.add_argument("--quantity", default=None, metavar="LIST",
                    help="comma list of quantities or panels, e.g. alpha_N,drift_velocity_bulk; 'drift_velocity', "
                         "'long_diffusion_N', 'trans_diffusion_N' draw flux and bulk together, 'rate_coefficients' "

@@ -7,13 +7,15 @@ import math
 
 from .common import magnetic_field_value, magnetic_selection
 from .registry import SAFETY_NOTE, command, print_json
+from .units import one_reduced_field_Td, pressure_Pa
 
 
 def _mixture_arguments(p) -> None:
     p.add_argument("--gas", default="Ar", help='gas or mixture, e.g. "Ar", "Ne:0.99,Ar:0.01", "air" (default Ar)')
     p.add_argument("--temperature", type=float, default=300.0, metavar="K", help="gas temperature [K] (300)")
     density = p.add_mutually_exclusive_group()
-    density.add_argument("--pressure", type=float, metavar="PA", help="gas pressure [Pa] (default 1 atm)")
+    density.add_argument("--pressure", type=pressure_Pa, metavar="P",
+                         help="gas pressure: Pa, or with a unit: 10torr, 1atm, 5kPa, 100mbar (default 1 atm)")
     density.add_argument("--density", type=float, metavar="M3", help="gas number density [m^-3]")
     p.add_argument("--penning", default=None, metavar="GROUP:R",
                    help='Penning transfer probabilities, e.g. "Ne:0.3" or "Ne:1s:0.2,Ne:2p->Ar:0.5" (default none)')
@@ -33,7 +35,7 @@ def point_arguments(p, precision: float, electrons_help: str) -> None:
     """The arguments of one simulated point shared by ``swarm`` and ``townsend``: gas, E/N, precision, budget,
     electrons, seed, sharing and scattering rules."""
     _mixture_arguments(p)
-    p.add_argument("--en", type=float, required=True, metavar="TD", help="reduced field E/N [Td]")
+    p.add_argument("--en", type=one_reduced_field_Td, required=True, metavar="TD", help="reduced field E/N [Td]")
     p.add_argument("--precision", type=float, default=precision,
                    help=f"target relative standard error ({precision:g})")
     p.add_argument("--max-events", type=float, default=None, help="collision-event budget (null events included)")

@@ -90,3 +90,12 @@ def reduced_fields_Td(text: str, option: str = "--en") -> np.ndarray:
     if bad.size:
         raise ConfigError(f"{option} {text!r}: E/N {bad[0]:g} Td must be positive and finite")
     return fields
+
+
+def one_reduced_field_Td(text: str, option: str = "--en") -> float:
+    """Exactly one reduced field [Td] in the E/N syntax of :func:`reduced_fields_Td` (commands of one point)."""
+    values = reduced_fields_Td(text, option)
+    if values.size != 1:
+        raise ConfigError(f"{option} {text!r}: this command computes one point; give one E/N, or run a sweep "
+                          "(avalanche sweep) for several")
+    return float(values[0])
