@@ -11,6 +11,7 @@ from .flight import (  # noqa: F401
     SINE_SERIES_LIMIT,
     accel_and_slope,
     field_flight,
+    field_frame_flight,
     gyration_coefficients,
     instantaneous_accel,
     jerk_coefficients,

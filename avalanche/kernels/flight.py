@@ -60,6 +60,8 @@ def field_flight(t, tau, accel_dc, accel_ac, omega, phase):
 
 SINE_SERIES_LIMIT = 0.05
 """ωτ [rad] up to which :func:`sine_flight` takes 1 − cos ωτ and ωτ − sin ωτ from their Taylor series."""
+GYRATION_SERIES_LIMIT = 0.25
+"""ω_c τ [rad] up to which :func:`gyration_coefficients` takes its functions from their Taylor series."""
 
 
 @jit
@@ -108,18 +110,22 @@ def gyration_coefficients(tau, omega_c):
 
     Returns cos δ, sin δ (δ = ω_c τ) and the integrals of the rotation k₁ + i k₂ = ∫₀^τ e^{iω_c u} du,
     k₃ + i k₄ = ∫₀^τ (τ − u) e^{iω_c u} du: k₁ = sin δ/ω_c, k₂ = (1 − cos δ)/ω_c, k₃ = (1 − cos δ)/ω_c²,
-    k₄ = (δ − sin δ)/ω_c² (finite as ω_c → 0: τ, 0, τ²/2, 0). For δ ≤ ``SINE_SERIES_LIMIT`` they come from the
-    Taylor series of f₁ = sin δ/δ, f₂ = (1 − cos δ)/δ², f₃ = (δ − sin δ)/δ³ in δ², three terms each (the first
-    omitted term, δ⁶/5040 of f₁ or less, is below 1e-19 of the sum), so such a flight costs no trigonometric call
+    k₄ = (δ − sin δ)/ω_c² (finite as ω_c → 0: τ, 0, τ²/2, 0). For δ ≤ ``GYRATION_SERIES_LIMIT`` they come from
+    the Taylor series of f₁ = sin δ/δ, f₂ = (1 − cos δ)/δ², f₃ = (δ − sin δ)/δ³ in δ², six terms each (the first
+    omitted term, δ¹²/13! of f₁ or less, is below 1e-17 of the sum), so such a flight costs no trigonometric call
     or division and δ = 0 is exact; above it, from sin and cos of δ/2 (1 − cos δ = 2 sin²(δ/2), sin δ =
-    2 sin(δ/2) cos(δ/2)), where δ − sin δ loses at most 6/δ² < 2.4e3 ulp.
+    2 sin(δ/2) cos(δ/2)), where δ − sin δ loses at most 6/δ² < 100 ulp. The limit is high enough that, for
+    ω_c up to about ν*/3, nearly every flight takes the series and the branch is predictable.
     """
     delta = omega_c * tau
-    if delta <= SINE_SERIES_LIMIT:
+    if delta <= GYRATION_SERIES_LIMIT:
         d2 = delta * delta
-        f1 = 1.0 - d2 * (1.0 / 6.0 - d2 * (1.0 / 120.0))
-        f2 = 0.5 - d2 * (1.0 / 24.0 - d2 * (1.0 / 720.0))
-        f3 = 1.0 / 6.0 - d2 * (1.0 / 120.0 - d2 * (1.0 / 5040.0))
+        f1 = 1.0 - d2 * (1.0 / 6.0 - d2 * (1.0 / 120.0 - d2 * (1.0 / 5040.0 - d2 * (
+            1.0 / 362880.0 - d2 * (1.0 / 39916800.0)))))
+        f2 = 0.5 - d2 * (1.0 / 24.0 - d2 * (1.0 / 720.0 - d2 * (1.0 / 40320.0 - d2 * (
+            1.0 / 3628800.0 - d2 * (1.0 / 479001600.0)))))
+        f3 = 1.0 / 6.0 - d2 * (1.0 / 120.0 - d2 * (1.0 / 5040.0 - d2 * (1.0 / 362880.0 - d2 * (
+            1.0 / 39916800.0 - d2 * (1.0 / 6227020800.0)))))
         k1 = tau * f1
         k3 = tau * tau * f2
         return 1.0 - d2 * f2, delta * f1, k1, delta * tau * f2, k3, delta * tau * tau * f3
@@ -184,18 +190,11 @@ def magnetic_flight(tau, vx, vy, vz, accel, jerk, bx, bz, omega_c):
     (float, float, float, float, float, float)
         Velocity at the end [m s⁻¹] and displacement [m].
     """
-    cos_d, sin_d, k1, k2, k3, k4 = gyration_coefficients(tau, omega_c)
-    v_par = bx * vx + bz * vz
-    w1 = bz * vx - bx * vz
-    a_par = accel * bz
-    a1 = -accel * bx
-    new_par = v_par + a_par * tau
-    r_par = (v_par + 0.5 * a_par * tau) * tau
-    new_w1 = (w1 * cos_d - vy * sin_d) + a1 * k1
-    new_w2 = (vy * cos_d + w1 * sin_d) + a1 * k2
-    r1 = (w1 * k1 - vy * k2) + a1 * k3
-    r2 = (vy * k1 + w1 * k2) + a1 * k4
+    v_par, w1, w2 = bx * vx + bz * vz, bz * vx - bx * vz, vy
+    new_par, new_w1, new_w2, r_par, r1, r2 = field_frame_flight(tau, v_par, w1, w2, accel * bz, -accel * bx,
+                                                                omega_c)
     if jerk != 0.0:  # AC drives only
+        k3, k4 = gyration_coefficients(tau, omega_c)[4:]
         k5, k6 = jerk_coefficients(tau, omega_c)
         j_par = jerk * bz
         j1 = -jerk * bx
@@ -207,6 +206,18 @@ def magnetic_flight(tau, vx, vy, vz, accel, jerk, bx, bz, omega_c):
         r2 += j1 * k6
     return (new_par * bx + new_w1 * bz, new_w2, new_par * bz - new_w1 * bx,
             r_par * bx + r1 * bz, r2, r_par * bz - r1 * bx)
+
+
+@jit
+def field_frame_flight(tau, v_par, w1, w2, a_par, a1, omega_c):
+    """:func:`magnetic_flight` for a constant field in the frame (ê₁, ê₂, b̂) of B: velocity (w₁, w₂, v∥) and
+    acceleration (a₁, 0, a∥) in, the velocity at the end and the displacement (r∥, r₁, r₂) out (returned as v∥, w₁,
+    w₂, r∥, r₁, r₂). The time-of-flight kernel keeps an electron's velocity in this frame from flight to flight
+    (each flight is then a rotation and a shift of w, whose chain of dependent operations is short) and converts it
+    only after a real collision."""
+    cos_d, sin_d, k1, k2, k3, k4 = gyration_coefficients(tau, omega_c)
+    return (v_par + a_par * tau, (w1 * cos_d - w2 * sin_d) + a1 * k1, (w2 * cos_d + w1 * sin_d) + a1 * k2,
+            (v_par + 0.5 * a_par * tau) * tau, (w1 * k1 - w2 * k2) + a1 * k3, (w2 * k1 + w1 * k2) + a1 * k4)
 
 
 @jit

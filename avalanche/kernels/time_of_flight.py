@@ -60,9 +60,9 @@ from .collisions import (
 )
 from .flight import (
     field_flight,
+    field_frame_flight,
     instantaneous_accel,
     magnetic_field_flight,
-    magnetic_flight,
     phase_bin,
     sine_flight,
     table_flight,
@@ -120,6 +120,12 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
     bz = magnetic[1]
     omega_c = magnetic[2]
     has_b = omega_c > 0.0
+    a_par = accel_dc * bz  # the electric acceleration in the frame of B (a₁, 0, a∥), see field_frame_flight
+    a_1 = -accel_dc * bx
+    v_par = 0.0
+    w_1 = 0.0
+    w_2 = 0.0
+    in_frame = False  # whether (w_1, w_2, v_par) hold the electron's velocity (set again after every collision)
     sum_vx = 0.0
     sum_vy = 0.0
     sum_x = 0.0
@@ -170,6 +176,7 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
         uz = vz[r, i]
         t = t0 if i < n_initial else birth[r, i]
         vperp2 = ux * ux + uy * uy  # v_x² + v_y² changes only in collisions
+        in_frame = False
         alive = True
         if sine:  # AC: cos, sin of the drive's phase at the electron's start, then carried from flight to flight
             cos_theta = math.cos(omega * t + phase)
@@ -185,11 +192,22 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
                     ux, uy, uz, dx, dy, dz = magnetic_field_flight(t, tau, ux, uy, uz, accel_dc, accel_ac, omega,
                                                                    phase, period_s, wave_time, wave_accel, bx, bz,
                                                                    omega_c)
-                else:
-                    ux, uy, uz, dx, dy, dz = magnetic_flight(tau, ux, uy, uz, accel_dc, 0.0, bx, bz, omega_c)
-                px += dx
-                py += dy
-                pz += dz
+                    px += dx
+                    py += dy
+                    pz += dz
+                else:  # DC: the velocity stays in the frame of B between collisions
+                    if not in_frame:
+                        v_par = bx * ux + bz * uz
+                        w_1 = bz * ux - bx * uz
+                        w_2 = uy
+                        in_frame = True
+                    v_par, w_1, w_2, r_par, r_1, r_2 = field_frame_flight(tau, v_par, w_1, w_2, a_par, a_1, omega_c)
+                    ux = v_par * bx + w_1 * bz
+                    uy = w_2
+                    uz = v_par * bz - w_1 * bx
+                    px += r_par * bx + r_1 * bz
+                    py += r_2
+                    pz += r_par * bz - r_1 * bx
                 t += tau
                 vperp2 = ux * ux + uy * uy
                 if sine:
@@ -315,6 +333,7 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
                     if child == CHILD_PENNING:
                         bin_process[pb, penning_slot[k]] += 1
             vperp2 = ux * ux + uy * uy
+            in_frame = False
         if status != 0:
             break
         if alive:

@@ -32,10 +32,10 @@ def _lorentz(v0, a, j, omega_vec, tau):
     return sol.y[3:, -1], sol.y[:3, -1]
 
 
-@pytest.mark.parametrize("delta", [1e-4, 0.03, 0.07, 1.3, 9.0])
+@pytest.mark.parametrize("delta", [1e-4, 0.03, 0.07, 0.24, 0.26, 1.3, 9.0])
 def test_closed_form_flight_matches_numerical_integration_of_the_lorentz_force(delta):
     # Reference: the equation of motion integrated numerically by scipy.integrate.solve_ivp (a general-purpose
-    # library), against the closed form of magnetic_flight on both sides of the series limit δ = 0.05. Tolerance:
+    # library), against the closed form of magnetic_flight on both sides of the series limits (0.05, 0.25). Tolerance:
     # the integrator's rtol 1e-12, times the cancellation of the components (a few 1e-10 of the largest).
     # The field is along z (the kernels' convention) and b̂ in the x–z plane at a random angle; v is random, so every
     # relative orientation occurs (up to a rotation about z, a symmetry of the motion).
