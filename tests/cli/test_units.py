@@ -47,3 +47,16 @@ def test_one_syntax_for_reduced_fields():
     for bad in ("0", "10:1000", "a", "10:1000:0", "-1,2", ""):
         with pytest.raises(ConfigError, match="--en"):
             reduced_fields_Td(bad)
+
+
+def test_the_command_line_reads_units_and_one_syntax():
+    from avalanche.cli.main import build_parser
+
+    parser = build_parser()
+    torr = parser.parse_args(["swarm", "--en", "100", "--pressure", "10torr"])
+    pascal = parser.parse_args(["swarm", "--en", "100", "--pressure", "1333.22"])
+    assert torr.pressure == pytest.approx(pascal.pressure, rel=4e-6)  # 1333.22 is 10 Torr to six digits
+    assert parser.parse_args(["plot", "r.h5", "--out-dir", "figs"]).out == "figs"
+    assert parser.parse_args(["plot", "r.h5", "--out", "figs"]).out == "figs"  # the older spelling still works
+    with pytest.raises(SystemExit):  # one point: one E/N
+        parser.parse_args(["swarm", "--en", "10,20"])
