@@ -211,15 +211,27 @@ def speed_from_energy(energy_eV):
 
 
 @jit
+def normal_pair(s0, s1, s2, s3):
+    """Two independent standard normal numbers (Marsaglia & Bray 1964, SIAM Rev. 6 260, polar method), and the new
+    generator state."""
+    while True:
+        a, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
+        b, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
+        x = 2.0 * a - 1.0
+        y = 2.0 * b - 1.0
+        r2 = x * x + y * y
+        if 0.0 < r2 < 1.0:
+            scale = math.sqrt(-2.0 * math.log(r2) / r2)
+            return x * scale, y * scale, s0, s1, s2, s3
+
+
+@jit
 def target_velocity(thermal_speed, s0, s1, s2, s3):
-    """A target velocity from the Maxwellian of thermal speed √(kT/M) (Box–Muller), and the new generator state."""
-    a1, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
-    a2, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
-    a3, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
-    a4, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
-    radius = thermal_speed * math.sqrt(-2.0 * math.log(1.0 - a1))
-    tz = thermal_speed * math.sqrt(-2.0 * math.log(1.0 - a3)) * math.cos(TWO_PI * a4)
-    return radius * math.cos(TWO_PI * a2), radius * math.sin(TWO_PI * a2), tz, s0, s1, s2, s3
+    """A target velocity from the Maxwellian of thermal speed √(kT/M) (three normal components from two polar
+    pairs, :func:`normal_pair`), and the new generator state."""
+    n1, n2, s0, s1, s2, s3 = normal_pair(s0, s1, s2, s3)
+    n3, _, s0, s1, s2, s3 = normal_pair(s0, s1, s2, s3)
+    return thermal_speed * n1, thermal_speed * n2, thermal_speed * n3, s0, s1, s2, s3
 
 
 @jit

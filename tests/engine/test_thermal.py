@@ -146,6 +146,22 @@ def test_default_start_energy_depends_on_the_temperature():
 
 # --------------------------------------------------------------------------------------------- the sampler
 
+def test_target_velocities_are_maxwellian():
+    # Sampler against its law (kind b): each component of V is normal with variance kT/M (Maxwell; polar method of
+    # Marsaglia & Bray 1964, SIAM Rev. 6 260), components independent (KS on each and on |V|, a χ₃ law).
+    state = tuple(np.uint64(x) for x in np.random.SeedSequence(23).generate_state(4, np.uint64))
+    speed = 790.0
+    samples = np.empty((8_000, 3))
+    for i in range(samples.shape[0]):
+        *velocity, s0, s1, s2, s3 = K.target_velocity(speed, *state)
+        samples[i] = velocity
+        state = tuple(np.uint64(x) for x in (s0, s1, s2, s3))
+    for column in samples.T:
+        assert stats.kstest(column / speed, "norm").pvalue > 1e-3
+    assert stats.kstest(np.linalg.norm(samples, axis=1) / speed, stats.chi(3).cdf).pvalue > 1e-3
+    assert abs(np.corrcoef(samples.T)[0, 1]) < 4 / math.sqrt(samples.shape[0])
+
+
 def test_trial_event_accepts_at_the_maxwellian_mean_relative_speed():
     # Sampler against its analytic law (kind b). Two species: group 0 = {A: hard sphere ν = c_A g, B: constant
     # ν_B}, thermal speed a0 = v; group 1 = {C: hard sphere c_C g}, a1 = 2v. Per trial event the probability of a
