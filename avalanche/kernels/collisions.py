@@ -230,15 +230,27 @@ def speed_from_energy(energy_eV):
 
 
 @jit
+def normal_pair(s0, s1, s2, s3):
+    """Two independent standard normal numbers (Marsaglia & Bray 1964, SIAM Rev. 6 260, polar method), and the new
+    generator state."""
+    while True:
+        a, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
+        b, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
+        x = 2.0 * a - 1.0
+        y = 2.0 * b - 1.0
+        r2 = x * x + y * y
+        if 0.0 < r2 < 1.0:
+            scale = math.sqrt(-2.0 * math.log(r2) / r2)
+            return x * scale, y * scale, s0, s1, s2, s3
+
+
+@jit
 def target_velocity(thermal_speed, s0, s1, s2, s3):
-    """A target velocity from the Maxwellian of thermal speed √(kT/M) (Box–Muller), and the new generator state."""
-    a1, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
-    a2, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
-    a3, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
-    a4, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
-    radius = thermal_speed * math.sqrt(-2.0 * math.log(1.0 - a1))
-    tz = thermal_speed * math.sqrt(-2.0 * math.log(1.0 - a3)) * math.cos(TWO_PI * a4)
-    return radius * math.cos(TWO_PI * a2), radius * math.sin(TWO_PI * a2), tz, s0, s1, s2, s3
+    """A target velocity from the Maxwellian of thermal speed √(kT/M) (three normal components from two polar
+    pairs, :func:`normal_pair`), and the new generator state."""
+    n1, n2, s0, s1, s2, s3 = normal_pair(s0, s1, s2, s3)
+    n3, _, s0, s1, s2, s3 = normal_pair(s0, s1, s2, s3)
+    return thermal_speed * n1, thermal_speed * n2, thermal_speed * n3, s0, s1, s2, s3
 
 
 @jit
@@ -439,3 +451,40 @@ def scatter_moving_target(kind, k, ux, uy, uz, tx, ty, tz, energy_rel_eV, action
         wy += ty
         wz += tz
     return ux + tx, uy + ty, uz + tz, child, wx, wy, wz, s0, s1, s2, s3
+
+
+@jit
+def trial_event(level, energy_eV, e_cell, ux, uy, uz, inv_cell_eV, nu_star, nu_total, nu_cumulative, thermal_groups,
+                s0, s1, s2, s3):
+    """One trial event of the null-collision method at ``level`` = u ν* [s⁻¹] for an electron of energy
+    ``energy_eV`` (grid coordinate ``e_cell`` = ε/Δε < n_cells) and velocity (ux, uy, uz) [m/s].
+
+    Cold gas (``thermal_groups`` empty): the total frequency interpolated at ε decides real or null and the
+    process is selected at ε (Skullerud 1968), targets at rest. Gas at T > 0: :func:`thermal_trial`. Returns
+    (k, tx, ty, tz, collision_energy_eV, above, s0, s1, s2, s3): the process (−1 for a null event), the target
+    velocity [m/s], the energy the tables were read at [eV] (ε, or the relative energy), 1 if a frequency exceeded
+    its bound, and the generator state.
+    """
+    if thermal_groups[0].shape[0] > 0:
+        return thermal_trial(level, ux, uy, uz, int(e_cell), inv_cell_eV, nu_cumulative, thermal_groups,
+                             s0, s1, s2, s3)
+    c = int(e_cell)
+    f = e_cell - c
+    low = nu_total[c]
+    nu = low + f * (nu_total[c + 1] - low)
+    above = 1 if nu > nu_star else 0
+    if level >= nu:
+        return -1, 0.0, 0.0, 0.0, energy_eV, above, s0, s1, s2, s3
+    k = select_process(level, c, f, nu_cumulative, nu_cumulative.shape[1])
+    return k, 0.0, 0.0, 0.0, energy_eV, above, s0, s1, s2, s3
+
+
+@jit
+def collide(kind, k, ux, uy, uz, tx, ty, tz, collision_energy_eV, thermal, action_args, s0, s1, s2, s3):
+    """A real, non-attaching collision decided by :func:`trial_event`: with the target (tx, ty, tz) at T > 0
+    (``thermal``, :func:`scatter_moving_target`), else with a target at rest (:func:`scatter_electron`). Same
+    returns as :func:`scatter_electron`."""
+    if thermal:
+        return scatter_moving_target(kind, k, ux, uy, uz, tx, ty, tz, collision_energy_eV, action_args,
+                                     s0, s1, s2, s3)
+    return scatter_electron(kind, k, ux, uy, uz, collision_energy_eV, action_args, s0, s1, s2, s3)

@@ -41,11 +41,9 @@ from .collisions import (
     CHILD_NONE,
     CHILD_PENNING,
     ENERGY_PER_SPEED2_eV,
+    collide,
     next_uniform,
-    scatter_electron,
-    scatter_moving_target,
-    select_process,
-    thermal_trial,
+    trial_event,
 )
 from .jit import jit, jit_parallel
 
@@ -155,9 +153,6 @@ def _pass_replica(r, z, vx, vy, vz, count, bank_vx, bank_vy, bank_vz, bank_count
         counts[r, c] = 0
     inv_nu_star = 1.0 / nu_star
     thermal = thermal_groups[0].shape[0] > 0  # T > 0: collisions sampled at the relative speed (thermal_trial)
-    tx = 0.0  # the target velocity of the current trial event (thermal only)
-    ty = 0.0
-    tz = 0.0
     action_args = (loss_eV, electron_fraction, target_fraction, thermal_speed, scatter, sharing, w_eV,
                    penning_probability, penning_energy_eV)
     top_energy = 0.0
@@ -203,23 +198,13 @@ def _pass_replica(r, z, vx, vy, vz, count, bank_vx, bank_vy, bank_vz, bank_count
             counts[r, COUNT_EVENTS] += 1
             u, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
             level = u * nu_star
-            if thermal:  # a Maxwellian target drawn for this event; frequencies at the relative energy
-                k, tx, ty, tz, collision_energy, above, s0, s1, s2, s3 = thermal_trial(
-                    level, ux, uy, uz, int(e_cell), inv_cell_eV, nu_cumulative, thermal_groups, s0, s1, s2, s3)
-                counts[r, COUNT_ABOVE_BOUND] += above
-                if k < 0:
-                    continue  # null collision
-            else:  # cold gas: targets at rest
-                c = int(e_cell)
-                f = e_cell - c
-                low = nu_total[c]
-                nu = low + f * (nu_total[c + 1] - low)
-                if nu > nu_star:
-                    counts[r, COUNT_ABOVE_BOUND] += 1
-                if level >= nu:
-                    continue  # null collision
-                k = select_process(level, c, f, nu_cumulative, n_proc)
-                collision_energy = energy
+            # T > 0: a Maxwellian target drawn for this event, frequencies at the relative energy (trial_event)
+            k, tx, ty, tz, collision_energy, above, s0, s1, s2, s3 = trial_event(
+                level, energy, e_cell, ux, uy, uz, inv_cell_eV, nu_star, nu_total, nu_cumulative, thermal_groups,
+                s0, s1, s2, s3)
+            counts[r, COUNT_ABOVE_BOUND] += above
+            if k < 0:
+                continue  # null collision
             if collision_energy < loss_eV[k]:
                 continue  # below the threshold inside its grid cell: rejected like a null event
             counts[r, COUNT_REAL] += 1
@@ -236,12 +221,8 @@ def _pass_replica(r, z, vx, vy, vz, count, bank_vx, bank_vy, bank_vz, bank_count
             if kind != ACTION_ELASTIC and kind != ACTION_EXCITATION and kind != ACTION_IONIZATION:
                 status = 3
                 break
-            if thermal:
-                ux, uy, uz, child, wx, wy, wz, s0, s1, s2, s3 = scatter_moving_target(
-                    kind, k, ux, uy, uz, tx, ty, tz, collision_energy, action_args, s0, s1, s2, s3)
-            else:
-                ux, uy, uz, child, wx, wy, wz, s0, s1, s2, s3 = scatter_electron(kind, k, ux, uy, uz, energy,
-                                                                                action_args, s0, s1, s2, s3)
+            ux, uy, uz, child, wx, wy, wz, s0, s1, s2, s3 = collide(kind, k, ux, uy, uz, tx, ty, tz, collision_energy,
+                                                                   thermal, action_args, s0, s1, s2, s3)
             if child != CHILD_NONE:
                 if n >= capacity:
                     status = 2

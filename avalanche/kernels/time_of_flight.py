@@ -52,11 +52,9 @@ from .collisions import (
     SUM_ZVY,
     SUM_ZVZ,
     ENERGY_PER_SPEED2_eV,
+    collide,
     next_uniform,
-    scatter_electron,
-    scatter_moving_target,
-    select_process,
-    thermal_trial,
+    trial_event,
 )
 from .flight import (
     field_flight,
@@ -158,9 +156,6 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
     status = 0  # 0: fine, 1: above the energy grid, 2: particle store full
     inv_nu_star = 1.0 / nu_star
     thermal = thermal_groups[0].shape[0] > 0  # T > 0: collisions sampled at the relative speed (thermal_trial)
-    tx = 0.0  # the target velocity of the current trial event (thermal only)
-    ty = 0.0
-    tz = 0.0
     action_args = (loss_eV, electron_fraction, target_fraction, thermal_speed, scatter, sharing, w_eV,
                    penning_probability, penning_energy_eV)
     n = count[r]
@@ -280,23 +275,13 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
                 eedf_overflow += 1
             u, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
             level = u * nu_star
-            if thermal:  # a Maxwellian target drawn for this event; frequencies at the relative energy
-                k, tx, ty, tz, collision_energy, above, s0, s1, s2, s3 = thermal_trial(
-                    level, ux, uy, uz, int(e_cell), inv_cell_eV, nu_cumulative, thermal_groups, s0, s1, s2, s3)
-                above_bound += above
-                if k < 0:
-                    continue  # null collision
-            else:  # cold gas: targets at rest
-                c = int(e_cell)
-                f = e_cell - c
-                low = nu_total[c]
-                nu = low + f * (nu_total[c + 1] - low)
-                if nu > nu_star:
-                    above_bound += 1
-                if level >= nu:
-                    continue  # null collision
-                k = select_process(level, c, f, nu_cumulative, n_proc)
-                collision_energy = energy
+            # T > 0: a Maxwellian target drawn for this event, frequencies at the relative energy (trial_event)
+            k, tx, ty, tz, collision_energy, above, s0, s1, s2, s3 = trial_event(
+                level, energy, e_cell, ux, uy, uz, inv_cell_eV, nu_star, nu_total, nu_cumulative, thermal_groups,
+                s0, s1, s2, s3)
+            above_bound += above
+            if k < 0:
+                continue  # null collision
             if collision_energy < loss_eV[k]:
                 continue  # inside the threshold's grid cell but below the threshold: rejected like a null event
             real += 1
@@ -312,12 +297,8 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
                 if ac:
                     bin_counts[pb, PHASE_REMOVED] += 1
                 break
-            if thermal:
-                ux, uy, uz, child, wx, wy, wz, s0, s1, s2, s3 = scatter_moving_target(
-                    kind, k, ux, uy, uz, tx, ty, tz, collision_energy, action_args, s0, s1, s2, s3)
-            else:
-                ux, uy, uz, child, wx, wy, wz, s0, s1, s2, s3 = scatter_electron(kind, k, ux, uy, uz, energy,
-                                                                                action_args, s0, s1, s2, s3)
+            ux, uy, uz, child, wx, wy, wz, s0, s1, s2, s3 = collide(kind, k, ux, uy, uz, tx, ty, tz, collision_energy,
+                                                                   thermal, action_args, s0, s1, s2, s3)
             if child != CHILD_NONE:
                 if n >= capacity:
                     status = 2
