@@ -1,4 +1,4 @@
-"""Build the shipped N2, O2, CO2, H2O and Ar@phelps cross-section files from published data.
+"""Build the shipped N2, O2, CO2, H2O, Ar@phelps and Ar@hayashi cross-section files from published data.
 
 A build-time tool, not part of the package: it reads the tables of the data package ``elmolcs`` 0.0.3
 (GPL-3.0-or-later; ``pip install ".[build-data]"``) through that package's own table reader
@@ -57,6 +57,9 @@ RAPP_AR = RAPP + " (argon, as taken by Yamabe, Buckman and Phelps 1983)"
 OPAL = ("C. B. Opal, W. K. Peterson and E. C. Beaty (1971) J. Chem. Phys. 55, 4100, doi:10.1063/1.1676707: "
         "measurements of secondary-electron spectra (energy-sharing parameter w, as tabulated in the carrier's "
         "elmolcs.constants.Constants.ION_FIT)")
+HAYASHI_AR = ("M. Hayashi (2003) Bibliography of electron and photon cross sections with atoms and molecules "
+              "published in the 20th century: argon, report NIFS-DATA-72 (National Institute for Fusion Science, "
+              "Toki): the Ar set (momentum transfer as corrected to fig. 1 of that report)")
 DOI_NOTE = "DOIs were written from memory and checked against nothing but the citation in the carrier's block headers."
 
 
@@ -214,9 +217,25 @@ RECIPES = {
             ("IONIZATION", "Ar -> Ar^+", {"kind": "ionization", "label": "total ionization", "source": RAPP_AR}),
         ],
     },
+    "Ar@hayashi": {
+        "file": "Ar/others/Cross section (hayashi).e-Ar", "set": "hayashi",
+        "species": {"name": "Ar", "formula": "Ar", "mass_amu": 39.948, "ionization_energy_eV": 15.7596,
+                    "description": "Argon, the set of Hayashi (2003): 25 resolved excited levels"},
+        "sources": [HAYASHI_AR],
+        "notes": ("Elastic momentum transfer, 25 excitations of resolved levels (4s, 4p, 3d, 4d, 6p) and total "
+                  "ionization, as tabulated. Ionization energy in the header: NIST Atomic Spectra Database "
+                  "15.7596 eV (from memory); the set's ionization threshold is 15.76 eV."),
+        "blocks": [
+            ("ELASTIC", "Ar", {"kind": "elastic", "label": "momentum transfer"}),
+            ("EXCITATION", "*", {"kind": "excitation", "level_type": "electronic", "initial_state": "3p6 1S0"}),
+            ("IONIZATION", "Ar -> Ar^+", {"kind": "ionization", "label": "total ionization"}),
+        ],
+    },
 }
-OUTPUT_NAME = {"N2": "N2.toml", "O2": "O2.toml", "CO2": "CO2.toml", "H2O": "H2O.toml", "Ar@phelps": "Ar@phelps.toml"}
+OUTPUT_NAME = {"N2": "N2.toml", "O2": "O2.toml", "CO2": "CO2.toml", "H2O": "H2O.toml", "Ar@phelps": "Ar@phelps.toml",
+               "Ar@hayashi": "Ar@hayashi.toml"}
 OPAL_SPECIES = ("N2", "O2", "Ar", "H2O", "CO2")
+"""Species whose ionization gets the Opal-Peterson-Beaty w of the carrier's constants table."""
 KEYWORDS = ("EFFECTIVE", "ELASTIC", "EXCITATION", "IONIZATION", "ATTACHMENT")
 
 
@@ -275,7 +294,18 @@ def build(name: str) -> str:
     tables = read_blocks(recipe["file"])
     carrier = CARRIER.format(file=recipe["file"])
     processes = []
+    blocks = []
     for keyword, reaction, entry in recipe["blocks"]:
+        if reaction != "*":
+            blocks.append((keyword, reaction, entry))
+            continue
+        # every (not skipped) block of this keyword, labelled by its final state
+        for t in tables:
+            header = t.attrs["header"]
+            if _keyword(header) == keyword and "@skip" not in header:
+                state = _reaction(header, keyword).split("->", 1)[1].strip()
+                blocks.append((keyword, _reaction(header, keyword), dict(entry, label=state, final_state=state)))
+    for keyword, reaction, entry in blocks:
         entry = dict(entry)
         table = _find(tables, keyword, reaction, entry.pop("comment", None), f"{name} ({recipe['file']})")
         header = table.attrs["header"]

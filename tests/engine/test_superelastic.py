@@ -85,3 +85,13 @@ def test_three_body_partner_is_named():
     assert factors["*"] == pytest.approx(density / 1e6)             # the whole gas
     assert factors["B"] == pytest.approx(0.75 * density / 1e6)      # a named species of the mixture
     assert factors["C"] == 0.0                                      # a partner absent from the mixture
+
+
+def test_vibrationally_hot_nitrogen_heats_the_electrons():
+    # Superelastic collisions with vibrationally excited N2 raise the mean energy at low E/N (common practice:
+    # electrons in a vibrationally excited nitrogen plasma gain energy from the vibrations). Same seed, 30 Td, where
+    # the 2Pi_g resonance of v=0-1 lies inside the EEDF.
+    budget = dict(seed=5, electrons=1024, precision=0.01, max_events=4e6)
+    cold = swarm(Mixture("N2", pressure_Pa=1000.0), 30.0, **budget).mean_energy_eV
+    hot = swarm(Mixture("N2", pressure_Pa=1000.0, vibrational_temperature_K=3000.0), 30.0, **budget).mean_energy_eV
+    assert hot.value - cold.value > 3 * math.hypot(hot.stderr, cold.stderr)
