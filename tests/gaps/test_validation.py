@@ -108,6 +108,24 @@ def test_furry_chi2_rejects_a_narrow_distribution():
     assert stats.chi2.sf(chi2, dof) > 0.01
 
 
+@pytest.mark.parametrize("geometry, start", [
+    (av.ConcentricSpheres(100e-6, 2e-3), (0.0, 0.0, 250e-6)),
+    (av.PointPlane(50e-6, 2e-3), (0.0, 0.0, 1.85e-3)),
+])
+def test_induced_charge_balance_in_spheres_and_point_plane(geometry, start):
+    # Shockley–Ramo balance as below, for the spherical field and the prolate-spheroidal point–plane field
+    mixture = lucas_saelee()
+    if isinstance(geometry, av.ConcentricSpheres):
+        V = 220 * TOWNSEND_V_m2 * N_m3 * 100e-6 * (1 - 100e-6 / 2e-3)
+    else:
+        V = 220 * TOWNSEND_V_m2 * N_m3 / geometry.apex_field_V_m(1.0)
+    r = av.gap(geometry, mixture, V, primaries=30, seed=2, sharing="uniform", local_field=False,
+               start_position_m=start)
+    balance = r.charge_balance
+    assert r.mean_collected["driven"].value > 1.5
+    assert balance["induced_driven_C"] == pytest.approx(balance["expected_driven_C"], rel=1e-3)
+
+
 def test_induced_charge_balance_in_the_coaxial_gap():
     # Shockley W (1938) J. Appl. Phys. 9 635; Ramo S (1939) Proc. IRE 27 584: the charge induced on an electrode by
     # a moving charge q is −q φ_w, so ∫ I dt over the run equals e Σ (φ_w(end) − φ_w(start)) over the electrons
