@@ -27,8 +27,8 @@ def main(out: Path) -> None:
     out.mkdir(parents=True, exist_ok=True)
     tube = avalanche.Coaxial(wire_radius_m=12.5e-6, tube_radius_m=5e-3)  # 25 µm diameter wire, 1 cm tube
     runs = []
-    for volts in (700.0, 800.0, 900.0):
-        result = avalanche.gap(tube, "Ar", volts, primaries=100, seed=1, start_position_m=(200e-6, 0.0, 0.0),
+    for volts in (500.0, 550.0, 600.0):
+        result = avalanche.gap(tube, "Ar", volts, primaries=100, seed=1, start_position_m=(60e-6, 0.0, 0.0),
                                population_cap=2000)
         path = write_gap(out / f"wire_{volts:.0f}V.h5", result)
         runs.append(read_gap(path))

@@ -79,12 +79,13 @@ def trace_field_line(geometry, voltage_V: float, start_m, max_points: int = 200_
 
 
 def alpha_table_from_swarm(mixture, field_range_Td: tuple[float, float], *, seed=0, precision: float = 0.03,
-                           sharing: str = "opb", scattering: str = "isotropic") -> dict:
+                           sharing: str = "opb", scattering: str = "isotropic", max_events: int = 50_000_000) -> dict:
     """α/N and η/N [m²] from :func:`avalanche.swarm` on E/N points covering ``field_range_Td``.
 
     Points go down from 1.02 × the top by factors of :data:`SPACING` until below the bottom, or until both α/N
-    and η/N are below 1e-5 of the largest α/N (the coefficients are then negligible for the gain), at most
-    :data:`MAX_POINTS`.
+    and η/N are below 1e-3 of the largest α/N (the coefficients are then negligible for the gain), at most
+    :data:`MAX_POINTS`. Each point stops at ``precision`` or after ``max_events`` trial events (where α/N is tiny
+    its relative precision is poor, and its weight in the gain small).
     """
     from ..engine.time_of_flight import swarm
 
@@ -96,11 +97,11 @@ def alpha_table_from_swarm(mixture, field_range_Td: tuple[float, float], *, seed
         with warnings.catch_warnings():
             warnings.simplefilter("ignore", PhysicsWarning)
             r = swarm(mixture, en, seed=(*np.atleast_1d(seed).tolist(), 7919, index), precision=precision,
-                      sharing=sharing, scattering=scattering)
+                      sharing=sharing, scattering=scattering, max_events=max_events)
         a, h = max(r.alpha_N.value, 0.0), max(r.eta_N.value, 0.0)
         rows.append((en, a, h))
         top_alpha = max(top_alpha, a)
-        if en < low or (top_alpha > 0 and max(a, h) < 1e-5 * top_alpha):
+        if en < low or (top_alpha > 0 and max(a, h) < 1e-3 * top_alpha):
             break
         en /= SPACING
     rows.sort()
