@@ -65,6 +65,7 @@ TARGETS = {
     "sweep_speedup": (">=", 1.8, ">= 1.8"),
     "dask_overhead": ("<", 0.05, "< 5 %"),
     "runfile_validation": ("<", 1.0, "< 1 s"),
+    "gap_ratio": (">=", 0.5, ">= 0.5"),
 }
 
 
@@ -441,6 +442,48 @@ def figure_townsend(state: dict, budget: Budget) -> list[Row]:
     return rows
 
 
+GAP_FIELD_Td = 300.0
+GAP_MIN_m = 4e-5  # argon at 1 atm, 300 Td (alpha about 1.2e5 /m): about 5 e-folds of growth over this gap
+
+
+def figure_gap(state: dict, budget: Budget) -> list[Row]:
+    """Avalanches in a gap: events per core-second of :func:`avalanche.gap` (parallel plates, argon, 300 Td, one
+    thread, Python outer loop included; an untimed first run compiles) and the ratio to the uniform-field
+    time-of-flight kernel; and the peak electron store per avalanche (memory O(electrons alive))."""
+    if importlib.util.find_spec("avalanche.gaps") is None:
+        raise NotAvailable("avalanche.gap (avalanches in electrode gaps)")
+    import numba
+
+    import avalanche as av
+
+    mixture = argon_mixture()
+    d = GAP_MIN_m
+    voltage = GAP_FIELD_Td * 1e-21 * mixture.number_density_m3 * d
+    log("avalanches in a gap: argon, 300 Td ...")
+    previous = numba.get_num_threads()
+    numba.set_num_threads(1)
+    try:
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore")
+            av.gap(av.ParallelPlates(d), mixture, voltage, primaries=4, seed=1, local_field=False)
+            primaries = max(8, int(budget.argon_events / 1e6))
+            result = av.gap(av.ParallelPlates(d), mixture, voltage, primaries=primaries, seed=2, local_field=False,
+                            population_cap=2000)
+    finally:
+        numba.set_num_threads(previous)
+    rate = result.events / result.cpu_seconds
+    rows = [Row("gap events/s per core, argon 300 Td plates", f"{rate:.3g}"),
+            Row("  (its mean gain, steps per event)",
+                f"{estimate_text(result.mean_gain)}, {result.steps / max(result.events, 1):.3g}")]
+    if "argon_rate" in state:
+        target, verdict = judge("gap_ratio", rate / state["argon_rate"])
+        rows.append(Row("gap / time-of-flight events per second, argon 300 Td", f"{rate / state['argon_rate']:.3g}",
+                        target, verdict))
+    rows.append(Row("  gap memory: electron store per avalanche", f"<= {4 * 2000} electrons (4 x population_cap)",
+                    "O(alive)", ""))
+    return rows
+
+
 SWEEP_POINT_SECONDS = 10.0
 SWEEP_RUN_FILE = """\
 # The 8-point argon sweep of benchmarks/run.py (written into a temporary folder, never into the tree).
@@ -573,6 +616,7 @@ FIGURES: list[tuple[str, Callable[[dict, Budget], list[Row]]]] = [
     ("magnetic / field-free kernel", figure_magnetic),
     ("air / argon", figure_air),
     ("steady-state Townsend, argon 300 Td", figure_townsend),
+    ("avalanches in a gap, argon 300 Td", figure_gap),
     ("8-point sweep, 2 workers / 1", figure_sweep),
     ("Dask overhead per point", figure_dask),
     ("run-file validation, 1e6 grid points", figure_runfile),

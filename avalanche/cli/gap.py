@@ -24,6 +24,8 @@ def _configure(p) -> None:
     p.add_argument("--primaries", type=int, default=1000, help="primary electrons (1000)")
     p.add_argument("--seed", type=int, default=0, help="master random seed (0)")
     p.add_argument("--frequency", type=float, default=None, metavar="HZ", help="AC drive frequency [Hz]")
+    p.add_argument("--start", default=None, metavar="X,Y,Z",
+                   help="start point of the primaries [m] (default: on the electrode the electrons leave)")
     p.add_argument("--start-time", type=float, default=None, metavar="S", help="release time of the primaries [s]")
     p.add_argument("--limit", type=float, default=None, metavar="N",
                    help="stop an avalanche at N electrons (streamer criterion; default 1e8)")
@@ -63,6 +65,13 @@ def _gap(args) -> int:
 
     options = {"frequency_Hz": args.frequency, "start_time_s": args.start_time, "electron_limit": args.limit,
                "sharing": args.sharing}
+    if args.start:
+        try:
+            options["start_position_m"] = tuple(float(v) for v in args.start.split(","))
+        except ValueError:
+            from ..errors import ConfigError
+
+            raise ConfigError(f"--start {args.start!r}: give three numbers x,y,z in metres, e.g. 60e-6,0,0") from None
     options = {k: v for k, v in options.items() if v is not None}
     if args.no_local_field:
         options["local_field"] = False

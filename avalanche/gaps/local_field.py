@@ -79,12 +79,13 @@ def trace_field_line(geometry, voltage_V: float, start_m, max_points: int = 200_
 
 
 def alpha_table_from_swarm(mixture, field_range_Td: tuple[float, float], *, seed=0, precision: float = 0.03,
-                           sharing: str = "opb", scattering: str = "isotropic") -> dict:
+                           sharing: str = "opb", scattering: str = "isotropic", max_events: int = 50_000_000) -> dict:
     """α/N and η/N [m²] from :func:`avalanche.swarm` on E/N points covering ``field_range_Td``.
 
     Points go down from 1.02 × the top by factors of :data:`SPACING` until below the bottom, or until both α/N
-    and η/N are below 1e-5 of the largest α/N (the coefficients are then negligible for the gain), at most
-    :data:`MAX_POINTS`.
+    and η/N are below 1e-3 of the largest α/N (the coefficients are then negligible for the gain), at most
+    :data:`MAX_POINTS`. Each point stops at ``precision`` or after ``max_events`` trial events (where α/N is tiny
+    its relative precision is poor, and its weight in the gain small).
     """
     from ..engine.time_of_flight import swarm
 
@@ -96,17 +97,33 @@ def alpha_table_from_swarm(mixture, field_range_Td: tuple[float, float], *, seed
         with warnings.catch_warnings():
             warnings.simplefilter("ignore", PhysicsWarning)
             r = swarm(mixture, en, seed=(*np.atleast_1d(seed).tolist(), 7919, index), precision=precision,
-                      sharing=sharing, scattering=scattering)
-        a, h = max(r.alpha_N.value, 0.0), max(r.eta_N.value, 0.0)
+                      sharing=sharing, scattering=scattering, max_events=max_events)
+        a, h = _finite_coefficient(r.alpha_N, r.alpha_N_simple), _finite_coefficient(r.eta_N, r.eta_N_simple)
         rows.append((en, a, h))
         top_alpha = max(top_alpha, a)
-        if en < low or (top_alpha > 0 and max(a, h) < 1e-5 * top_alpha):
+        if en < low or (top_alpha > 0 and max(a, h) < 1e-3 * top_alpha):
             break
         en /= SPACING
     rows.sort()
     table = np.array(rows)
+    undefined = table[~np.all(np.isfinite(table), axis=1), 0]
+    if undefined.size:
+        warnings.warn(f"local-field gain: avalanche.swarm gave no alpha/eta estimate at E/N = "
+                      f"{', '.join(f'{v:.4g}' for v in undefined)} Td within max_events = {max_events:g}; those "
+                      "points are left out of the interpolation (raise alpha_precision's budget or give alpha_table)",
+                      PhysicsWarning, stacklevel=3)
     return {"reduced_field_Td": table[:, 0], "alpha_N": table[:, 1], "eta_N": table[:, 2],
             "source": f"avalanche.swarm at {len(rows)} E/N points (precision {precision})"}
+
+
+def _finite_coefficient(value, simple) -> float:
+    """A coefficient ≥ 0: the swarm's spatial estimate, else its simple form ν/(N W) (the spatial one is NaN where
+    W² < 4 D_L ν), else NaN (the run gave no estimate: the point is left out of the interpolation, with a
+    warning)."""
+    for estimate in (value, simple):
+        if math.isfinite(estimate.value):
+            return max(float(estimate.value), 0.0)
+    return math.nan
 
 
 def check_alpha_table(table) -> dict:
@@ -134,6 +151,8 @@ def _loglog(x, xs, ys):
     """Interpolate ys(xs) linearly in log–log where ys > 0 (0 where the neighbouring nodes are 0); beyond the
     ends, the end segments are extended (0 below a zero end)."""
     x = np.asarray(x, dtype=float)
+    finite = np.isfinite(ys)
+    xs, ys = xs[finite], ys[finite]
     positive = ys > 0
     if positive.sum() < 2:
         return np.interp(x, xs, ys)

@@ -27,3 +27,5 @@ def test_gap_text_and_errors(capsys):
     assert "mean gain" in text and "Caution" in text and "space charge" in text
     assert main(["gap", "--geometry", "coaxial", "--inner", "1e-5", "--voltage", "500"]) == 1
     assert "needs --outer" in capsys.readouterr().err
+    assert main(["gap", "--geometry", "plates", "--gap", "1e-4", "--voltage", "300", "--start", "0,0"]) == 1
+    assert "start_position_m" in capsys.readouterr().err
