@@ -124,6 +124,8 @@ ESTIMATES: tuple[tuple[str, str, str], ...] = (
     ("eta_N_simple", "m2", "nu_att / (N W_bulk)"),
     ("ionization_rate_coefficient", "m3/s", "total ionization frequency / N (direct + Penning)"),
     ("attachment_rate_coefficient", "m3/s", "total attachment frequency / N"),
+    ("ionization_rate_coefficient_counted", "m3/s", "ionization frequency / N from counted events"),
+    ("attachment_rate_coefficient_counted", "m3/s", "attachment frequency / N from counted events"),
     ("excitation_rate_coefficient", "m3/s", "total excitation frequency / N"),
     ("penning_ionization_rate_coefficient", "m3/s", "Penning ionization frequency / N"),
     ("penning_fraction", "1", "Penning share of the ionization frequency"),

@@ -231,7 +231,7 @@ def ensure_compiled() -> None:
                     np.zeros(1), np.full(1, -1, dtype=np.int64), 0.0, *(np.zeros(0),) * 4,
                     np.zeros((1, 0, K.N_PHASE_SUMS)),
                     np.zeros((1, 0, K.N_PHASE_COUNTS), dtype=np.int64), np.zeros((1, 0, 1), dtype=np.int64),
-                    COLD_GAS_GROUPS, np.zeros(3))
+                    COLD_GAS_GROUPS, np.zeros(3), np.zeros((2, 2)), np.zeros(2))
 
 
 class _Run:
@@ -286,7 +286,8 @@ class _Run:
                             o.sums, o.counts, o.hist, o.process_counts, o.extrapolated, t.penning_probability,
                             t.penning_energy_eV, t.penning_slot, self.period_s, *self.wave, self.phase_out.sums,
                             self.phase_out.counts,
-                            self.phase_out.process, g.thermal_groups, self.magnetic_kernel)
+                            self.phase_out.process, g.thermal_groups, self.magnetic_kernel, g.expected_nu,
+                            g.expected_floor_eV)
             self.events += int(o.counts[:, K.COUNT_EVENTS].sum())
             self.anomalies["frequency_above_bound"] += int(o.counts[:, K.COUNT_ABOVE_BOUND].sum())
             above = bool(o.counts[:, K.COUNT_ABOVE_GRID].any())

@@ -224,7 +224,9 @@ def read_result(group: h5py.Group) -> SwarmResult:
         time_series = {name: ds[()] for name, ds in group["time_series"].items()}
         tallies = None
         if "tallies" in group:
-            tallies = SwarmTallies({name: group["tallies"][name][()] for name in FIELDS}
+            stored = group["tallies"]  # files from before the expected-value tallies lack them: NaN
+            tallies = SwarmTallies({name: stored[name][()] if name in stored
+                                    else np.full(stored["events"].shape, np.nan) for name in FIELDS}
                                    | {name: group["tallies"][name][()] for name in MAGNETIC_FIELDS
                                       if name in group["tallies"]})
         inputs = json.loads(attrs["inputs_json"])
