@@ -10,8 +10,10 @@ ramp model at 12 Td and argon at 300 Td; the same figure for a plain C null-coll
 compiled here with ``gcc -O2``) and the ratio of the two; the speed-up from 1 to 2 numba threads; the peak memory
 of a run with 10⁶ electrons; and, once the features exist, the AC/DC kernel ratio, air/argon ratio, the 8-point
 sweep speed-up with 2 local workers, the Dask overhead per point, and the steady-state Townsend events per
-second (argon, 300 Td) with their ratio to the time-of-flight figure. A figure whose feature does not exist yet is
-printed as "not available yet: <feature>"; nothing is ever estimated or filled in.
+second (argon, 300 Td) with their ratio to the time-of-flight figure; last, the CPU seconds on one core to reach
+1 % on every reported nonzero quantity (argon 1 and 100 Td, dry air 120 Td, N2 100 Td) beside the 10 s target. A
+figure whose feature does not exist yet is printed as "not available yet: <feature>"; nothing is ever estimated
+or filled in.
 
 Timing needs an otherwise idle machine: other processes on the same cores lower every figure (the load average is
 printed in the header).
@@ -66,6 +68,7 @@ TARGETS = {
     "dask_overhead": ("<", 0.05, "< 5 %"),
     "runfile_validation": ("<", 1.0, "< 1 s"),
     "gap_ratio": (">=", 0.5, ">= 0.5"),
+    "converge_seconds": ("<=", 10.0, "<= 10 s"),
 }
 
 
@@ -606,6 +609,54 @@ def figure_runfile(state: dict, budget: Budget) -> list[Row]:
     return [Row("run-file validation, 1e6 grid points [s]", f"{min(seconds):.3g}", target, verdict)]
 
 
+CONVERGENCE_POINTS = (("argon", 1.0), ("argon", 100.0), ("air", 120.0), ("N2", 100.0))
+"""(gas, E/N [Td]) of the time-to-converge figure (issue 13): CPU seconds on one core until every reported nonzero
+quantity (the default set of :mod:`avalanche.engine.stopping`) is at 1 %."""
+CONVERGENCE_PRECISION = 0.01
+
+
+def _convergence_mixture(gas: str):
+    if gas == "argon":
+        return argon_mixture()
+    if gas == "air":
+        return air_mixture()
+    from avalanche import AvalancheError, Mixture
+
+    try:
+        return Mixture(gas, temperature_K=300.0)
+    except AvalancheError:
+        raise NotAvailable(f"{gas} cross sections (the set does not load)") from None
+
+
+def figure_convergence(state: dict, budget: Budget) -> list[Row]:
+    """CPU seconds on one core to reach 1 % on every reported nonzero quantity, each point beside the 10 s target
+    (the ratio is the measured time over the target); left out of --quick (minutes at full budgets)."""
+    swarm = engine_swarm()
+    if not budget.run_sweeps:
+        raise Skipped("full mode only (each point runs until 1 % or its default budget)")
+    precision = CONVERGENCE_PRECISION
+    rows = []
+    for gas, field_Td in CONVERGENCE_POINTS:
+        label = f"CPU s to {100 * precision:g} % on every quantity, {gas} {field_Td:g} Td"
+        try:
+            mixture = _convergence_mixture(gas)
+        except NotAvailable as exc:
+            rows.append(Row(label, f"not available yet: {exc}"))
+            continue
+        log(f"engine: {gas} at {field_Td:g} Td to {precision:g} ...")
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore")
+            swarm(mixture, field_Td, seed=1, precision=0.5, max_events=int(budget.warmup_events),
+                  **_thread_arguments(swarm, 1))  # compile / load the kernels outside the timing
+            result = swarm(mixture, field_Td, seed=1, precision=precision, **_thread_arguments(swarm, 1))
+        target, verdict = judge("converge_seconds", result.cpu_seconds)
+        how = (f"stop: {result.stop_reason}, limited by {getattr(result, 'stopped_by', '?')}, "
+               f"{result.events:.3g} events")
+        rows.append(Row(label, f"{result.cpu_seconds:.3g} (ratio {result.cpu_seconds / 10.0:.2g}; {how})",
+                        target, verdict if result.stop_reason == "precision" else "MISS"))
+    return rows
+
+
 FIGURES: list[tuple[str, Callable[[dict, Budget], list[Row]]]] = [
     ("avalanche events/s per core, Reid ramp 12 Td", figure_reid),
     ("avalanche events/s per core, argon 300 Td", figure_argon),
@@ -620,6 +671,7 @@ FIGURES: list[tuple[str, Callable[[dict, Budget], list[Row]]]] = [
     ("8-point sweep, 2 workers / 1", figure_sweep),
     ("Dask overhead per point", figure_dask),
     ("run-file validation, 1e6 grid points", figure_runfile),
+    ("CPU seconds to converge", figure_convergence),
 ]
 
 

@@ -127,6 +127,8 @@ class SwarmTable:
     not_converged : list of str
         The points marked not converged ("E/N x Td: reason"); they are kept, and :func:`fluid_table` writes this
         list into the table's header (``not_converged``).
+    converged : array_like of bool, optional
+        Per point, whether it converged (default: all); :meth:`coefficient_table` leaves the others out.
 
     Raises
     ------
@@ -148,6 +150,7 @@ class SwarmTable:
     point_index: np.ndarray | None = None
     notes: list[str] = field(default_factory=list)
     not_converged: list[str] = field(default_factory=list)
+    converged: np.ndarray | None = None
 
     def __post_init__(self):
         owner = f"SwarmTable({self.source or self.gas_label or 'data'})"
@@ -172,6 +175,11 @@ class SwarmTable:
             quantities[str(name)] = (values, errors)
         if self.point_index is not None:
             self.point_index = np.asarray(self.point_index, dtype=np.int64).reshape(-1)[order]
+        converged = np.ones(fields.size, dtype=bool) if self.converged is None else \
+            np.asarray(self.converged, dtype=bool).reshape(-1)
+        if converged.size != fields.size:
+            raise ConfigError(f"{owner}: converged has {converged.size} values for {fields.size} reduced fields")
+        self.converged = converged[order]
         self.reduced_field_Td = fields
         self.quantities = quantities
         self.units = {str(k): str(v) for k, v in dict(self.units).items()}
@@ -213,8 +221,9 @@ class SwarmTable:
         Notes
         -----
         Points where α/N or η/N is not finite (failed points, or a diffusion correction without a real solution)
-        are left out (see :meth:`undefined_fields_Td`); η/N is zero when the table has none (a gas without
-        attachment).
+        are left out (see :meth:`undefined_fields_Td`), and so are points marked not converged (:attr:`converged`),
+        with a :class:`~avalanche.errors.PhysicsWarning` naming them; η/N is zero when the table has none (a gas
+        without attachment).
 
         Raises
         ------
@@ -224,6 +233,13 @@ class SwarmTable:
         alpha_values, alpha_err = self.get(alpha)
         eta_values, eta_err = self.quantities.get(eta, (np.zeros_like(alpha_values), np.zeros_like(alpha_values)))
         keep = np.isfinite(alpha_values) & np.isfinite(eta_values)
+        dropped = keep & ~self.converged
+        if np.any(dropped):
+            warnings.warn(f"{self.source or 'swarm table'}: point(s) at "
+                          f"{', '.join(f'{x:g}' for x in self.reduced_field_Td[dropped])} Td are not converged and "
+                          f"are left out of the {alpha}, {eta} table (raise the points' max_events)", PhysicsWarning,
+                          stacklevel=2)
+            keep &= self.converged
         if np.count_nonzero(keep) < 2:
             raise ConfigError(f"{self.source or 'swarm table'}: {alpha} is finite at {np.count_nonzero(keep)} "
                               "reduced field(s); a breakdown curve needs at least two — add points to the sweep")
@@ -250,7 +266,8 @@ class SwarmTable:
                           gas_label=self.gas_label, temperature_K=self.temperature_K,
                           number_density_m3=self.number_density_m3, composition=self.composition,
                           source=self.source, units=self.units, parameters=self.parameters,
-                          checksums=self.checksums)
+                          checksums=self.checksums, not_converged=self.not_converged + other.not_converged,
+                          converged=np.concatenate((self.converged, other.converged)))
 
     def build_mixture(self):
         """The :class:`~avalanche.gas.mixture.Mixture` of the runs (composition, model-gas parameters, T, N).
@@ -304,7 +321,10 @@ class SwarmTable:
                    gas_label=str(results[0].inputs.get("label", "")), temperature_K=described.get("temperature_K"),
                    number_density_m3=described.get("number_density_m3"),
                    composition=dict(described.get("composition", {})) or None, source=source, eedf=eedf,
-                   checksums=dict(described.get("checksums", {})))
+                   checksums=dict(described.get("checksums", {})),
+                   not_converged=[f"E/N {r.reduced_field_Td:g} Td: {'; '.join(r.convergence_notes)}" for r in results
+                                  if not getattr(r, "converged", True)],
+                   converged=[bool(getattr(r, "converged", True)) for r in results])
 
     @classmethod
     def from_results(cls, results, mixture: str | int | None = None, frequency_Hz: float | None = None,
@@ -380,7 +400,8 @@ class SwarmTable:
                    composition=dict(spec.get("composition", {})) or None, source=source,
                    units=dict(results.units), parameters=dict(spec.get("parameters", {})),
                    checksums=dict(results.checksums), point_index=grid["index"][done], notes=notes,
-                   not_converged=unconverged)
+                   not_converged=unconverged,
+                   converged=grid["converged"][done] if "converged" in (grid.dtype.names or ()) else None)
 
 
 def _magnetic_rows(grid, rows, source: str, tesla, hx, angle) -> np.ndarray:

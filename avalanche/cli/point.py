@@ -129,7 +129,43 @@ def _swarm_configure(p) -> None:
                         "and tracks the others exactly")
     p.add_argument("--max-wall-seconds", type=float, default=None, metavar="S",
                    help="wall-clock limit of the run [s], always honoured (sampling starts and the run stops)")
+    p.add_argument("--quiet", action="store_true", help="no progress lines on stderr")
     output_arguments(p)
+
+
+PROGRESS_INTERVAL_S = 5.0
+"""Seconds between two progress lines of a single point."""
+
+
+def progress_printer(stream=None, interval_s: float = PROGRESS_INTERVAL_S):
+    """A callback for the engine's ``progress`` argument that prints, on ``stream`` (stderr), a notice while the
+    kernels load or compile, then at most every ``interval_s`` seconds the quantity that limits the run, its
+    relative error over its target and a rough time left."""
+    import sys
+    import time
+
+    stream = stream or sys.stderr
+    last = [-math.inf]
+
+    def show(state: dict) -> None:
+        if state.get("stage") == "compiling":
+            print("avalanche swarm: loading the numba kernels (the first run after an install compiles them, about "
+                  "a minute)...", file=stream, flush=True)
+            return
+        now = time.perf_counter()
+        if now - last[0] < interval_s:
+            return
+        last[0] = now
+        if state.get("stage") == "relaxing":
+            print(f"avalanche swarm: relaxing, {state['events']:.3g} of at most {state['max_events']:.3g} events",
+                  file=stream, flush=True)
+            return
+        ratio, eta = state["ratio_to_target"], state["eta_s"]
+        left = f", about {eta:.0f} s left" if math.isfinite(eta) else ""
+        print(f"avalanche swarm: {state['events']:.3g} events; limiting: {state['quantity'] or '-'} at "
+              f"{ratio:.3g} x its target precision{left}", file=stream, flush=True)
+
+    return show
 
 
 @command("swarm", "simulate one swarm point: transport, rate and Townsend coefficients with errors",
@@ -143,8 +179,9 @@ def _swarm(args) -> int:
                             max_wall_seconds=args.max_wall_seconds)
     mixture = mixture_from_args(args)
     magnetic = magnetic_selection(args)
+    progress = None if args.quiet or args.json else progress_printer()
     result = run_quietly(lambda: swarm(mixture, args.en, seed=args.seed, precision=args.precision, **options,
-                                       **magnetic), "swarm")
+                                       progress=progress, **magnetic), "swarm")
     report_point(args, result)
     return 0
 

@@ -19,7 +19,10 @@ averages of the swarm because the trial events are Poisson in time)
   unchanged and keeps the sums small.
 * rate coefficient of process k: k_k = C_k / (N_k ∫ n dt) [m³ s⁻¹], C_k its real collisions and N_k the density
   of its target species (per target molecule); totals are frequencies divided by the total density N.
-* ν_ion, ν_att: ionization and attachment frequencies per electron [s⁻¹]; ν_eff = ν_ion − ν_att. ν_ion counts
+* ν_ion, ν_att: ionization and attachment frequencies per electron [s⁻¹]; ν_eff = ν_ion − ν_att. The direct
+  parts are expected-value estimates, Σ ν_k(ε)/ν* over the trial events divided by ∫ n dt (unbiased because the
+  trial events are a Poisson process of rate ν* in time; Skullerud 1968, J. Phys. D 1 1567); the counted
+  estimates (collisions that happened / ∫ n dt) are kept as ``*_rate_coefficient_counted``. ν_ion counts
   direct ionization and Penning transfer (the "penning" pseudo-processes, :mod:`avalanche.gas.penning`):
   ν_ion = ν_direct + ν_Penning. penning_ionization_rate_coefficient = ν_Penning / N, penning_fraction =
   ν_Penning / ν_ion; the per-channel rate coefficient of a "penning" row is per receiver molecule,
@@ -152,8 +155,9 @@ def per_replica_quantities(t: SwarmTallies, ctx: EstimatorContext) -> dict[str, 
     ionization = counts[:, kinds == "ionization"].sum(axis=1) + penning
     attachment = counts[:, kinds == "attachment"].sum(axis=1)
     excitation = counts[:, kinds == "excitation"].sum(axis=1)
-    nu_ion = _ratio(ionization, exposure)
-    nu_att = _ratio(attachment, exposure)
+    # expected-value estimators (Σ ν(ε)/ν* over trial events, Skullerud 1968) for the direct part; Penning counted
+    nu_ion = _ratio(t["expected_ionizations"] + penning, exposure)
+    nu_att = _ratio(t["expected_attachments"], exposure)
     nu_eff = nu_ion - nu_att
     w_bulk = _ratio(t["z_mean_increment_m"], t["mature_time_s"])
     dl_bulk = 0.5 * _ratio(t["z_var_increment_m2"], t["mature_time_s"])
@@ -182,6 +186,8 @@ def per_replica_quantities(t: SwarmTallies, ctx: EstimatorContext) -> dict[str, 
         "eta_N_simple": _ratio(nu_att, N * w_bulk),
         "ionization_rate_coefficient": nu_ion / N,
         "attachment_rate_coefficient": nu_att / N,
+        "ionization_rate_coefficient_counted": _ratio(ionization, exposure) / N,
+        "attachment_rate_coefficient_counted": _ratio(attachment, exposure) / N,
         "excitation_rate_coefficient": _ratio(excitation, exposure) / N,
         "penning_ionization_rate_coefficient": _ratio(penning, exposure) / N,
         "penning_fraction": _ratio(penning, ionization),

@@ -124,6 +124,8 @@ ESTIMATES: tuple[tuple[str, str, str], ...] = (
     ("eta_N_simple", "m2", "nu_att / (N W_bulk)"),
     ("ionization_rate_coefficient", "m3/s", "total ionization frequency / N (direct + Penning)"),
     ("attachment_rate_coefficient", "m3/s", "total attachment frequency / N"),
+    ("ionization_rate_coefficient_counted", "m3/s", "ionization frequency / N from counted events"),
+    ("attachment_rate_coefficient_counted", "m3/s", "attachment frequency / N from counted events"),
     ("excitation_rate_coefficient", "m3/s", "total excitation frequency / N"),
     ("penning_ionization_rate_coefficient", "m3/s", "Penning ionization frequency / N"),
     ("penning_fraction", "1", "Penning share of the ionization frequency"),
@@ -185,6 +187,12 @@ class SwarmResult:
         :attr:`convergence_notes`. Shown on screen, in JSON, HDF5, sweep summaries and tables.
     convergence_notes : list of str
         Why the point is not converged (empty when it is).
+    stopped_by : str
+        The quantity furthest from its precision target at the end: the one that stopped the run (stop_reason
+        'precision') or limited it (budget spent); see :mod:`avalanche.engine.stopping`.
+    upper_bounds : dict of str to float
+        Quantities that stayed statistically zero, with an upper bound in their units (not chased by the stop
+        rule; their estimates stay in :attr:`estimates`).
     """
 
     reduced_field_Td: float
@@ -209,6 +217,8 @@ class SwarmResult:
     magnetic: dict | None = None
     converged: bool = True
     convergence_notes: list = field(default_factory=list)
+    stopped_by: str = ""
+    upper_bounds: dict = field(default_factory=dict)
 
     def __getattr__(self, name: str):
         estimates = self.__dict__.get("estimates")
@@ -295,6 +305,7 @@ class SwarmResult:
         out.update({"converged": bool(self.converged), "convergence_notes": list(self.convergence_notes),
                     "events": int(self.events), "cpu_seconds": float(self.cpu_seconds),
                     "wall_seconds": float(self.wall_seconds), "stop_reason": self.stop_reason,
+                    "stopped_by": self.stopped_by, "upper_bounds": _plain(self.upper_bounds),
                     "relaxation_time_s": float(self.relaxation_time_s), "sampled_time_s": float(self.sampled_time_s),
                     "extrapolated_fraction": float(self.extrapolated_fraction),
                     "anomalies": _plain(self.anomalies), "inputs": _plain(self.inputs),
@@ -327,8 +338,12 @@ class SwarmResult:
             rel_text = f"({100 * rel:.2g} %)" if math.isfinite(rel) and est.value != 0 else ""
             lines.append(f"  {desc:<{width}}  {est.value:>12.5g} ± {est.stderr:<9.2g} {units:<10} {rel_text}")
         lines.append(f"  events {self.events:.4g} (real + null), cpu {self.cpu_seconds:.3g} s, "
-                     f"wall {self.wall_seconds:.3g} s, stop: {self.stop_reason}, relaxation "
+                     f"wall {self.wall_seconds:.3g} s, stop: {self.stop_reason}"
+                     f"{f' ({self.stopped_by})' if self.stopped_by else ''}, relaxation "
                      f"{self.relaxation_time_s:.3g} s, sampled {self.sampled_time_s:.3g} s")
+        if self.upper_bounds:
+            lines.append("  statistically zero (upper bounds): "
+                         + ", ".join(f"{k} < {v:.3g}" for k, v in self.upper_bounds.items()))
         if self.magnetic is not None:
             lines += self._magnetic_lines()
         if self.extrapolated_fraction > 0:

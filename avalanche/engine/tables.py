@@ -12,7 +12,7 @@ from __future__ import annotations
 
 import math
 import warnings
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 import numpy as np
 
@@ -271,6 +271,16 @@ def near_equilibrium_energy_eV(table: ProcessTable, number_density_m3: float, re
     return energy
 
 
+def _expected_tables(table: ProcessTable, nu: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """The kernel's expected-value tables from the per-process frequencies ``nu`` (P, n_cells + 1) [s⁻¹]: the
+    summed direct-ionization and attachment frequencies per node, (n_cells + 1, 2), and their energy floors [eV]."""
+    ionizing = table.action == K.ACTION_IONIZATION
+    attaching = table.action == K.ACTION_ATTACHMENT
+    expected = np.ascontiguousarray(np.stack((nu[ionizing].sum(axis=0), nu[attaching].sum(axis=0)), axis=1))
+    floor = float(table.loss_eV[ionizing].min()) if ionizing.any() else 0.0
+    return expected, np.array([floor, 0.0])
+
+
 @dataclass(frozen=True, eq=False)
 class EnergyGrid:
     """The kernel's collision-frequency tables on nodes i Δε and the trial frequency.
@@ -293,6 +303,11 @@ class EnergyGrid:
     nu_total: np.ndarray
     nu_cumulative: np.ndarray
     thermal_groups: tuple = COLD_GAS_GROUPS
+    expected_nu: np.ndarray = field(default_factory=lambda: np.zeros((0, 2)))
+    """(n_cells + 1, 2): total direct-ionization and attachment frequencies at the electron-grid nodes [s⁻¹], for
+    the kernel's expected-value tallies (see :func:`avalanche.kernels.advance_chunk`)."""
+    expected_floor_eV: np.ndarray = field(default_factory=lambda: np.zeros(2))
+    """(2,): the lowest ionization threshold [eV] (0 when there is none) and 0 (attachment)."""
 
     @classmethod
     def build(cls, table: ProcessTable, energy_max_eV: float, n_cells: int) -> EnergyGrid:
@@ -306,13 +321,15 @@ class EnergyGrid:
         nu = table.frequencies(nodes)
         cumulative = np.ascontiguousarray(np.cumsum(nu, axis=0).T)
         total = np.ascontiguousarray(cumulative[:, -1])
+        expected_nu, expected_floor_eV = _expected_tables(table, nu[:, :n_cells + 1])
         peak = float(total.max())
         if not peak > 0:
             raise ConfigError("the mixture's collision frequency is zero on the whole energy grid; check the "
                               "cross sections (every process zero?)")
         if not groups:
             return cls(energy_max_eV=float(energy_max_eV), n_cells=int(n_cells), nu_star=peak * (1.0 + TRIAL_MARGIN),
-                       nu_total=total, nu_cumulative=cumulative)
+                       nu_total=total, nu_cumulative=cumulative, expected_nu=expected_nu,
+                       expected_floor_eV=expected_floor_eV)
         group_nu = np.array([nu[first:last].sum(axis=0) for first, last, _ in groups])
         bands = (1.0 + TRIAL_MARGIN) * group_nu.max(axis=1)
         upper = np.cumsum(bands)
@@ -326,7 +343,8 @@ class EnergyGrid:
                           np.array([g[1] for g in groups], dtype=np.int64), np.array([g[2] for g in groups]),
                           np.ascontiguousarray(local))
         return cls(energy_max_eV=float(energy_max_eV), n_cells=int(n_cells), nu_star=float(upper[-1]),
-                   nu_total=total, nu_cumulative=cumulative, thermal_groups=thermal_groups)
+                   nu_total=total, nu_cumulative=cumulative, thermal_groups=thermal_groups, expected_nu=expected_nu,
+                   expected_floor_eV=expected_floor_eV)
 
     @property
     def inv_cell_eV(self) -> float:

@@ -31,6 +31,8 @@ FIELDS: dict[str, tuple[type, str, str, str]] = {
     "process_counts": (np.int64, "P", "1", "real collisions per process"),
     "extrapolated_counts": (np.int64, "P", "1", "real collisions beyond the process's table"),
     "eedf_counts": (np.int64, "B", "1", "trial events per energy bin"),
+    "expected_ionizations": (np.float64, "", "1", "sum of nu_ion(eps)/nu* at trial events (expected ionizations)"),
+    "expected_attachments": (np.float64, "", "1", "sum of nu_att(eps)/nu* at trial events (expected attachments)"),
     "mature_events": (np.int64, "", "1", "trial events in chunks sampled for position moments"),
     "mature_vz_sum": (np.float64, "", "m/s", "sum of v_z at those events"),
     "mature_zvz_sum": (np.float64, "", "m2/s", "sum of (z - z_ref) v_z at those events"),
@@ -105,6 +107,8 @@ class SwarmTallies:
         a["energy_sum_eV"] += sums[:, K.SUM_ENERGY]
         a["vz_sum"] += sums[:, K.SUM_VZ]
         a["exposure_s"] += sums[:, K.SUM_EXPOSURE]
+        a["expected_ionizations"] += sums[:, K.SUM_EXPECTED_IONIZATIONS]
+        a["expected_attachments"] += sums[:, K.SUM_EXPECTED_ATTACHMENTS]
         a["sampled_time_s"] += duration_s
         a["process_counts"] += process_counts
         a["extrapolated_counts"] += extrapolated

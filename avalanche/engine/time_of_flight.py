@@ -38,9 +38,12 @@ Method
   positions are reset to the origin, the first ``diffusion_skip`` energy relaxation times are not sampled
   (the position–energy correlations build up), then ``diffusion_segment`` × that time is. Without resets the
   spread grows and the precision of a diffusion coefficient stays near √(2/n) however long the run.
-* Stop: when the relative standard error of ``precision_on`` (default "auto": alpha_N if ionization occurred
-  during relaxation, else drift_velocity_flux) is below ``precision``, or when ``max_events`` trial events
-  were simulated; ``stop_reason`` says which.
+* Stop (DC): after every sampled chunk, once :data:`~avalanche.engine.stopping.MIN_SAMPLED_CHUNKS` chunks carry
+  position moments, when every quantity of :class:`~avalanche.engine.stopping.StopRule` (every reported nonzero
+  estimate, each to its target) has its relative standard error below its target, or when ``max_events`` trial
+  events were simulated; ``stop_reason`` says which and ``stopped_by`` which quantity limited the run. AC: the
+  relative standard error of ``precision_on`` (default "auto": the ionization rate coefficient if ionization
+  occurred during relaxation, else the mean energy) at the end of each position window.
 
 The electric field points along −z, so the force on the electrons and their drift point along +z, and every
 drift velocity is reported positive.
@@ -76,6 +79,7 @@ from .estimators import (
 from .magnetic import NO_FIELD, MagneticField, make_magnetic
 from .quasistatic import exact_settings, quasi_static_swarm
 from .results import ESTIMATE_UNITS, SwarmResult, assess_convergence
+from .stopping import MIN_SAMPLED_CHUNKS, StopRule, parse_precision
 from .tables import (  # noqa: F401  (re-exported: the engine's tables are part of its interface)
     ACTIONS,
     COLD_GAS_GROUPS,
@@ -123,6 +127,7 @@ class Settings:
     diffusion_segment: float
     max_wall_seconds: float | None = None
     ac_method: str = "auto"
+    precision_targets: tuple = ()
 
 
 AC_METHODS = ("auto", "exact", "quasi-static")
@@ -180,12 +185,13 @@ def make_settings(*, seed=0, precision=0.01, electrons=16384, max_events=1_000_0
             and 0 < population_bounds[0] < 1 < population_bounds[1] <= 4):
         raise ConfigError(f"swarm(): argument population_bounds = {population_bounds!r} must be (lower, upper) "
                           "with 0 < lower < 1 < upper <= 4 (fractions of the target population per replica)")
+    precision, precision_targets = parse_precision(precision)
     precision_choices = ("auto", "alpha_N", *[name for name in ESTIMATE_UNITS if name != "alpha_N"])
     energy_cells = _positive("energy_cells", energy_cells, integer=True)
     if energy_cells < 64:
         raise ConfigError(f"swarm(): argument energy_cells = {energy_cells} must be >= 64")
     return Settings(
-        seed=_seed(seed), precision=_positive("precision", precision), electrons=electrons,
+        seed=_seed(seed), precision=precision, precision_targets=precision_targets, electrons=electrons,
         max_events=max_events, sharing=_choice("sharing", sharing, SHARING_RULES),
         scattering=_choice("scattering", scattering, SCATTERING_MODELS), replicas=replicas,
         precision_on=_choice("precision_on", precision_on, precision_choices), energy_cells=energy_cells,
@@ -225,7 +231,7 @@ def ensure_compiled() -> None:
                     np.zeros(1), np.full(1, -1, dtype=np.int64), 0.0, *(np.zeros(0),) * 4,
                     np.zeros((1, 0, K.N_PHASE_SUMS)),
                     np.zeros((1, 0, K.N_PHASE_COUNTS), dtype=np.int64), np.zeros((1, 0, 1), dtype=np.int64),
-                    COLD_GAS_GROUPS, np.zeros(3))
+                    COLD_GAS_GROUPS, np.zeros(3), np.zeros((2, 2)), np.zeros(2))
 
 
 class _Run:
@@ -280,7 +286,8 @@ class _Run:
                             o.sums, o.counts, o.hist, o.process_counts, o.extrapolated, t.penning_probability,
                             t.penning_energy_eV, t.penning_slot, self.period_s, *self.wave, self.phase_out.sums,
                             self.phase_out.counts,
-                            self.phase_out.process, g.thermal_groups, self.magnetic_kernel)
+                            self.phase_out.process, g.thermal_groups, self.magnetic_kernel, g.expected_nu,
+                            g.expected_floor_eV)
             self.events += int(o.counts[:, K.COUNT_EVENTS].sum())
             self.anomalies["frequency_above_bound"] += int(o.counts[:, K.COUNT_ABOVE_BOUND].sum())
             above = bool(o.counts[:, K.COUNT_ABOVE_GRID].any())
@@ -369,7 +376,7 @@ def swarm(mixture: Mixture | str, reduced_field_Td: float, magnetic_field_T: flo
           field_angle_deg: float = 90.0, *, reduced_magnetic_field_Hx: float | None = None, seed=0,
           precision: float = 0.01, electrons: int = 16384, max_events: int = 1_000_000_000, sharing: str = "opb",
           scattering: str = "isotropic", threads: int | None = None, frequency_Hz: float | None = None,
-          phase_bins: int = 32, dc_offset_Td: float = 0.0, waveform=None, **more) -> SwarmResult:
+          phase_bins: int = 32, dc_offset_Td: float = 0.0, waveform=None, progress=None, **more) -> SwarmResult:
     """Swarm parameters of electrons in ``mixture`` at reduced field ``reduced_field_Td`` (DC or AC), by Monte Carlo.
 
     Parameters
@@ -392,8 +399,14 @@ def swarm(mixture: Mixture | str, reduced_field_Td: float, magnetic_field_T: flo
     seed : int or tuple of int
         Master seed; replica streams derive from ``numpy.random.SeedSequence(seed)``. A tuple such as
         ``(master, point)`` gives independent streams for the points of a sweep.
-    precision : float
-        Target relative standard error of ``precision_on`` (stop rule).
+    precision : float or dict
+        Target relative standard error (stop rule, :mod:`avalanche.engine.stopping`): a float for every reported
+        nonzero quantity of the default set (mean energy, flux and bulk drift velocities and diffusion, α/N,
+        η/N, rate coefficients of the processes above 1 % of the energy loss), or targets by name, e.g.
+        ``{"alpha_N": 0.03, "default": 0.01}`` (estimate names or process keys of ``rate_coefficients``). The
+        test runs after every sampled chunk; ``result.stopped_by`` names the quantity that stopped (or limited)
+        the run and ``result.upper_bounds`` holds the statistically zero ones. With ``precision_on`` set to an
+        estimate name only that quantity is tested (AC runs: "auto" tests α/N... as before, at window ends).
     electrons : int
         Target number of electrons, split evenly over the replicas.
     max_events : int
@@ -419,6 +432,12 @@ def swarm(mixture: Mixture | str, reduced_field_Td: float, magnetic_field_T: flo
         the header ``time_s,value``, time within the period) or an (M, 2) array; piecewise linear between the
         nodes and scaled so that its peak |value| is ``reduced_field_Td``
         (:func:`avalanche.engine.drive.load_waveform`).
+    progress : callable, optional
+        DC: called with a dict: once ``{"stage": "compiling"}`` before the kernels are loaded, after each chunk of
+        the relaxation ``{"stage": "relaxing", "events", "max_events", "elapsed_s"}``, after each stop test
+        ``{"stage": "sampling", "quantity", "ratio_to_target", "events", "max_events", "elapsed_s", "eta_s"}``
+        (the limiting quantity, its relative error over its target, a rough time left [s]). The engine itself
+        prints nothing.
     **more
         replicas (16), precision_on ('auto' or an estimate name), energy_cells (8192), energy_max_eV (initial grid
         top, default 10 × initial_energy_eV), energy_limit_eV (1e5, runaway guard), initial_energy_eV (mean of the
@@ -471,6 +490,8 @@ def swarm(mixture: Mixture | str, reduced_field_Td: float, magnetic_field_T: flo
                               "threads numba was started with (set NUMBA_NUM_THREADS)")
         numba.set_num_threads(threads)
     try:
+        if progress is not None and not K.advance_chunk.signatures:
+            progress({"stage": "compiling"})
         ensure_compiled()
         cpu0, wall0 = time.process_time(), time.perf_counter()
         result, probe_events = None, 0
@@ -480,7 +501,7 @@ def swarm(mixture: Mixture | str, reduced_field_Td: float, magnetic_field_T: flo
                 BOLTZMANN_J_K * mixture.temperature_K / EV_J, force=settings.ac_method == "quasi-static")
         if result is None:
             run = _Run(mixture, reduced_field_Td, exact_settings(settings, probe_events, wall0), drive, magnetic)
-            result = _simulate(run, reduced_field_Td)
+            result = _simulate(run, reduced_field_Td, progress)
             result.events += probe_events
             if drive is not None:
                 result.inputs["method"] = result.regime["method"] = "exact"
@@ -528,7 +549,7 @@ def _shrink_grid(run: _Run, recent_max_eV: float, factor: float) -> None:
         run.resize_grid(max(recent_max_eV * factor, 1e-3))
 
 
-def _simulate(run: _Run, reduced_field_Td: float) -> SwarmResult:
+def _simulate(run: _Run, reduced_field_Td: float, progress=None) -> SwarmResult:
     s, ens = run.settings, run.ens
     tallies = SwarmTallies.zeros(s.replicas, len(run.table.processes), s.eedf_bins, magnetic=run.magnetic is not None)
     # magnetic: the full position moments (mean, covariance) at chunk starts and ends, for the bulk tensor
@@ -546,6 +567,11 @@ def _simulate(run: _Run, reduced_field_Td: float) -> SwarmResult:
     stop_reason = "max_events"
     ion_kinds = np.array([k in IONIZING_KINDS for k in run.table.kinds])
     precision_on = s.precision_on
+    t_ = run.table
+    rule = StopRule(s.precision, s.precision_targets, t_.keys, t_.kinds, t_.loss_eV, t_.electron_fraction,
+                    t_.target_density_m3, run.mixture.number_density_m3,
+                    only=None if precision_on == "auto" else precision_on)
+    mature_chunks = 0
     drive = run.drive  # AC: chunks end on a grid holding every period boundary; the relaxation test runs there
     started = time.perf_counter()
     phase_tallies = ac.PhaseTallies.zeros(s.replicas, drive.phase_bins, len(run.table.processes)) if drive else None
@@ -606,15 +632,19 @@ def _simulate(run: _Run, reduced_field_Td: float) -> SwarmResult:
                     if precision_on == "auto":
                         precision_on = "ionization_rate_coefficient" if ionized else "mean_energy_eV"
                 if precision_on == "auto":
-                    precision_on = "alpha_N" if ionized else "drift_velocity_flux"
+                    precision_on = "all"  # DC: every reported nonzero quantity (engine.stopping)
             elif len(series) % RELAXATION_MIN_CHUNKS == 0:
                 _shrink_grid(run, float(series.array("max_energy")[-RELAXATION_MIN_CHUNKS:].max()), 2.0)
+            if progress is not None:
+                progress({"stage": "relaxing", "events": run.events, "max_events": s.max_events,
+                          "elapsed_s": time.perf_counter() - started})
         else:
             tallies.add_chunk(sums, counts, out.hist, out.process_counts, out.extrapolated, dt)
             if drive is not None:
                 phase_tallies.add(run.phase_out)
             if t_start + slack >= mature_from:
                 tallies.add_mature_chunk(sums, counts, dt, start[:, 2:5], end[:, 2:5], start_b, end_b)
+                mature_chunks += 1
         if ens.control():
             run.anomalies["population_controls"] += 1
             start = ens.moments()
@@ -622,10 +652,15 @@ def _simulate(run: _Run, reduced_field_Td: float) -> SwarmResult:
         else:
             start = end
             start_b = end_b
-        if sampling and t + slack >= window_end:
+        if drive is None and mature_chunks >= MIN_SAMPLED_CHUNKS:  # DC: every chunk, from the tallies so far
+            if _stop_test(run, tallies, rule):
+                stop_reason = "precision"
+                break
+            if progress is not None:
+                progress(_progress_state(run, rule, started))
+        if drive is not None and sampling and t + slack >= window_end:
             estimates = swarm_estimates(tallies, _context(run, tallies))
-            if drive is not None:
-                estimates.update(_phase_estimates(run, phase_tallies).cycle)
+            estimates.update(_phase_estimates(run, phase_tallies).cycle)
             if estimates[precision_on].relative_stderr < s.precision:
                 stop_reason = "precision"
                 break
@@ -642,6 +677,14 @@ def _simulate(run: _Run, reduced_field_Td: float) -> SwarmResult:
             break
     run.windows = {"skip_s": skip, "segment_s": segment}
     result = _result(run, reduced_field_Td, tallies, series, relaxation_time, stop_reason, precision_on)
+    if drive is None:
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore", RuntimeWarning)
+            rule.check(result.estimates, result.rate_coefficients, tallies["process_counts"].sum(axis=0),
+                       float(tallies["exposure_s"].sum()))
+        result.stopped_by, result.upper_bounds = rule.limiting, dict(rule.upper_bounds)
+    else:
+        result.stopped_by = precision_on
     if drive is not None:
         ac.finish(result, drive, _phase_estimates(run, phase_tallies), phase_tallies, run.table.target_density_m3,
                   run.table.scatter == K.SCATTER_SCREENED_COULOMB, run.kT_eV)
@@ -649,6 +692,25 @@ def _simulate(run: _Run, reduced_field_Td: float) -> SwarmResult:
     energy = series.array("energy_sum")[sampled] / series.array("events")[sampled] if drive is None else None
     result.converged, result.convergence_notes = assess_convergence(result, energy)
     return result
+
+
+def _stop_test(run: _Run, tallies: SwarmTallies, rule: StopRule) -> bool:
+    """The DC stop test on the tallies accumulated so far (see :class:`avalanche.engine.stopping.StopRule`)."""
+    ctx = _context(run, tallies)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", RuntimeWarning)
+        return rule.check(swarm_estimates(tallies, ctx), rate_coefficients(tallies, ctx),
+                          tallies["process_counts"].sum(axis=0), float(tallies["exposure_s"].sum()))
+
+
+def _progress_state(run: _Run, rule: StopRule, started: float) -> dict:
+    """What a progress callback receives: the limiting quantity, its relative error and target ratio, the events
+    so far and the estimated seconds left (errors fall as 1/√events, so the events needed scale with ratio²)."""
+    elapsed = time.perf_counter() - started
+    ratio = rule.limiting_ratio
+    left = elapsed * (ratio * ratio - 1.0) if math.isfinite(ratio) and ratio > 1 else math.nan
+    return {"stage": "sampling", "quantity": rule.limiting, "ratio_to_target": ratio, "events": run.events,
+            "max_events": run.settings.max_events, "elapsed_s": elapsed, "eta_s": left}
 
 
 def _over_time(settings: Settings, started: float) -> bool:

@@ -74,7 +74,10 @@ SUM_YVY = 15            # Σ (y − y_ref) v_y [m²/s]
 SUM_YVZ = 16            # Σ (y − y_ref) v_z [m²/s]
 SUM_ZVX = 17            # Σ (z − z_ref) v_x [m²/s]
 SUM_ZVY = 18            # Σ (z − z_ref) v_y [m²/s]
-N_SUMS = 19
+# Expected-value tallies (Skullerud 1968): Σ ν(ε)/ν* over trial events estimates the expected number of events.
+SUM_EXPECTED_IONIZATIONS = 19   # Σ ν_ion(ε)/ν* (direct ionization, all ionization processes) [1]
+SUM_EXPECTED_ATTACHMENTS = 20   # Σ ν_att(ε)/ν* [1]
+N_SUMS = 21
 SUM_VELOCITY = (SUM_VX, SUM_VY, SUM_VZ)
 """Columns of Σ (v_x, v_y, v_z)."""
 SUM_POSITION = (SUM_X, SUM_Y, SUM_Z)

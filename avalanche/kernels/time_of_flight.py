@@ -33,6 +33,8 @@ from .collisions import (
     PHASE_REMOVED,
     PHASE_VZ,
     SUM_ENERGY,
+    SUM_EXPECTED_ATTACHMENTS,
+    SUM_EXPECTED_IONIZATIONS,
     SUM_EXPOSURE,
     SUM_MAX_ENERGY,
     SUM_VX,
@@ -86,7 +88,8 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
                      target_fraction, thermal_speed, scatter, sharing, w_eV, table_max_eV, reference,
                      tally_positions, hist_inv_width_eV, sums, counts, hist, process_counts, extrapolated,
                      penning_probability, penning_energy_eV, penning_slot, period_s, wave_time, wave_accel,
-                     wave_F, wave_G, phase_sums, phase_counts, phase_process, thermal_groups, magnetic):
+                     wave_F, wave_G, phase_sums, phase_counts, phase_process, thermal_groups, magnetic, expected_nu,
+                     expected_floor_eV):
     s0 = rng[r, 0]
     s1 = rng[r, 1]
     s2 = rng[r, 2]
@@ -136,6 +139,9 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
     sum_yvz = 0.0
     sum_zvx = 0.0
     sum_zvy = 0.0
+    sum_expected_ion = 0.0
+    sum_expected_att = 0.0
+    expected_rows = expected_nu.shape[0]
     # -- end magnetic block --
     x_ref = reference[r, 0]
     y_ref = reference[r, 1]
@@ -268,6 +274,17 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
                 else:
                     bin_sums[pb, PHASE_POWER] += uz * instantaneous_accel(t, accel_dc, accel_ac, omega, phase,
                                                                           period_s, wave_time, wave_accel)
+            # expected-value tallies: ν_ion(ε)/ν* and ν_att(ε)/ν* at every trial event (lab-frame energy; at the
+            # threshold the kernel rejects collisions below it, so the tables count only from there)
+            c = int(e_cell)
+            if c + 1 < expected_rows:
+                f = e_cell - c
+                if energy >= expected_floor_eV[0]:
+                    low = expected_nu[c, 0]
+                    sum_expected_ion += (low + f * (expected_nu[c + 1, 0] - low)) * inv_nu_star
+                if energy >= expected_floor_eV[1]:
+                    low = expected_nu[c, 1]
+                    sum_expected_att += (low + f * (expected_nu[c + 1, 1] - low)) * inv_nu_star
             b = int(energy * hist_inv_width_eV)
             if b < n_bins:
                 hist[r, b] += 1
@@ -355,6 +372,8 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
     sums[r, SUM_YVZ] = sum_yvz
     sums[r, SUM_ZVX] = sum_zvx
     sums[r, SUM_ZVY] = sum_zvy
+    sums[r, SUM_EXPECTED_IONIZATIONS] = sum_expected_ion
+    sums[r, SUM_EXPECTED_ATTACHMENTS] = sum_expected_att
     counts[r, COUNT_EVENTS] = events
     counts[r, COUNT_REAL] = real
     counts[r, COUNT_CREATED] = created
@@ -371,7 +390,8 @@ def advance_chunk(x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc, acce
                   target_fraction, thermal_speed, scatter, sharing, w_eV, table_max_eV, reference,
                   tally_positions, hist_inv_width_eV, sums, counts, hist, process_counts, extrapolated,
                   penning_probability, penning_energy_eV, penning_slot, period_s, wave_time, wave_accel, wave_F,
-                  wave_G, phase_sums, phase_counts, phase_process, thermal_groups, magnetic):
+                  wave_G, phase_sums, phase_counts, phase_process, thermal_groups, magnetic, expected_nu,
+                  expected_floor_eV):
     """Advance every replica's electrons from time ``t0`` to ``t1`` [s] (one chunk), in parallel over replicas.
 
     Each replica is a serial simulation with its own generator state, so the result does not depend on the
@@ -439,6 +459,14 @@ def advance_chunk(x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc, acce
         exactly the field-free flights and leaves the columns SUM_VX … SUM_ZVY of ``sums`` at 0. With ω_c > 0
         every flight is :func:`magnetic_field_flight` (exact for a constant electric field) and those columns are
         filled (the position ones only with ``tally_positions``).
+    expected_nu : ndarray, shape (n_cells + 1, 2)
+        Total direct-ionization and attachment collision frequencies at the electron-grid nodes [s⁻¹]; each trial
+        event adds their interpolated values over ν* to ``sums[:, SUM_EXPECTED_IONIZATIONS]`` and
+        ``sums[:, SUM_EXPECTED_ATTACHMENTS]`` (expected numbers of events: unbiased because the trial events are a
+        Poisson process of rate ν* in time, Skullerud 1968). An array with fewer than two rows disables them.
+    expected_floor_eV : ndarray, shape (2,)
+        Energies below which the two frequencies count as 0 (the lowest ionization threshold, as the kernel rejects
+        collisions below a process's threshold inside its grid cell; 0 for attachment).
 
     Notes
     -----
@@ -455,4 +483,5 @@ def advance_chunk(x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc, acce
                          electron_fraction, target_fraction, thermal_speed, scatter, sharing, w_eV, table_max_eV,
                          reference, tally_positions, hist_inv_width_eV, sums, counts, hist, process_counts,
                          extrapolated, penning_probability, penning_energy_eV, penning_slot, period_s, wave_time,
-                         wave_accel, wave_F, wave_G, phase_sums, phase_counts, phase_process, thermal_groups, magnetic)
+                         wave_accel, wave_F, wave_G, phase_sums, phase_counts, phase_process, thermal_groups, magnetic,
+                         expected_nu, expected_floor_eV)

@@ -5,8 +5,9 @@ Layout of a point group (the root of a file written by :func:`save_result`; swee
 * attributes: ``file_type`` = "avalanche swarm point", ``format_version`` (checked on read), ``package_version``,
   ``created_utc``, ``reduced_field_Td``, ``temperature_K``, ``number_density_m3``, ``mixture`` (label), ``seed``
   (JSON), ``stop_reason``, ``precision_on``, ``events``, ``cpu_seconds``, ``wall_seconds``, ``relaxation_time_s``,
-  ``sampled_time_s``, ``extrapolated_fraction``, ``converged`` (bool; the reasons in ``convergence_notes_json``);
-  JSON text: ``inputs_json`` (every input and setting),
+  ``sampled_time_s``, ``extrapolated_fraction``, ``converged`` (bool; the reasons in ``convergence_notes_json``),
+  ``stopped_by`` (the quantity that stopped or limited the run), ``upper_bounds_json`` (statistically zero
+  quantities and their bounds); JSON text: ``inputs_json`` (every input and setting),
   ``composition_json``, ``checksums_json`` (SHA-256 of each species' cross-section set), ``provenance_json``
   (sources of each set), ``anomalies_json``.
 * ``estimates/<name>``: float64 (2,) = (value, standard error), attributes ``units`` and ``description``.
@@ -92,6 +93,8 @@ def write_result(group: h5py.Group, result: SwarmResult) -> None:
     attrs["anomalies_json"] = _json(result.anomalies)
     attrs["converged"] = bool(result.converged)
     attrs["convergence_notes_json"] = _json(list(result.convergence_notes))
+    attrs["stopped_by"] = str(result.stopped_by)
+    attrs["upper_bounds_json"] = _json(result.upper_bounds)
     est = group.create_group("estimates")
     for name, units, description in ESTIMATES:
         if name in result.estimates:
@@ -221,7 +224,9 @@ def read_result(group: h5py.Group) -> SwarmResult:
         time_series = {name: ds[()] for name, ds in group["time_series"].items()}
         tallies = None
         if "tallies" in group:
-            tallies = SwarmTallies({name: group["tallies"][name][()] for name in FIELDS}
+            stored = group["tallies"]  # files from before the expected-value tallies lack them: NaN
+            tallies = SwarmTallies({name: stored[name][()] if name in stored
+                                    else np.full(stored["events"].shape, np.nan) for name in FIELDS}
                                    | {name: group["tallies"][name][()] for name in MAGNETIC_FIELDS
                                       if name in group["tallies"]})
         inputs = json.loads(attrs["inputs_json"])
@@ -232,7 +237,9 @@ def read_result(group: h5py.Group) -> SwarmResult:
         phase = _read_phase(group["phase"]) if "phase" in group else {}
         magnetic = _read_magnetic(group["magnetic"]) if "magnetic" in group else None
         convergence = {"converged": bool(attrs.get("converged", True)),
-                       "convergence_notes": json.loads(attrs.get("convergence_notes_json", "[]"))}
+                       "convergence_notes": json.loads(attrs.get("convergence_notes_json", "[]")),
+                       "stopped_by": str(attrs.get("stopped_by", "")),
+                       "upper_bounds": json.loads(attrs.get("upper_bounds_json", "{}"))}
     except KeyError as exc:
         raise AvalancheError(f"{where}: incomplete swarm point, missing {exc}; the file is damaged or was not "
                              "written by avalanche.store.point.write_result") from None

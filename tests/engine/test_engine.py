@@ -70,7 +70,7 @@ def test_maxwell_model_drift_and_energy_quick():
     k = result.rate_coefficients["momentum transfer"]
     assert abs(k.value - MAXWELL_RATE_m3_s) < 3 * k.stderr + 1e-9 * MAXWELL_RATE_m3_s
     assert result.anomalies["frequency_above_bound"] == 0
-    assert result.inputs["settings"]["precision_on"] == "drift_velocity_flux"
+    assert result.inputs["settings"]["precision_on"] == "all"  # DC "auto": the stop rule tests every quantity
 
 
 @pytest.mark.slow

@@ -38,6 +38,8 @@ def _tallies():
     a["vz_sum"][:] = 1e8
     a["exposure_s"][:] = 1e-6
     a["process_counts"][:] = [[5000, 30, 10]] * R
+    a["expected_ionizations"][:] = 30.0   # expected-value sums equal to the counts: both estimators give one value
+    a["expected_attachments"][:] = 10.0
     a["mature_events"][:] = 1000
     a["mature_vz_sum"][:] = 1e8
     a["mature_time_s"][:] = 1e-7
@@ -83,6 +85,8 @@ def test_swarm_estimates_of_synthetic_tallies():
     assert est["trans_diffusion_N_flux"].value == pytest.approx(0.4 * N)
     nu_ion, nu_att = 30 / 1e-6, 10 / 1e-6
     assert est["ionization_rate_coefficient"].value == pytest.approx(nu_ion / N)
+    assert est["ionization_rate_coefficient_counted"].value == pytest.approx(nu_ion / N)
+    assert est["attachment_rate_coefficient_counted"].value == pytest.approx(nu_att / N)
     assert est["effective_ionization_frequency"].value == pytest.approx(nu_ion - nu_att)
     assert est["alpha_N_simple"].value == pytest.approx(nu_ion / (N * 1e5))
     assert est["alpha_N"].value == pytest.approx(float(townsend_coefficient(1e5, 0.1, nu_ion)) / N)

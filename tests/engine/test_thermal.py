@@ -266,7 +266,7 @@ def _relax_without_field(mixture: Mixture, start_eV: float, relax_s: float, samp
                         table.penning_probability, table.penning_energy_eV, table.penning_slot, 0.0,
                         *(np.zeros(0),) * 4, np.zeros((R, 0, K.N_PHASE_SUMS)),
                         np.zeros((R, 0, K.N_PHASE_COUNTS), dtype=np.int64), np.zeros((R, 0, P), dtype=np.int64),
-                        grid.thermal_groups)
+                        grid.thermal_groups, np.zeros(3), grid.expected_nu, grid.expected_floor_eV)
         total += counts.sum(axis=0)
     mean = sums[:, K.SUM_ENERGY] / counts[:, K.COUNT_EVENTS]
     final = K.ENERGY_PER_SPEED2_eV * (ens.vx ** 2 + ens.vy ** 2 + ens.vz ** 2)[:, :ens.target].ravel()

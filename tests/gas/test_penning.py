@@ -184,7 +184,7 @@ def _one_level_chunk(probability: float, electrons: int = 2000):
                     extrapolated, table.penning_probability, table.penning_energy_eV, table.penning_slot,
                     0.0, *(np.zeros(0),) * 4, np.zeros((1, 0, K.N_PHASE_SUMS)),  # DC: no drive period, no phases
                     np.zeros((1, 0, K.N_PHASE_COUNTS), dtype=np.int64), np.zeros((1, 0, P), dtype=np.int64),
-                    COLD_GAS_GROUPS, np.zeros(3))  # cold gas, no magnetic field
+                    COLD_GAS_GROUPS, np.zeros(3), np.zeros((2, 2)), np.zeros(2))  # cold gas, no B, no expected tallies
     n = int(count[0])
     energy = K.ENERGY_PER_SPEED2_eV * (vx[0, :n] ** 2 + vy[0, :n] ** 2 + vz[0, :n] ** 2)
     cos_theta = vz[0, :n] / np.sqrt(vx[0, :n] ** 2 + vy[0, :n] ** 2 + vz[0, :n] ** 2)
@@ -246,13 +246,13 @@ def test_penning_counts_follow_the_excitations_and_add_to_the_ionization_frequen
     direct = sum(counts[i] for i, k in enumerate(keys) if k.endswith("total ionization"))
     penning = sum(counts[i] for i, kind in enumerate(kinds) if kind)
     assert t["created"].sum() == direct + penning
-    # ν_ion = ν_direct + ν_Penning: the total rate coefficient is the density-weighted sum of the per-process
+    # ν_ion = ν_direct + ν_Penning: the total counted rate coefficient is the density-weighted sum of the per-process
     # ones (per target molecule; Penning rows per receiver molecule), up to rounding.
     N = m.number_density_m3
     fraction = {c.name: c.fraction for c in m.components}
     total = sum(fraction[k.split(":")[0]] * r.rate_coefficients[k].value for k in keys if k.endswith("ionization"))
     total += sum(fraction["Ar"] * r.rate_coefficients[k].value for k in keys if k.startswith("Penning "))
-    assert r.ionization_rate_coefficient.value == pytest.approx(total, rel=1e-12, abs=0)
+    assert r.ionization_rate_coefficient_counted.value == pytest.approx(total, rel=1e-12, abs=0)
     exposure = t["exposure_s"].sum()
     assert r.penning_ionization_rate_coefficient.value == pytest.approx(penning / exposure / N, rel=1e-12, abs=0)
     assert r.penning_fraction.value == pytest.approx(penning / (direct + penning), rel=1e-12, abs=0)
