@@ -26,6 +26,7 @@ from __future__ import annotations
 import csv
 import json
 import math
+from abc import ABC, abstractmethod
 from pathlib import Path
 
 import numpy as np
@@ -49,7 +50,7 @@ def _length(owner: str, name: str, value) -> float:
 _NO_MAP = (np.zeros((3, 2, 2, 1)), np.zeros((3, 2, 2, 1)), np.zeros((1, 2, 2, 1)), np.zeros((2, 2, 1), np.int64))
 
 
-class Geometry:
+class Geometry(ABC):
     """Common interface: the kernel tuple, the default start of primaries, the map extent, field evaluation."""
 
     code: int = -1
@@ -59,21 +60,22 @@ class Geometry:
         """The geometry tuple of :mod:`avalanche.kernels.gap`."""
         return (self.code, self.params) + _NO_MAP
 
+    @abstractmethod
     def describe(self) -> dict:
-        raise NotImplementedError
+        """The geometry as plain data (kind and dimensions), stored with the results."""
 
+    @abstractmethod
     def emitter(self, electrons_to_driven: bool) -> tuple[np.ndarray, np.ndarray]:
         """Default start of the primaries (a point on the electrode the electrons leave) and the unit vector into
         the gas along the field line there."""
-        raise NotImplementedError
 
+    @abstractmethod
     def map_extent(self) -> tuple[float, float, float]:
         """(ρ_max, z_min, z_max) [m] of the ionization and excitation maps."""
-        raise NotImplementedError
 
+    @abstractmethod
     def gap_length_m(self) -> float:
         """Length of the field line between the electrodes along the symmetry axis [m]."""
-        raise NotImplementedError
 
     def field_V_m(self, points_m, voltage_V: float) -> np.ndarray:
         """The field E [V/m] at ``points_m`` (shape (..., 3)) for ``voltage_V`` on the driven electrode."""
