@@ -137,3 +137,17 @@ def test_every_subpackage_states_its_rules():
 def test_python_dash_m_runs_the_command_line():
     done = subprocess.run([sys.executable, "-m", "avalanche", "--help"], capture_output=True, text=True, timeout=300)
     assert done.returncode == 0 and "swarm" in done.stdout
+
+
+def test_every_subpackage_is_installed():
+    """A non-editable install ships exactly the subpackages on disk (pyproject's explicit package list)."""
+    import tomllib
+
+    config = tomllib.loads((PACKAGE.parent / "pyproject.toml").read_text())
+    listed = set(config["tool"]["setuptools"]["packages"])
+    on_disk = {"avalanche"} | {
+        "avalanche." + init.parent.name for init in PACKAGE.glob("*/__init__.py")
+    }
+    missing = sorted(on_disk - listed)
+    assert not missing, f"pyproject.toml [tool.setuptools] packages lacks {missing}: add them"
+    assert "avalanche.gasdata" in listed
