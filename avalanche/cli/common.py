@@ -109,6 +109,10 @@ def load_table(results, args, command_name: str, default_lowest_frequency: bool 
             note(f"avalanche {command_name}: the sweep has magnetic fields {fields} T; the swarm panels use "
                  f"{fields[0]:g} T (choose with --magnetic-field)")
     table = SwarmTable.from_results(results, mixture=args.mixture, frequency_Hz=frequency, **selection)
+    if table.point_index is not None and np.any(results.grid["frequency_Hz"][table.point_index] > 0):
+        from ..analysis.phase import with_drift_harmonic
+
+        table = with_drift_harmonic(table, results)  # AC: the drift's amplitude and lag, not its ~0 cycle average
     for message in table.notes:
         note(f"avalanche {command_name}: {results.path}: {message}")
     return table

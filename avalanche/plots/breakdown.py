@@ -51,7 +51,8 @@ def plot_emission_spectrum(wavelength_nm, relative_rate, labels: Sequence[str], 
                            annotate: int = 8) -> Figure:
     """Stick spectrum: relative photon emission rate of each radiating level at its wavelength [nm].
 
-    The ``annotate`` strongest lines are labelled; the method's limits are printed under the plot.
+    The ``annotate`` strongest lines are labelled where their labels do not overlap (:func:`_label_lines`); the
+    method's limits go to the file's metadata (:func:`~avalanche.plots.style.attach_notes`), not into the figure.
     """
     from ..analysis.emission import APPROXIMATION_NOTE
 
@@ -61,16 +62,43 @@ def plot_emission_spectrum(wavelength_nm, relative_rate, labels: Sequence[str], 
         raise ConfigError("plot_emission_spectrum: no radiating levels (no excitation process has wavelength_nm)")
     figure, (ax,) = new_figure(1, columns=1, height_in=3.2)
     ax.vlines(wavelength, 0.0, rate, gid="emission", lw=1.5)
-    for k in np.argsort(-np.nan_to_num(rate))[:annotate]:
-        ax.annotate(f"{labels[k]}\n{wavelength[k]:.4g} nm", (wavelength[k], rate[k]), textcoords="offset points",
-                    xytext=(0, 3), ha="center", fontsize=6)
     ax.set_ylim(0.0, 1.25 * max(float(np.nanmax(rate)), 1e-300))
     ax.set_xlabel("wavelength [nm]")
     ax.set_ylabel("relative photon emission rate")
     if title:
         ax.set_title(title)
+    _label_lines(figure, ax, wavelength, rate, labels, annotate)
     attach_notes(figure, note=APPROXIMATION_NOTE)
     return figure
+
+
+_LABEL_PLACES = ((0, 3, "center"), (3, 3, "left"), (-3, 3, "right"), (0, 26, "center"), (3, 26, "left"),
+                 (-3, 26, "right"))
+"""Offsets [points] and alignments tried, in order, for a line's label: above it, beside it, higher up."""
+
+
+def _label_lines(figure: Figure, ax, wavelength, rate, labels: Sequence[str], count: int) -> None:
+    """Label the ``count`` strongest lines, strongest first, each at the first place of :data:`_LABEL_PLACES` where
+    its text (measured once the figure is laid out) overlaps no earlier label and stays inside the axes; a label
+    with no free place is left out (the stick is still drawn)."""
+    from matplotlib.backends.backend_agg import FigureCanvasAgg
+
+    renderer = FigureCanvasAgg(figure).get_renderer()
+    figure.draw_without_rendering()
+    frame = ax.get_window_extent(renderer)
+    placed = []
+    for k in np.argsort(-np.nan_to_num(rate))[:count]:
+        if not (np.isfinite(rate[k]) and rate[k] > 0):
+            continue
+        for dx, dy, align in _LABEL_PLACES:
+            text = ax.annotate(f"{labels[k]}\n{wavelength[k]:.4g} nm", (wavelength[k], rate[k]),
+                               textcoords="offset points", xytext=(dx, dy), ha=align, fontsize=6)
+            box = text.get_window_extent(renderer)
+            inside = frame.x0 <= box.x0 and box.x1 <= frame.x1 and box.y1 <= frame.y1
+            if inside and not any(box.overlaps(other) for other in placed):
+                placed.append(box)
+                break
+            text.remove()
 
 
 @styled

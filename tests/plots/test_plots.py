@@ -222,3 +222,28 @@ def test_emission_sticks_and_note():
 def test_save_figure_rejects_unknown_formats(tmp_path):
     with pytest.raises(ConfigError, match="did you mean 'png'"):
         save_figure(plot_emission_spectrum([100.0], [1.0], ["a"]), tmp_path / "x", ["pgn"])
+
+
+def test_no_text_overlaps_with_many_quantities_in_any_figure(argon):
+    # Every text of the figure (tick labels, axis labels, titles, legends, annotations), measured by the figure's
+    # own renderer once drawn, has a box of its own: with every panel at once, for the emission sticks of close
+    # lines, the phase panels and the Paschen plot (common practice for figures meant for papers).
+    from overlap import overlaps
+
+    swarm = plot_swarm_parameters(argon, ["mean_energy_eV", "drift_velocity", "long_diffusion_N",
+                                          "trans_diffusion_N", "alpha_N", "eta_N", "rate_coefficients",
+                                          "ionization_rate_coefficient", "mobility_N"])
+    assert overlaps(swarm) == []
+    wavelengths = [104.82, 105.2, 106.67, 106.9, 750.4, 751.5, 811.5, 811.8, 763.5]
+    emission = plot_emission_spectrum(wavelengths, [0.4, 0.5, 1.0, 0.9, 0.3, 0.35, 0.6, 0.55, 0.7],
+                                      [f"level {k}" for k in range(9)])
+    assert overlaps(emission) == []
+    phase = (np.arange(16) + 0.5) * 2 * math.pi / 16
+    curves = [PhaseCurve(f, phase, {name: (1e5 * np.cos(phase + k), np.full(16, 1e3)) for name in
+                                    ("mean_energy_eV", "drift_velocity_flux", "ionization_rate_coefficient")}, 300.0)
+              for k, f in enumerate((13.56e6, 1e6, 2e5))]
+    assert overlaps(plot_phase_resolved(curves)) == []
+    field = np.geomspace(30.0, 30000.0, 200)
+    alpha = townsend_formula(12.0, 342.0, field, 293.0)  # N2 constants, Raizer 1991 table 4.1 (from memory)
+    table = CoefficientTable(field, alpha, np.full(field.size, alpha[40]), temperature_K=293.0, gas_label="N2")
+    assert overlaps(plot_paschen(paschen_curve(table, 0.01, np.geomspace(0.6, 200.0, 40)))) == []
