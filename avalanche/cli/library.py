@@ -67,12 +67,28 @@ def _gases(args) -> int:
     return 0
 
 
-@command("check", "validate a cross-section file and print a summary",
+@command("check", "validate cross-section files and run files, reporting every problem of each",
          configure=lambda p: p.add_argument("files", nargs="+", metavar="FILE",
-                                            help="cross-section file(s) (.toml) to validate"))
+                                            help="cross-section set(s) or run file(s) (.toml) to validate"))
 def _check(args) -> int:
+    import sys
+
+    from ..sweep.runfile import load_runfile
+    from .check import file_problems
+
+    failed = 0
     for path in args.files:
-        xs = load_set(path)
-        print(f"OK {path}")
-        print(describe_set(xs))
-    return 0
+        kind, problems = file_problems(path)
+        if problems:
+            failed += 1
+            print(f"avalanche check: {path}: {len(problems)} problem(s) in this {kind}:", file=sys.stderr)
+            for number, problem in enumerate(problems, start=1):
+                print(f"  {number}. {' '.join(problem.split())}", file=sys.stderr)
+            continue
+        print(f"OK {path} ({kind})")
+        if kind == "cross-section set":
+            print(describe_set(load_set(path)))
+        else:
+            runfile = load_runfile(path)
+            print(f"  {len(runfile.points)} points, {len(runfile.mixtures)} mixture(s), output {runfile.output}")
+    return 1 if failed else 0

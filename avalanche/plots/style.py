@@ -22,7 +22,7 @@ from matplotlib.figure import Figure
 from matplotlib.ticker import FuncFormatter, LogFormatter, LogLocator, NullFormatter
 
 from .._version import __version__
-from ..analysis.tables import did_you_mean
+from ..analysis.tables import RATE_PREFIX, did_you_mean
 from ..errors import ConfigError
 
 PAPER_STYLE = {
@@ -39,7 +39,7 @@ _WIDTH_IN = 7.0
 _PANEL_HEIGHT_IN = 2.5
 
 _PRETTY_UNITS = {
-    "m/s": r"m s$^{-1}$", "1/(m s)": r"m$^{-1}$ s$^{-1}$", "m2": r"m$^{2}$", "m3/s": r"m$^{3}$ s$^{-1}$",
+    "rad": "rad", "m/s": r"m s$^{-1}$", "1/(m s)": r"m$^{-1}$ s$^{-1}$", "m2": r"m$^{2}$", "m3/s": r"m$^{3}$ s$^{-1}$",
     "1/s": r"s$^{-1}$", "1/(V m s)": r"V$^{-1}$ m$^{-1}$ s$^{-1}$", "eV^-3/2": r"eV$^{-3/2}$", "1/m": r"m$^{-1}$",
 }
 
@@ -58,15 +58,19 @@ _PANEL_LABELS = {
     "characteristic_energy_eV": "characteristic energy D$_T$/μ",
     "drift_velocity": "drift velocity W",
     "mobility_N": "reduced mobility μN",
-    "long_diffusion_N": "longitudinal diffusion N D$_L$",
-    "trans_diffusion_N": "transverse diffusion N D$_T$",
+    "long_diffusion_N": "reduced longitudinal diffusion N·D$_L$",
+    "trans_diffusion_N": "reduced transverse diffusion N·D$_T$",
+    "long_diffusion_N_flux": "reduced longitudinal diffusion N·D$_L$ (flux)",
+    "long_diffusion_N_bulk": "reduced longitudinal diffusion N·D$_L$ (bulk)",
+    "trans_diffusion_N_flux": "reduced transverse diffusion N·D$_T$ (flux)",
+    "trans_diffusion_N_bulk": "reduced transverse diffusion N·D$_T$ (bulk)",
     "alpha_N": "ionization coefficient α/N",
     "eta_N": "attachment coefficient η/N",
     "effective_alpha_N": "effective ionization coefficient (α−η)/N",
     "effective_ionization_frequency": "effective ionization frequency",
-    "ionization_rate_coefficient": "ionization rate coefficient",
-    "attachment_rate_coefficient": "attachment rate coefficient",
-    "excitation_rate_coefficient": "total excitation rate coefficient",
+    "ionization_rate_coefficient": "ionization rate coefficient k$_{iz}$",
+    "attachment_rate_coefficient": "attachment rate coefficient k$_{att}$",
+    "excitation_rate_coefficient": "total excitation rate coefficient k$_{ex}$",
     "penning_ionization_rate_coefficient": "Penning ionization rate coefficient",
     "penning_fraction": "Penning share of ionization",
     "rate_coefficients": "rate coefficients",
@@ -75,7 +79,13 @@ _PANEL_LABELS = {
     "reduced_field_Td": "reduced field E/N",
     "collision_frequency": "collision frequency",
     "power_absorbed_eV_s": "power absorbed per electron",
+    "alpha_N_simple": "ionization coefficient ν$_{iz}$/(N W)",
+    "eta_N_simple": "attachment coefficient ν$_{att}$/(N W)",
+    "drift_velocity_amplitude": "drift velocity amplitude W$_1$",
+    "drift_velocity_phase_lag_rad": "drift velocity lag φ behind E",
+    "flux": "electron flux per released electron",
 }
+"""Plain axis labels of quantities and panels; read them through :func:`label`."""
 
 _SERIES_LABELS = {"flux": "flux", "bulk": "bulk", "simple": "ν/(N W)"}
 
@@ -83,6 +93,20 @@ DEFAULT_PANELS = ("mean_energy_eV", "drift_velocity", "long_diffusion_N", "trans
 """Panels drawn when no quantities are chosen (those the data have; η/N only where it is nonzero)."""
 
 _PHASE_DEFAULTS = ("mean_energy_eV", "ionization_rate_coefficient", "drift_velocity_flux")
+
+
+def label(name: str) -> str:
+    """The plain words (with the usual symbol) naming quantity or panel ``name`` on a figure, e.g.
+    ``label("mobility_N")`` → "reduced mobility μN"; every figure takes its axis labels from here.
+
+    Per-process rate coefficients read "rate coefficient of <process>"; an unknown name is shown with spaces for
+    underscores rather than as a code name.
+    """
+    if name in _PANEL_LABELS:
+        return _PANEL_LABELS[name]
+    if name.startswith(RATE_PREFIX):
+        return f"rate coefficient of {name[len(RATE_PREFIX):]}"
+    return name.replace("_", " ")
 
 
 def pretty_unit(unit: str) -> str:

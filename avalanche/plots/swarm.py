@@ -14,11 +14,11 @@ from matplotlib.figure import Figure
 
 from ..analysis.coefficients import HANDBOOK_TOWNSEND, handbook_alpha_N, handbook_validity_range_Td
 from ..analysis.magnetic import MagneticDriftTable
+from ..analysis.phase import DRIFT_AMPLITUDE, DRIFT_LAG
 from ..analysis.tables import QUANTITY_UNITS, RATE_PREFIX, SwarmTable, did_you_mean, quantity_unit
 from ..errors import ConfigError
 from .style import (
     _COMPANIONS,
-    _PANEL_LABELS,
     _PHASE_DEFAULTS,
     _SERIES_LABELS,
     DEFAULT_PANELS,
@@ -26,6 +26,7 @@ from .style import (
     add_legend,
     axis_label,
     draw_errorbar,
+    label,
     new_figure,
     phase_axis,
     set_log_x,
@@ -148,7 +149,11 @@ def swarm_panels(table: SwarmTable, quantities: Sequence[str] | None = None) -> 
     """
     panels: dict[str, list[str]] = {}
     if quantities is None:
-        for group in DEFAULT_PANELS:
+        defaults = DEFAULT_PANELS
+        if DRIFT_AMPLITUDE in table.quantities:  # AC: the drift's oscillation, not its cycle average (about 0)
+            at = defaults.index("drift_velocity")
+            defaults = (*defaults[:at], DRIFT_AMPLITUDE, DRIFT_LAG, *defaults[at + 1:])
+        for group in defaults:
             members = [m for m in PAIRS.get(group, (group,)) if m in table.quantities]
             if group == "eta_N" and members and not np.any(np.nan_to_num(table.get("eta_N")[0]) > 0.0):
                 continue
@@ -185,9 +190,9 @@ def swarm_panels(table: SwarmTable, quantities: Sequence[str] | None = None) -> 
 def _series_label(name: str, members: list[str]) -> str:
     if name.startswith(RATE_PREFIX):
         return name[len(RATE_PREFIX):]
-    for suffix, label in _SERIES_LABELS.items():
+    for suffix, text in _SERIES_LABELS.items():
         if name.endswith(f"_{suffix}"):
-            return label
+            return text
     return "Monte Carlo" if len(members) == 1 else name
 
 
@@ -262,7 +267,7 @@ def plot_swarm_parameters(table: SwarmTable, quantities: Sequence[str] | None = 
             set_log_y(ax)
         unit = table.unit(members[0])
         ax.set_xlabel("reduced field E/N [Td]")
-        ax.set_ylabel(axis_label(_PANEL_LABELS.get(panel, panel), unit))
+        ax.set_ylabel(axis_label(label(panel), unit))
         if not ax.has_data():
             ax.text(0.5, 0.5, "no finite values", transform=ax.transAxes, ha="center")
         add_legend(ax)
@@ -422,7 +427,7 @@ def plot_phase_resolved(curves: Sequence[PhaseCurve], quantities: Sequence[str] 
                 draw_errorbar(ax, curve.phase_rad, values, errors, f"phase:{name}:{curve.frequency_Hz:g}", curve.label,
                           False, fmt=".-")
         phase_axis(ax)
-        ax.set_ylabel(axis_label(_PANEL_LABELS.get(name, name), quantity_unit(name)))
+        ax.set_ylabel(axis_label(label(name), quantity_unit(name)))
         add_legend(ax)
     return figure
 
@@ -507,7 +512,7 @@ def plot_sst_profiles(profiles: Sequence[SSTProfile], quantities: Sequence[str] 
         if log_y:
             set_log_y(ax)
         ax.set_xlabel("distance from the emitting electrode x [m]")
-        ax.set_ylabel(axis_label(_PANEL_LABELS.get(name, name.replace("_", " ")), quantity_unit(name)))
+        ax.set_ylabel(axis_label(label(name), quantity_unit(name)))
         add_legend(ax)
     return figure
 

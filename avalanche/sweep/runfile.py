@@ -317,6 +317,12 @@ def parse_runfile(text: str, source: str = "<run file>", base: str | Path | None
         data = tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
         raise ConfigError(f"{source}: not valid TOML: {exc}") from None
+    return runfile_from_data(data, text, source, base)
+
+
+def runfile_from_data(data: dict, text: str, source: str = "<run file>", base: str | Path | None = None) -> RunFile:
+    """Validate a run file already read as TOML (``data``; ``text`` is kept as the run's record), as
+    :func:`parse_runfile` does; ``avalanche check`` calls it on parts of a file to report every problem."""
     folder_given = base is not None
     base = Path(base) if base is not None else Path.cwd()
     check = _Checker(source)
