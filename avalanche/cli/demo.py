@@ -11,9 +11,11 @@ Scenario (our own): the fill gas of an argon lamp cell, 300 K and 1 kPa. The dem
 4. writes a fluid-model rate table (CSV);
 5. runs one AC point — the same gas in a 13.56 MHz RF field of amplitude :data:`DEMO_AC_AMPLITUDE_Td` — and prints
    its regime verdict, cycle averages and the amplitude and lag of the drift velocity (``<out>/demo_ac.h5``);
-6. computes the Paschen curve of a uniform argon gap (γ = :data:`DEMO_GAMMA`) from the sweep's own α/N — the sweep's
-   fields cover the breakdown fields of the whole p d range :data:`DEMO_PD_TORR_CM`, so no point is computed
-   twice and the rate table of step 4 is the one coefficient file — with its caution;
+6. computes the Paschen curve of a uniform argon gap (γ = :data:`DEMO_GAMMA`) from the sweep's own ionization
+   coefficient ν_iz/(N W) — the sweep's fields cover the breakdown fields of the whole p d range
+   :data:`DEMO_PD_TORR_CM`, so no point is computed twice and the rate table of step 4 is the one coefficient
+   file — with its caution. (The diffusion-corrected α/N of the sweep has α/E nearly flat from 800 to 1800 Td,
+   within its errors, so the Paschen minimum could not be placed inside the table; ν_iz/(N W) peaks near 800 Td.)
 
 and prints where each output went. It takes about two minutes on 2 free cores (:data:`DEMO_WALL_SECONDS`).
 """
@@ -28,11 +30,12 @@ from ..errors import ConfigError
 
 DEMO_FIELDS_Td = (100.0, 200.0, 300.0, 500.0, 800.0, 1200.0, 1800.0)
 """Reduced fields of the demo sweep [Td]: from the lamp's running field to beyond its Paschen minimum; they cover
-the breakdown fields of the demo's p d range (about 117 Td at 20 Torr cm, 1500 Td at 0.5 Torr cm)."""
+the breakdown fields of the demo's p d range (about 121 Td at 20 Torr cm, 1590 Td at 0.6 Torr cm, with the
+sweep's ν_iz/(N W))."""
 DEMO_GAMMA = 0.01
 """Secondary-electron yield of the demo's Paschen curve (a round value for metal cathodes in argon; common
 practice)."""
-DEMO_PD_TORR_CM = "0.5:20:25"
+DEMO_PD_TORR_CM = "0.6:20:25"
 """p d range of the demo's Paschen curve [Torr cm]: both branches around the minimum (near 0.8 Torr cm)."""
 DEMO_WALL_SECONDS = 120
 """Wall time of ``avalanche demo`` on 2 cores, measured with /usr/bin/time (rounded up; README states it)."""
@@ -109,9 +112,10 @@ def run_demo(out_dir: str | Path, run_command: Callable[[list[str]], int],
     print(f"\n[4/5] one RF point: {DEMO_AC_AMPLITUDE_Td:g} Td amplitude at {DEMO_AC_FREQUENCY_Hz / 1e6:g} MHz -> "
           f"{out / 'demo_ac.h5'}")
     ac_file = run_ac_point(out / "demo_ac.h5")
-    print(f"\n[5/5] Paschen curve of a uniform argon gap, gamma = {DEMO_GAMMA:g}, from the sweep's alpha/N "
+    print(f"\n[5/5] Paschen curve of a uniform argon gap, gamma = {DEMO_GAMMA:g}, from the sweep's nu_iz/(N W) "
           f"-> {out / 'demo_paschen'}")
-    _step(run_command, ["breakdown", "--results", str(results), "--gamma", f"{DEMO_GAMMA:g}",
+    _step(run_command, ["breakdown", "--results", str(results), "--coefficients", "simple",
+                        "--gamma", f"{DEMO_GAMMA:g}",
                         "--pd", DEMO_PD_TORR_CM, "--out-dir", str(out / "demo_paschen"), "--format", "png"])
     written = {"sweep": [runfile, results], "plots": sorted((out / "demo_plots").glob("demo_*")),
                "table": [out / "demo_rates.csv"], "ac": [ac_file],

@@ -193,7 +193,7 @@ def _series_label(name: str, members: list[str]) -> str:
     for suffix, text in _SERIES_LABELS.items():
         if name.endswith(f"_{suffix}"):
             return text
-    return "Monte Carlo" if len(members) == 1 else name
+    return "Monte Carlo" if len(members) == 1 else label(name)
 
 
 def handbook_gas_name(gas: str) -> str | None:
