@@ -17,7 +17,8 @@ Scenario (our own): the fill gas of an argon lamp cell, 300 K and 1 kPa. The dem
    file — with its caution. (The diffusion-corrected α/N of the sweep has α/E nearly flat from 800 to 1800 Td,
    within its errors, so the Paschen minimum could not be placed inside the table; ν_iz/(N W) peaks near 800 Td.)
 
-and prints where each output went. It takes about two minutes on 2 free cores (:data:`DEMO_WALL_SECONDS`).
+and prints where each output went. It needs about 80 s of CPU time (:data:`DEMO_CPU_SECONDS`), the sweep shared
+by 2 worker processes: a minute or two on 2 cores, longer on a busy machine.
 """
 
 from __future__ import annotations
@@ -37,8 +38,9 @@ DEMO_GAMMA = 0.01
 practice)."""
 DEMO_PD_TORR_CM = "0.6:20:25"
 """p d range of the demo's Paschen curve [Torr cm]: both branches around the minimum (near 0.8 Torr cm)."""
-DEMO_WALL_SECONDS = 120
-"""Wall time of ``avalanche demo`` on 2 cores, measured with /usr/bin/time (rounded up; README states it)."""
+DEMO_CPU_SECONDS = 80
+"""CPU time of ``avalanche demo`` (user + system, worker processes included): 76 s measured with /usr/bin/time on
+the 2-core development machine, rounded up; the README states it."""
 DEMO_AC_FREQUENCY_Hz = 13.56e6
 DEMO_AC_AMPLITUDE_Td = 300.0
 """The demo's AC point: the 13.56 MHz industrial band, field amplitude E_0/N [Td]."""
