@@ -79,23 +79,28 @@ _LABEL_PLACES = ((0, 3, "center"), (3, 3, "left"), (-3, 3, "right"), (0, 26, "ce
 
 def _label_lines(figure: Figure, ax, wavelength, rate, labels: Sequence[str], count: int) -> None:
     """Label the ``count`` strongest lines, strongest first, each at the first place of :data:`_LABEL_PLACES` where
-    its text (measured once the figure is laid out) overlaps no earlier label and stays inside the axes; a label
-    with no free place is left out (the stick is still drawn)."""
+    its text (measured once the figure is laid out) overlaps no earlier label and no other line and stays inside
+    the axes; a label with no free place is left out (the stick is still drawn)."""
     from matplotlib.backends.backend_agg import FigureCanvasAgg
+    from matplotlib.transforms import Bbox
 
     renderer = FigureCanvasAgg(figure).get_renderer()
     figure.draw_without_rendering()
     frame = ax.get_window_extent(renderer)
+    tops = ax.transData.transform(np.column_stack((wavelength, np.nan_to_num(rate))))
+    bottom = ax.transData.transform((0.0, 0.0))[1]
+    sticks = [Bbox([[x - 1.5, bottom], [x + 1.5, y]]) for x, y in tops]  # the drawn lines, a few pixels wide
     placed = []
     for k in np.argsort(-np.nan_to_num(rate))[:count]:
         if not (np.isfinite(rate[k]) and rate[k] > 0):
             continue
+        others = placed + [stick for j, stick in enumerate(sticks) if j != k]
         for dx, dy, align in _LABEL_PLACES:
             text = ax.annotate(f"{labels[k]}\n{wavelength[k]:.4g} nm", (wavelength[k], rate[k]),
                                textcoords="offset points", xytext=(dx, dy), ha=align, fontsize=6)
             box = text.get_window_extent(renderer)
             inside = frame.x0 <= box.x0 and box.x1 <= frame.x1 and box.y1 <= frame.y1
-            if inside and not any(box.overlaps(other) for other in placed):
+            if inside and not any(box.overlaps(other) for other in others):
                 placed.append(box)
                 break
             text.remove()

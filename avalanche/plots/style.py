@@ -13,6 +13,7 @@ from __future__ import annotations
 
 import functools
 import math
+import re
 from collections.abc import Sequence
 from pathlib import Path
 
@@ -113,8 +114,24 @@ def pretty_unit(unit: str) -> str:
     return _PRETTY_UNITS.get(unit, unit)
 
 
+_LABEL_WIDTH = 26
+"""Characters of an axis label per line: longer labels wrap (at spaces, never inside a $…$ symbol) so that a
+label stays within its panel's height and does not run into the next panel."""
+
+
 def axis_label(label: str, unit: str) -> str:
-    return f"{label} [{pretty_unit(unit)}]" if unit else label
+    """``label [unit]``, wrapped onto two or more lines when longer than :data:`_LABEL_WIDTH` characters."""
+    text = f"{label} [{pretty_unit(unit)}]" if unit else label
+    if len(re.sub(r"\$[^$]*\$", "xx", text)) <= _LABEL_WIDTH:
+        return text
+    words, lines = [*label.split(" "), *([f"[{pretty_unit(unit)}]"] if unit else [])], [""]  # the unit stays whole
+    for word in words:
+        candidate = f"{lines[-1]} {word}".strip()
+        if lines[-1] and len(re.sub(r"\$[^$]*\$", "xx", candidate)) > _LABEL_WIDTH:
+            lines.append(word)
+        else:
+            lines[-1] = candidate
+    return "\n".join(lines)
 
 
 def new_figure(panels: int, columns: int = 2, height_in: float = _PANEL_HEIGHT_IN):
@@ -198,11 +215,44 @@ def draw_errorbar(ax, x, y, err, gid: str, label: str, log_y: bool, **style):
 
 
 class PlainLogFormatter(LogFormatter):
-    """Tick labels of a log axis as plain numbers ("6", "0.2", "3e+04"), not "6×10⁰"; which minor ticks get a label
-    follows matplotlib's :class:`~matplotlib.ticker.LogFormatter` (all, a few or none, by the axis span)."""
+    """Tick labels of a log axis as plain numbers between 0.001 and 10⁴ ("6", "0.2", "3000"), as m×10ⁿ beyond
+    ("3×10⁴", "10⁻²¹"), never "6×10⁰" or "3e+04"; which minor ticks get a label follows matplotlib's
+    :class:`~matplotlib.ticker.LogFormatter` (all, a few or none, by the axis span)."""
+
+    def __init__(self, *args, minor: bool = False, **kwargs):
+        super().__init__(*args, **kwargs)
+        self.minor = minor
+
+    def __call__(self, x, pos=None):
+        text = super().__call__(x, pos)
+        return "" if text and self.minor and self._crowded(x, text) else text
+
+    def _crowded(self, x: float, text: str) -> bool:
+        """Whether a minor label at ``x`` would touch its neighbours' (ticks at m·10ⁿ, m = 1 … 9): the distance in
+        pixels to the nearer neighbouring tick, from the axis length and span, against the label's height."""
+        axis = self.axis
+        if axis is None or x <= 0 or axis.axes is None or axis.axis_name != "y":
+            return False
+        low, high = sorted(axis.get_view_interval())
+        if low <= 0 or high <= low:
+            return False
+        pixels_per_decade = axis.axes.get_window_extent().height / math.log10(high / low)
+        exponent = math.floor(math.log10(x) + 1e-9)
+        m = round(x / 10.0 ** exponent)
+        gap = min(math.log10((m + 1) / m), math.log10(m / (m - 1)) if m > 1 else math.log10(10 / 9))
+        dpi = axis.figure.dpi if axis.figure is not None else 72.0
+        size = matplotlib.rcParams["ytick.labelsize"]
+        size = size if isinstance(size, (int, float)) else 8.0
+        height = size * dpi / 72.0 * (1.6 if "$" in text else 1.2)
+        return gap * pixels_per_decade < height
 
     def _num_to_string(self, x, vmin, vmax):
-        return f"{x:.3g}"
+        if x == 0.0 or 1e-3 <= abs(x) < 1e4:
+            return f"{x:.3g}"
+        exponent = math.floor(math.log10(abs(x)) + 1e-9)
+        mantissa = float(f"{x / 10.0 ** exponent:.2g}")
+        power = f"10^{{{exponent}}}"
+        return f"${power}$" if mantissa == 1.0 else f"${mantissa:g}\\times{power}$"
 
 
 def set_log_y(ax) -> None:
@@ -215,15 +265,20 @@ def set_log_y(ax) -> None:
         low, high = float(positive.min()), float(positive.max())
         ax.set_ylim(low / 2.0, max(ax.get_ylim()[1], high * 1.5))
         ax.yaxis.set_major_formatter(PlainLogFormatter())
-        ax.yaxis.set_minor_formatter(PlainLogFormatter(labelOnlyBase=False, minor_thresholds=(2, 0.5)))
+        ax.yaxis.set_minor_formatter(PlainLogFormatter(labelOnlyBase=False, minor_thresholds=(2, 0.5), minor=True))
+
+
+LEGEND_BELOW_ENTRIES = 6
+"""A legend of more entries goes below its axes in two small columns (so the curves stay visible)."""
 
 
 def add_legend(ax, **kwargs) -> None:
-    """A legend sized to its entries (many entries: two small columns), if there is anything to label."""
+    """A legend sized to its entries (many entries: two small columns below the axes), if there is anything to
+    label."""
     handles, labels = ax.get_legend_handles_labels()
     if len(handles) < 2:  # one series needs no legend: the axis label names it
         return
-    if len(handles) > 6:  # below the axes, so the curves stay visible
+    if len(handles) > LEGEND_BELOW_ENTRIES:
         ax.legend(loc="upper center", bbox_to_anchor=(0.5, -0.25), fontsize=5.5, ncols=2, **kwargs)
     else:
         ax.legend(loc="best", **kwargs)

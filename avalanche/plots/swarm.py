@@ -22,6 +22,7 @@ from .style import (
     _PHASE_DEFAULTS,
     _SERIES_LABELS,
     DEFAULT_PANELS,
+    LEGEND_BELOW_ENTRIES,
     PAIRS,
     add_legend,
     axis_label,
@@ -76,7 +77,7 @@ def read_reference(path) -> ReferenceData:
     path = Path(path)
     if not path.exists():
         raise ConfigError(f"reference file '{path}' not found; give a CSV with columns reduced_field_Td,<quantity>,..")
-    label, header, rows = path.name, None, []
+    legend, header, rows = path.name, None, []
     from ..errors import read_user_text
 
     for number, line in enumerate(read_user_text(path, "reference file").splitlines(), start=1):
@@ -86,7 +87,7 @@ def read_reference(path) -> ReferenceData:
         if text.startswith("#"):
             key, sep, value = text[1:].strip().partition(":")
             if sep and key.strip().lower() == "source" and value.strip():
-                label = value.strip()
+                legend = value.strip()
             continue
         cells = [cell.strip() for cell in text.split(",")]
         if header is None:
@@ -115,7 +116,7 @@ def read_reference(path) -> ReferenceData:
                               "use avalanche's quantity names and units")
         stderr = data[:, header.index(f"{name}_stderr")] if f"{name}_stderr" in header else None
         quantities[name] = (data[:, j], stderr)
-    return ReferenceData(label, data[:, 0], quantities)
+    return ReferenceData(legend, data[:, 0], quantities)
 
 
 def _known_names() -> list[str]:
@@ -245,9 +246,11 @@ def plot_swarm_parameters(table: SwarmTable, quantities: Sequence[str] | None = 
         gas = handbook_gas_name(handbook)
         if gas is None:
             handbook_validity_range_Td(handbook)  # raises ConfigError naming the gas, with a did-you-mean
+    # a panel of many series (every rate coefficient) has its legend below it: draw it last, so nothing is below
+    order = sorted(panels.items(), key=lambda item: len(item[1]) > LEGEND_BELOW_ENTRIES)
     figure, axes = new_figure(len(panels))
     fields = table.reduced_field_Td
-    for ax, (panel, members) in zip(axes, panels.items(), strict=True):
+    for ax, (panel, members) in zip(axes, order, strict=True):
         series = [table.get(name) for name in members]
         log_y = use_log([values for values, _ in series])
         for name, (values, errors) in zip(members, series, strict=True):
@@ -500,9 +503,9 @@ def plot_sst_profiles(profiles: Sequence[SSTProfile], quantities: Sequence[str] 
             if name not in profile.quantities:
                 continue
             values, errors = profile.quantities[name]
-            label = "" if profile.reduced_field_Td is None else f"{profile.reduced_field_Td:g} Td"
+            series = "" if profile.reduced_field_Td is None else f"{profile.reduced_field_Td:g} Td"
             container = draw_errorbar(ax, profile.position_m, values, errors, f"sst:{name}:{profile.reduced_field_Td}",
-                                  label, log_y, fmt=".-")
+                                  series, log_y, fmt=".-")
             color = container.lines[0].get_color() if container else None
             if name == profile.flux_quantity:
                 _growth_line(ax, profile, color)

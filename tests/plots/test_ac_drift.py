@@ -64,7 +64,7 @@ def test_ac_table_and_plot_show_the_drift_amplitude(ac_results, tmp_path):
     drawn = {line.get_gid(): line for ax in figure.axes for line in ax.lines if line.get_gid()}
     assert DRIFT_AMPLITUDE in drawn and DRIFT_LAG in drawn and "drift_velocity_flux" not in drawn
     np.testing.assert_array_equal(drawn[DRIFT_AMPLITUDE].get_ydata(), amplitude)
-    labels = [ax.get_ylabel() for ax in figure.axes]
+    labels = [" ".join(ax.get_ylabel().split()) for ax in figure.axes]  # long labels wrap onto two lines
     assert "drift velocity amplitude W$_1$ [m s$^{-1}$]" in labels
 
     out = tmp_path / "rates.csv"

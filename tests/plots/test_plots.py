@@ -234,6 +234,15 @@ def test_no_text_overlaps_with_many_quantities_in_any_figure(argon):
                                           "trans_diffusion_N", "alpha_N", "eta_N", "rate_coefficients",
                                           "ionization_rate_coefficient", "mobility_N"])
     assert overlaps(swarm) == []
+    fields = np.array([50.0, 100.0, 200.0, 400.0])  # a short figure: long labels and a long legend, 2 rows
+    data = {"mean_energy_eV": (np.array([3.0, 5.0, 7.0, 9.0]), np.full(4, 0.05)),
+            "alpha_N": (3e-21 * (1 + fields / 1000), np.full(4, 1e-24)),
+            "mobility_N": (np.full(4, 1e24), np.full(4, 1e22)),
+            **{f"rate_coefficient:level {k} (3p5 4s)": (1e-16 * (k + 1) * fields / 100, np.full(4, 1e-18))
+               for k in range(12)}}
+    short = SwarmTable(fields, data, gas_label="Ar")
+    assert overlaps(plot_swarm_parameters(short, ["rate_coefficients", "mean_energy_eV", "alpha_N",
+                                                  "mobility_N"])) == []
     wavelengths = [104.82, 105.2, 106.67, 106.9, 750.4, 751.5, 811.5, 811.8, 763.5]
     emission = plot_emission_spectrum(wavelengths, [0.4, 0.5, 1.0, 0.9, 0.3, 0.35, 0.6, 0.55, 0.7],
                                       [f"level {k}" for k in range(9)])
