@@ -89,6 +89,7 @@ def run_demo(out_dir: str | Path, run_command: Callable[[list[str]], int],
     names = available_gases()
     for name in names:
         get_set(name)
+    print(f"avalanche demo: five steps, about {DEMO_CPU_SECONDS} s of CPU time in all")
     print(f"avalanche demo: {len(names)} gases in the library ({', '.join(names)}), all validated on load")
 
     runfile = out / "demo.toml"
