@@ -161,3 +161,15 @@ def test_grid_over_pressure_wire_radius_and_frequency():
 def test_bad_gap_run_files_name_the_field(edit, message):
     with pytest.raises(ConfigError, match=message):
         parse_gap_runfile(RUNFILE.replace(*edit), source="bad.toml")
+
+
+def test_the_readme_gap_run_file_is_valid():
+    # the README's example run file (argon–CO2 tube) validates and expands to its three voltages
+    import re
+    from pathlib import Path
+
+    readme = (Path(__file__).resolve().parents[2] / "README.md").read_text(encoding="utf-8")
+    text = re.search(r"```toml\n(\[sweep\]\nmode = \"gap\".*?)```", readme, re.S).group(1)
+    rf = parse_gap_runfile(text)
+    assert [p.voltage_V for p in rf.points] == [500.0, 550.0, 600.0]
+    assert rf.electrodes == {"geometry": "coaxial", "wire_radius_m": 12.5e-6, "tube_radius_m": 5e-3}

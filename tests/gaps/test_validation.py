@@ -194,6 +194,11 @@ def test_coaxial_gain_against_the_local_field_integral():
         ratios[name] = r.local_field_ratio
         print(f"{name} wire: gain {r.mean_gain}, local-field gain {r.local_field_gain:.4g}, ratio "
               f"{r.local_field_ratio}")
+    # measured (seed 7): thick 0.980 ± 0.071; thin 0.965 ± 0.008 (gain 1.023 against 1.061), 4.3 σ below 1
     thick, thin = ratios["thick"], ratios["thin"]
     assert abs(thick.value - 1.0) < 0.10 + 2 * thick.stderr
-    assert abs(thin.value - 1.0) > 3 * thin.stderr  # departs from 1; its direction is reported (README)
+    # the thin wire departs from 1 in the direction non-local theory expects: the electrons running into the
+    # steeply rising field lag it (their energy, hence α, stays below the local-field value), so the gain is below
+    # exp(∫ α dr) (the non-local, energy-relaxation picture; Raizer 1991 §4 — from memory). A ratio above 1 fails
+    # here and must be investigated, not hidden.
+    assert thin.value < 1.0 - 3 * thin.stderr
