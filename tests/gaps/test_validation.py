@@ -97,7 +97,7 @@ def test_furry_distribution_between_plates():
     # tested where α U_i/(eE) is small: F = 0.005 (one inelastic event in 200 ionizes), α U_i/(eE) = 0.005.
     # Measured, 1200 primaries each (variance / Furry's n̄(n̄ − 1), whose sampling sd is 0.06; χ² p):
     #   F = 0.005, seeds 1, 2, 3, 11, 12, 13, 14: 0.90, 0.89, 0.98, 0.96, 0.91, 0.97, 0.99; p = 0.39, 0.28, 0.016,
-    #     0.78, 0.72, 0.87, 0.84 (mean ratio 0.94 ± 0.02);
+    #     0.78, 0.72, 0.87, 0.84 (mean ratio 0.94 ± 0.02: 2 σ more deficit than the ≈ 2 % expected, not resolved);
     #   F = 0.02 (α U_i/eE = 0.020), the former setting of this test: 0.80, 1.02, 0.98, 0.91, 0.85 (mean 0.91 ±
     #     0.03; p down to 0.004), and 0.93 ± 0.045 with 4000 primaries whatever the start (fresh 0.5 eV forward,
     #     0.92; 100 µm from the cathode, 0.94): not a start-up transient, Legler's memory (≈ 4 α U_i/eE ≈ 8 %);
