@@ -43,6 +43,7 @@ from ..gas.crosssections import _did_you_mean
 from ..gas.mixture import Mixture
 from ..kernels import collisions as KC
 from ..kernels import gap as KG
+from ..kernels.population import resample_population
 from . import local_field as LF
 from .geometry import Geometry
 from .results import GainDistribution, GapResult, polya_fit
@@ -323,11 +324,11 @@ class _Run:
                         out["timed_out"][r] = True
                     count[r] = 0
                 elif n > cap:
-                    keep = np.sort(control_gen[r].choice(n, cap, replace=False))
+                    keep, factor = resample_population(control_gen[r], n, cap)
                     for a in arrays:
                         a[r, :cap] = a[r, keep]
                     count[r] = cap
-                    weights[r] *= n / cap
+                    weights[r] *= factor
                     out["controlled"][r] = True
             after = int(count.sum())
             if after > 3 * max(before, 1):
