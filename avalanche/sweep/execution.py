@@ -598,6 +598,8 @@ def run_sweep(runfile: str | Path | RunFile, *, workers: int | None = None, sche
         if not quiet:
             where = "all points already finished" if not todo else f"{len(todo)} points on {report.executor}"
             bar.write(f"avalanche sweep {rf.source} -> {path}: {where}", file=sys.stderr)
+            for note in rf.notes if own else ():
+                bar.write(f"avalanche sweep: {note}", file=sys.stderr)
         log_path = path.with_suffix(".failures.log")
         outcomes = stack.enter_context(contextlib.closing(executor.map_unordered(compute, tasks)))
         for outcome in outcomes:

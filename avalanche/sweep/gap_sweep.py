@@ -38,6 +38,7 @@ from ..gas.crosssections import _did_you_mean
 from ..gas.spec import MixtureSpec
 from .runfile import (
     RUNFILE_FORMAT_VERSION,
+    RunFile,
     _Checker,
     _cluster,
     _float_word,
@@ -138,7 +139,9 @@ class GapRunFile:
     @cached_property
     def points(self) -> tuple[GapPoint, ...]:
         """Every point: mixtures outermost, then pressures, wire radii, frequencies, voltages."""
-        geometry_key = json.dumps(self.electrodes, sort_keys=True)
+        # a map enters by its file name, so that a point's seed does not depend on the folder the sweep runs in
+        geometry_key = json.dumps({k: Path(v).name if k == "map" else v for k, v in self.electrodes.items()},
+                                  sort_keys=True)
         points = []
         for (m, mix), p, a, f, v in itertools.product(enumerate(self.mixtures), self.pressures_Pa,
                                                       self.wire_radii_m, self.frequencies_Hz, self.voltage_V):
@@ -158,13 +161,10 @@ class GapRunFile:
         """Per mixture: species → checksum of its cross-section set."""
         return tuple(self.build_mixture(i).checksums() for i in range(len(self.mixtures)))
 
-    @property
-    def checksums(self) -> dict[str, str]:
-        """Species → checksum of its cross-section set, over every mixture."""
-        out: dict[str, str] = {}
-        for sums in self.mixture_checksums:
-            out.update(sums)
-        return dict(sorted(out.items()))
+    checksums = RunFile.checksums
+    config_json = RunFile.config_json
+    config_sha256 = RunFile.config_sha256
+    text_sha256 = RunFile.text_sha256
 
     def config(self) -> dict:
         """Everything that determines the results, as plain data (its hash guards a resumed sweep)."""
@@ -175,20 +175,6 @@ class GapRunFile:
                 "pressures_Pa": [None if np.isnan(p) else p for p in self.pressures_Pa],
                 "wire_radii_m": [None if np.isnan(a) else a for a in self.wire_radii_m],
                 "frequencies_Hz": list(self.frequencies_Hz), "avalanche": dict(sorted(self.options.items()))}
-
-    def config_json(self) -> str:
-        """:meth:`config` as canonical JSON text."""
-        return json.dumps(self.config(), sort_keys=True, separators=(",", ":"))
-
-    @property
-    def config_sha256(self) -> str:
-        """SHA-256 of :meth:`config_json`."""
-        return hashlib.sha256(self.config_json().encode()).hexdigest()
-
-    @property
-    def text_sha256(self) -> str:
-        """SHA-256 of the run file's text."""
-        return hashlib.sha256(self.text.encode()).hexdigest()
 
     # -- what run_sweep asks of a run file with its own mode
     def point_task(self, point: GapPoint, threads: int | None = 1) -> dict:
@@ -203,6 +189,14 @@ class GapRunFile:
                 "voltage_V": point.voltage_V, "frequency_Hz": point.frequency_Hz, "seed": point.seed,
                 "options": dict(self.options), "checksums": self.mixture_checksums[point.mixture_index],
                 "threads": threads}
+
+    @property
+    def notes(self) -> tuple[str, ...]:
+        """The space-charge note and the high-voltage caution, printed when the sweep starts (and stored in the
+        results file's attributes)."""
+        from ..gaps.results import SAFETY_NOTE, SPACE_CHARGE_NOTE
+
+        return (SPACE_CHARGE_NOTE, SAFETY_NOTE)
 
     @property
     def compute(self):

@@ -120,11 +120,12 @@ def test_an_interrupted_gap_sweep_resumes_without_recomputing_finished_points(tm
         run_sweep(changed, executor=InProcess(), resume=True, quiet=True)
 
 
-def test_gap_sweeps_run_on_the_local_worker_pool(tmp_path):
+def test_gap_sweeps_run_on_the_local_worker_pool(tmp_path, capsys):
     path = write_runfile(tmp_path, RUNFILE.replace("[120.0, 150.0]", "[150.0]").replace("primaries = 40",
                                                                                           "primaries = 8"))
-    report = run_sweep(path, workers=1, quiet=True)
+    report = run_sweep(path, workers=1)
     assert report.computed == 1 and not report.failed
+    assert "High voltages" in capsys.readouterr().err  # the caution on the terminal too
     assert open_gap_sweep(tmp_path / "plates.h5").value("mean_gain")[0] > 1.0
 
 
