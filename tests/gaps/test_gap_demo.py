@@ -35,5 +35,5 @@ def test_the_quick_demo_writes_its_files_and_cautions(tmp_path, capsys):
     # the gain rises with the voltage: at the wire, and along the half-cycle with the voltage at release
     gains = [float(line.split("mean gain")[1].split()[0]) for line in printed.splitlines() if "mean gain" in line]
     assert len(gains) == 4
-    wire_1100, wire_900, needle_50, needle_90 = gains
+    wire_1100, wire_900, needle_90, needle_50 = gains
     assert wire_1100 > wire_900 > 1 and needle_90 > needle_50
