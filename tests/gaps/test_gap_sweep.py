@@ -174,3 +174,27 @@ def test_the_readme_gap_run_file_is_valid():
     rf = parse_gap_runfile(text)
     assert [p.voltage_V for p in rf.points] == [500.0, 550.0, 600.0]
     assert rf.electrodes == {"geometry": "coaxial", "wire_radius_m": 12.5e-6, "tube_radius_m": 5e-3}
+
+
+class FailFirst(InProcess):
+    """Fails point 0 (as a worker that died would), computes the others."""
+
+    def map_unordered(self, fn, tasks):
+        for key, payload in tasks:
+            if key == 0:
+                yield Outcome(key=key, ok=False, reason="worker process died", attempts=3)
+            else:
+                self.computed.append(key)
+                yield Outcome(key=key, ok=True, value=fn(payload), worker="local")
+
+
+def test_a_failed_gap_point_is_logged_with_its_coordinates_and_retried_on_resume(tmp_path):
+    rf = load_sweep_runfile(write_runfile(tmp_path))
+    report = run_sweep(rf, executor=FailFirst(), quiet=True)
+    assert [f["index"] for f in report.failed] == [0] and report.computed == 1
+    log = rf.output.with_suffix(".failures.log").read_text()
+    assert "point 0 (lucas-saelee, 120 V, seed" in log and "worker process died" in log
+    assert open_gap_sweep(rf.output).failures[0]["index"] == 0
+    again = InProcess()
+    run_sweep(rf, executor=again, resume=True, quiet=True)
+    assert again.computed == [0] and open_gap_sweep(rf.output).complete
