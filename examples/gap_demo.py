@@ -58,7 +58,7 @@ def wire_sweep(out: Path, quick: bool) -> list[dict]:
     gas = avalanche.Mixture("Ar:0.9,CO2:0.1")  # 300 K, 1 atm
     volts = (1100.0, 900.0) if quick else (1200.0, 1100.0, 1000.0, 900.0, 800.0)
     options = dict(primaries=40 if quick else 300, seed=1, start_position_m=(100e-6, 0.0, 0.0), population_cap=1000,
-                   local_field=not quick)
+                   local_field=not quick, map_extent_m=(120e-6, -60e-6, 60e-6))  # maps: the wire's neighbourhood
     return run_series(out, "wire", tube, gas, [(f"{v:.0f}V", v, {}) for v in volts], options)
 
 
@@ -68,7 +68,7 @@ def needle_cycle(out: Path, quick: bool) -> list[dict]:
     start = (0.0, 0.0, 5e-3 - 300e-6)  # on the axis, 300 µm below the tip (E/N there ~50 Td at the crest)
     phases_deg = (90.0, 50.0) if quick else (90.0, 75.0, 60.0, 45.0, 30.0)
     options = dict(primaries=20 if quick else 150, seed=2, frequency_Hz=FREQUENCY_HZ, start_position_m=start,
-                   population_cap=1000, local_field=not quick)
+                   population_cap=1000, local_field=not quick, map_extent_m=(300e-6, 4.7e-3, 5.0e-3))
     runs = [(f"{p:.0f}deg", 2500.0, {"start_time_s": math.radians(p) / (2 * math.pi * FREQUENCY_HZ)})
             for p in phases_deg]
     return run_series(out, "needle", needle, "air", runs, options)
