@@ -21,7 +21,7 @@ ALLOWED = {
     "engine": {"kernels", "gas"} | BASE,
     "gaps": {"kernels", "gas", "engine"} | BASE,
     "store": {"gaps", "engine", "gas"} | BASE,
-    "sweep": {"store", "engine", "gas"} | BASE,
+    "sweep": {"store", "gaps", "engine", "gas"} | BASE,
     "analysis": {"store", "engine", "gas"} | BASE,
     "plots": {"analysis", "store", "gaps", "engine", "gas"} | BASE,
     "cli": {"sweep", "analysis", "plots", "store", "gaps", "engine", "gas", "kernels"} | BASE,

@@ -43,6 +43,7 @@ from ..gas.crosssections import _did_you_mean
 from ..gas.mixture import Mixture
 from ..kernels import collisions as KC
 from ..kernels import gap as KG
+from ..kernels.population import resample_population
 from . import local_field as LF
 from .geometry import Geometry
 from .results import GainDistribution, GapResult, polya_fit
@@ -67,6 +68,7 @@ class GapSettings:
     dc_offset_V: float = 0.0
     current_bins: int = 200
     map_bins: int = 40
+    map_extent_m: tuple | None = None
     arrival_samples: int = 16
     energy_cells: int = 4096
     energy_limit_eV: float = 1e5
@@ -125,6 +127,11 @@ def make_gap_settings(**options) -> GapSettings:
         if p.size != 3 or not np.all(np.isfinite(p)):
             _fail("start_position_m", s["start_position_m"], "three finite coordinates (x, y, z) [m]")
         s["start_position_m"] = tuple(p.tolist())
+    if s["map_extent_m"] is not None:
+        e = np.asarray(s["map_extent_m"], dtype=float).ravel()
+        if e.size != 3 or not np.all(np.isfinite(e)) or e[0] <= 0 or e[2] <= e[1]:
+            _fail("map_extent_m", s["map_extent_m"], "(rho_max, z_min, z_max) [m] with rho_max > 0 and z_max > z_min")
+        s["map_extent_m"] = tuple(e.tolist())
     s["local_field"] = bool(s["local_field"])
     return GapSettings(**s)
 
@@ -194,8 +201,7 @@ class _Run:
             else:
                 slots.append(-1)
         self.map_slot = np.array(slots, np.int64)
-        rho_max, z_min, z_max = geometry.map_extent()
-        self.map_extent = (rho_max, z_min, z_max)
+        self.map_extent = settings.map_extent_m or geometry.map_extent()
         self.bin_width = 1.0
         self.t_origin = settings.start_time_s
         self.anomalies = {"energy_grid_doublings": 0, "capacity_enlargements": 0, "redone_slices": 0,
@@ -323,11 +329,11 @@ class _Run:
                         out["timed_out"][r] = True
                     count[r] = 0
                 elif n > cap:
-                    keep = np.sort(control_gen[r].choice(n, cap, replace=False))
+                    keep, factor = resample_population(control_gen[r], n, cap)
                     for a in arrays:
                         a[r, :cap] = a[r, keep]
                     count[r] = cap
-                    weights[r] *= n / cap
+                    weights[r] *= factor
                     out["controlled"][r] = True
             after = int(count.sum())
             if after > 3 * max(before, 1):
@@ -375,7 +381,9 @@ def gap(geometry: Geometry, mixture: Mixture | str, voltage_V: float, primaries:
         electrons per avalanche), electron_limit (1e8, the streamer criterion), step_control (κ = 0.05),
         initial_energy_eV (1.0), initial_direction ('forward' along the field line, or 'isotropic'),
         start_position_m ((x, y, z) [m]), start_time_s (0), frequency_Hz (AC), waveform (a table or CSV file, see
-        :func:`avalanche.swarm`), dc_offset_V (0), current_bins (200), map_bins (40), arrival_samples (16 per
+        :func:`avalanche.swarm`), dc_offset_V (0), current_bins (200), map_bins (40),
+        map_extent_m ((ρ_max, z_min, z_max) [m] of the maps; default the whole gap; events outside are not
+        mapped), arrival_samples (16 per
         avalanche), energy_cells (4096), energy_limit_eV (1e5), max_time_s (none), local_field (True: compute the
         local-field gain), alpha_table ((E/N [Td], α/N [m²][, η/N [m²]]) instead of the on-demand swarm table),
         alpha_precision (0.03), pilot_primaries (4).

@@ -1,5 +1,6 @@
 """Kernels: numba functions over plain arrays only (random numbers, free flights, collisions, the time-of-flight
-and steady-state Townsend chunks, the jit settings). May import nothing of the package but ``constants``.
+and steady-state Townsend chunks, the jit settings), and ``population`` (the numpy population-control sampler the
+engine and ``gaps`` share between chunks). May import nothing of the package but ``constants``.
 
 The names below are the kernel interface the engine uses as ``K.name``; the steady-state chunk is
 :mod:`avalanche.kernels.steady_state`.

@@ -15,12 +15,20 @@ from .style import add_legend, axis_label, new_figure, styled
 
 
 @styled
-def plot_gain_curve(runs: Sequence[dict]) -> Figure:
-    """Mean gain (with error bars) and the local-field gain against the voltage, one point per gap file."""
+def plot_gain_curve(runs: Sequence[dict], at_release: bool = False) -> Figure:
+    """Mean gain (with error bars) and the local-field gain against the voltage, one point per gap file.
+
+    With ``at_release`` the abscissa is |V| at the primaries' release (the instantaneous voltage of an AC run,
+    ``inputs["start_voltage_V"]``) instead of the run's voltage (the peak of an AC drive).
+    """
     if not runs:
         raise ConfigError("plot_gain_curve: give at least one gap file")
-    runs = sorted(runs, key=lambda d: d["attrs"]["voltage_V"])
-    volts = np.array([d["attrs"]["voltage_V"] for d in runs])
+
+    def volts_of(d):
+        return abs(d["attrs"]["inputs"]["start_voltage_V"]) if at_release else d["attrs"]["voltage_V"]
+
+    runs = sorted(runs, key=volts_of)
+    volts = np.array([volts_of(d) for d in runs])
     gain = np.array([d["estimates"]["mean_gain"].value for d in runs])
     err = np.array([d["estimates"]["mean_gain"].stderr for d in runs])
     local = np.array([d["attrs"]["local_field_gain"] for d in runs])
@@ -29,7 +37,7 @@ def plot_gain_curve(runs: Sequence[dict]) -> Figure:
     if np.isfinite(local).any():
         ax.plot(volts, local, marker="s", linestyle="--", label="local-field approximation", gid="local_field")
     ax.set_yscale("log")
-    ax.set_xlabel(axis_label("voltage", "V"))
+    ax.set_xlabel(axis_label("voltage at release" if at_release else "voltage", "V"))
     ax.set_ylabel("mean gain")
     add_legend(ax)
     return figure

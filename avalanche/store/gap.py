@@ -29,6 +29,9 @@ import numpy as np
 from .._version import __version__
 from ..engine.results import Estimate
 from ..errors import AvalancheError
+from .sweep_file import FILE_TYPE as SWEEP_FILE_TYPE
+from .sweep_file import FORMAT_VERSION as SWEEP_FORMAT_VERSION
+from .sweep_file import ResultsWriter, open_results
 
 FILE_TYPE = "avalanche gap run"
 FORMAT_VERSION = 1
@@ -52,52 +55,57 @@ def _arrays(group: h5py.Group, data: dict) -> None:
 def write_gap(path, result) -> Path:
     """Write a :class:`~avalanche.gaps.GapResult` to the HDF5 file ``path`` (overwritten); returns the path."""
     path = Path(path)
+    with h5py.File(path, "w") as f:
+        write_gap_group(f, result)
+    return path
+
+
+def write_gap_group(f: h5py.Group, result) -> None:
+    """Write a :class:`~avalanche.gaps.GapResult` into the HDF5 group (or file) ``f`` with the layout above."""
     inputs = result.inputs
     mixture = inputs.get("mixture", {})
-    with h5py.File(path, "w") as f:
-        a = f.attrs
-        a.update({"file_type": FILE_TYPE, "format_version": FORMAT_VERSION, "package_version": __version__,
-                  "created_utc": datetime.now(UTC).isoformat(timespec="seconds"), "mode": "gap",
-                  "voltage_V": float(inputs["voltage_V"]), "primaries": int(inputs["primaries"]),
-                  "mixture": str(inputs.get("label", "")),
-                  "temperature_K": float(mixture.get("temperature_K", np.nan)),
-                  "number_density_m3": float(mixture.get("number_density_m3", np.nan)),
-                  "seed": _json(inputs.get("seed")), "local_field_gain": float(result.local_field_gain),
-                  "events": int(result.events), "steps": int(result.steps),
-                  "real_collisions": int(result.real_collisions), "cpu_seconds": float(result.cpu_seconds),
-                  "wall_seconds": float(result.wall_seconds), "space_charge": result.notes[0],
-                  "caution": result.notes[-1], "inputs_json": _json(inputs),
-                  "composition_json": _json(mixture.get("composition", {})),
-                  "checksums_json": _json(mixture.get("checksums", {})),
-                  "provenance_json": _json(inputs.get("provenance", {})), "anomalies_json": _json(result.anomalies),
-                  "streamer_json": _json(result.streamer), "charge_balance_json": _json(result.charge_balance),
-                  "notes_json": _json(result.notes)})
-        est = f.create_group("estimates")
-        values = {"mean_gain": (result.mean_gain, "1"), "polya_theta": (result.polya_theta, "1"),
-                  "local_field_ratio": (result.local_field_ratio, "1")}
-        values.update({f"collected_{k}": (v, "1") for k, v in result.mean_collected.items()})
-        for name, (e, units) in values.items():
-            ds = est.create_dataset(name, data=np.array([e.value, e.stderr]))
-            ds.attrs.update({"units": units, "columns": "value, stderr"})
-        _arrays(f.create_group("gain"), {"per_primary": result.gain_distribution.per_primary,
-                                         "controlled": result.gain_distribution.controlled.astype(np.int8)})
-        _arrays(f.create_group("current"), {k: v for k, v in result.current.items() if k != "bin_width_s"})
-        f["current"].attrs["bin_width_s"] = float(result.current["bin_width_s"])
-        _arrays(f.create_group("arrivals"), {k: v for k, v in result.arrivals.items() if k != "sample_columns"})
-        f["arrivals"].attrs["sample_columns"] = result.arrivals["sample_columns"]
-        maps = f.create_group("maps")
-        names = [k for k in result.maps if k not in ("rho_edges_m", "z_edges_m")]
-        maps.attrs["names_json"] = _json(names)
-        maps.create_dataset("rho_edges_m", data=result.maps["rho_edges_m"]).attrs["units"] = "m"
-        maps.create_dataset("z_edges_m", data=result.maps["z_edges_m"]).attrs["units"] = "m"
-        for k, name in enumerate(names):
-            ds = maps.create_dataset(f"map_{k}", data=result.maps[name])
-            ds.attrs.update({"units": "events per primary per bin", "name": name})
-        _arrays(f.create_group("field_line"), result.field_line)
-        table = f.create_group("alpha_table")
-        _arrays(table, {k: v for k, v in result.alpha_table.items() if k != "source"})
-        table.attrs["source"] = str(result.alpha_table.get("source", ""))
-    return path
+    a = f.attrs
+    a.update({"file_type": FILE_TYPE, "format_version": FORMAT_VERSION, "package_version": __version__,
+              "created_utc": datetime.now(UTC).isoformat(timespec="seconds"), "mode": "gap",
+              "voltage_V": float(inputs["voltage_V"]), "primaries": int(inputs["primaries"]),
+              "mixture": str(inputs.get("label", "")),
+              "temperature_K": float(mixture.get("temperature_K", np.nan)),
+              "number_density_m3": float(mixture.get("number_density_m3", np.nan)),
+              "seed": _json(inputs.get("seed")), "local_field_gain": float(result.local_field_gain),
+              "events": int(result.events), "steps": int(result.steps),
+              "real_collisions": int(result.real_collisions), "cpu_seconds": float(result.cpu_seconds),
+              "wall_seconds": float(result.wall_seconds), "space_charge": result.notes[0],
+              "caution": result.notes[-1], "inputs_json": _json(inputs),
+              "composition_json": _json(mixture.get("composition", {})),
+              "checksums_json": _json(mixture.get("checksums", {})),
+              "provenance_json": _json(inputs.get("provenance", {})), "anomalies_json": _json(result.anomalies),
+              "streamer_json": _json(result.streamer), "charge_balance_json": _json(result.charge_balance),
+              "notes_json": _json(result.notes)})
+    est = f.create_group("estimates")
+    values = {"mean_gain": (result.mean_gain, "1"), "polya_theta": (result.polya_theta, "1"),
+              "local_field_ratio": (result.local_field_ratio, "1")}
+    values.update({f"collected_{k}": (v, "1") for k, v in result.mean_collected.items()})
+    for name, (e, units) in values.items():
+        ds = est.create_dataset(name, data=np.array([e.value, e.stderr]))
+        ds.attrs.update({"units": units, "columns": "value, stderr"})
+    _arrays(f.create_group("gain"), {"per_primary": result.gain_distribution.per_primary,
+                                     "controlled": result.gain_distribution.controlled.astype(np.int8)})
+    _arrays(f.create_group("current"), {k: v for k, v in result.current.items() if k != "bin_width_s"})
+    f["current"].attrs["bin_width_s"] = float(result.current["bin_width_s"])
+    _arrays(f.create_group("arrivals"), {k: v for k, v in result.arrivals.items() if k != "sample_columns"})
+    f["arrivals"].attrs["sample_columns"] = result.arrivals["sample_columns"]
+    maps = f.create_group("maps")
+    names = [k for k in result.maps if k not in ("rho_edges_m", "z_edges_m")]
+    maps.attrs["names_json"] = _json(names)
+    maps.create_dataset("rho_edges_m", data=result.maps["rho_edges_m"]).attrs["units"] = "m"
+    maps.create_dataset("z_edges_m", data=result.maps["z_edges_m"]).attrs["units"] = "m"
+    for k, name in enumerate(names):
+        ds = maps.create_dataset(f"map_{k}", data=result.maps[name])
+        ds.attrs.update({"units": "events per primary per bin", "name": name})
+    _arrays(f.create_group("field_line"), result.field_line)
+    table = f.create_group("alpha_table")
+    _arrays(table, {k: v for k, v in result.alpha_table.items() if k != "source"})
+    table.attrs["source"] = str(result.alpha_table.get("source", ""))
 
 
 def read_gap(path) -> dict:
@@ -117,15 +125,116 @@ def read_gap(path) -> dict:
         if int(f.attrs["format_version"]) > FORMAT_VERSION:
             raise AvalancheError(f"{path}: format version {f.attrs['format_version']} is newer than this package "
                                  f"reads ({FORMAT_VERSION}); update avalanche")
-        attrs = {}
-        for k, v in f.attrs.items():
-            attrs[k[:-5] if k.endswith("_json") else k] = json.loads(v) if k.endswith("_json") else v
-        out = {"attrs": attrs,
-               "estimates": {k: Estimate(float(d[0]), float(d[1])) for k, d in f["estimates"].items()}}
-        for group in ("gain", "current", "arrivals", "field_line", "alpha_table"):
-            out[group] = {k: d[()] for k, d in f[group].items()}
-        maps = {"rho_edges_m": f["maps/rho_edges_m"][()], "z_edges_m": f["maps/z_edges_m"][()]}
-        for k, name in enumerate(json.loads(f["maps"].attrs["names_json"])):
-            maps[name] = f[f"maps/map_{k}"][()]
-        out["maps"] = maps
+        return read_gap_group(f)
+
+
+def read_gap_group(f: h5py.Group) -> dict:
+    """Read a gap result written by :func:`write_gap_group` from the HDF5 group (or file) ``f`` (see
+    :func:`read_gap`)."""
+    attrs = {}
+    for k, v in f.attrs.items():
+        attrs[k[:-5] if k.endswith("_json") else k] = json.loads(v) if k.endswith("_json") else v
+    out = {"attrs": attrs,
+           "estimates": {k: Estimate(float(d[0]), float(d[1])) for k, d in f["estimates"].items()}}
+    for group in ("gain", "current", "arrivals", "field_line", "alpha_table"):
+        out[group] = {k: d[()] for k, d in f[group].items()}
+    maps = {"rho_edges_m": f["maps/rho_edges_m"][()], "z_edges_m": f["maps/z_edges_m"][()]}
+    for k, name in enumerate(json.loads(f["maps"].attrs["names_json"])):
+        maps[name] = f[f"maps/map_{k}"][()]
+    out["maps"] = maps
     return out
+
+
+# ------------------------------------------------------------------------------------------------- gap sweeps
+
+GAP_SWEEP_COLUMNS = ("voltage_V", "pressure_Pa", "wire_radius_m", "frequency_Hz")
+"""Grid columns of a gap sweep (units in the names; NaN pressure: the run file's gas state; NaN radius: not a
+coaxial sweep)."""
+
+
+def _headline(result) -> dict:
+    """Name → (value, standard error) of a gap result's tabulated quantities."""
+    out = {"mean_gain": result.mean_gain, "polya_theta": result.polya_theta,
+           "local_field_gain": Estimate(result.local_field_gain, float("nan")),
+           "local_field_ratio": result.local_field_ratio}
+    out.update({f"collected_{k}": v for k, v in result.mean_collected.items()})
+    return {k: (float(v.value), float(v.stderr)) for k, v in out.items()}
+
+
+class GapSweepWriter(ResultsWriter):
+    """The results file of a gap sweep: the swarm sweep's file and commit protocol
+    (:class:`avalanche.store.sweep_file.ResultsWriter`, so ``--resume`` and crash safety are the same), with
+
+    * root attributes ``mode`` = "gap", ``caution`` (the high-voltage caution) and ``space_charge`` (the note that
+      it is neglected), besides the usual provenance;
+    * ``/grid/voltage_V``, ``pressure_Pa``, ``wire_radius_m``, ``frequency_Hz`` (units in ``units``),
+      ``seed``, ``mixture_index``, ``mixture``, ``composition_json``, and ``reduced_field_Td`` (NaN: not a
+      coordinate of a gap sweep, kept so that :func:`avalanche.open_results` reads the file);
+    * ``/table/value/<q>``, ``/table/stderr/<q>`` for q in mean_gain, polya_theta, local_field_gain,
+      local_field_ratio, collected_driven, collected_grounded, collected_outside (units "1");
+    * ``/points/<index:06d>/``: the single-run layout of :func:`write_gap_group` plus the ``sweep_*`` attributes.
+    """
+
+    def __init__(self, path, runfile, *, resume: bool = False):
+        super().__init__(path, runfile, resume=resume, payload_io=(self._write_point, read_gap_group))
+
+    def _create(self) -> None:
+        from ..gaps.results import SAFETY_NOTE, SPACE_CHARGE_NOTE
+
+        f, rf = self.file, self.runfile
+        points = rf.points
+        f.attrs.update({"file_type": SWEEP_FILE_TYPE, "format_version": SWEEP_FORMAT_VERSION,
+                        "package_version": __version__, "created_utc": datetime.now(UTC).isoformat(timespec="seconds"),
+                        "name": rf.name, "description": rf.description, "mode": rf.mode, "master_seed": rf.seed,
+                        "n_points": len(points), "runfile_source": rf.source, "runfile_sha256": rf.text_sha256,
+                        "config_sha256": rf.config_sha256, "caution": SAFETY_NOTE,
+                        "space_charge": SPACE_CHARGE_NOTE, "electrodes_json": _json(rf.electrodes)})
+        f.create_dataset("runfile", data=rf.text, dtype=h5py.string_dtype()).attrs["sha256"] = rf.text_sha256
+        f.create_dataset("config", data=rf.config_json(), dtype=h5py.string_dtype()).attrs["sha256"] = \
+            rf.config_sha256
+        f.create_group("crosssections").attrs.update(rf.checksums)
+        grid = f.create_group("grid")
+        grid.create_dataset("mixture_index", data=np.array([p.mixture_index for p in points], dtype=np.int64))
+        grid.create_dataset("mixture", data=[m.label for m in rf.mixtures], dtype=h5py.string_dtype())
+        grid.create_dataset("composition_json", data=[m.key for m in rf.mixtures], dtype=h5py.string_dtype())
+        grid.create_dataset("seed", data=np.array([p.seed for p in points], dtype=np.int64))
+        for name in GAP_SWEEP_COLUMNS:
+            grid.create_dataset(name, data=np.array([getattr(p, name) for p in points], dtype=float))\
+                .attrs["units"] = name.rsplit("_", 1)[1]
+        grid.create_dataset("reduced_field_Td", data=np.full(len(points), np.nan)).attrs.update(
+            {"units": "Td", "note": "not a coordinate of a gap sweep"})
+        table = f.create_group("table")
+        table.create_group("value")
+        table.create_group("stderr")
+        f.create_group("points")
+        f.flush()
+
+    def _write_point(self, group: h5py.Group, result) -> None:
+        """A point's payload: its gap result, and its rows of the table (written before the point's status)."""
+        write_gap_group(group, result)
+        index = int(group.name.rsplit("/", 1)[1])
+        for quantity, (value, stderr) in _headline(result).items():
+            self._column("value", quantity, "1")[index] = value
+            self._column("stderr", quantity, "1")[index] = stderr
+
+
+def open_gap_sweep(path):
+    """Open a gap sweep's results file: :func:`avalanche.open_results` with the gap layout, whose ``grid`` gains
+    the columns of :data:`GAP_SWEEP_COLUMNS`; ``point(i)`` returns the point's data as :func:`read_gap` does.
+
+    Raises
+    ------
+    AvalancheError
+        Not a sweep results file, or a sweep of another mode.
+    """
+    from numpy.lib import recfunctions
+
+    results = open_results(path, payload_io=(write_gap_group, read_gap_group))
+    if results.attrs.get("mode") != "gap":
+        raise AvalancheError(f"{path}: a sweep of mode {results.attrs.get('mode')!r}, not a gap sweep; read it with "
+                             "avalanche.open_results")
+    names = [name for name in GAP_SWEEP_COLUMNS if name not in results.grid.dtype.names]
+    with h5py.File(results.path, "r") as f:
+        columns = [f["grid"][name][()] for name in names]
+    results.grid = recfunctions.append_fields(results.grid, names, columns, usemask=False)
+    return results

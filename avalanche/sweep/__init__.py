@@ -1,4 +1,6 @@
-"""Sweeps: run files (grids of E/N, frequency and composition), local and Dask execution, resume.
+"""Sweeps: run files (grids of E/N, frequency and composition; gap sweeps over voltage, pressure, wire radius
+and frequency), local and Dask execution, resume.
 
-May import ``store``, ``engine``, ``gas``, ``constants``, ``errors``; never ``analysis``, ``plots`` or ``cli``.
+May import ``store``, ``gaps``, ``engine``, ``gas``, ``constants``, ``errors``; never ``analysis``, ``plots``
+or ``cli``.
 """

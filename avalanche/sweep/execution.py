@@ -28,12 +28,14 @@ import warnings
 from collections import deque
 from collections.abc import Callable, Iterable, Iterator
 from dataclasses import dataclass, field
+from functools import partial
 from pathlib import Path
 from typing import Any
 
 from ..errors import AvalancheError, ConfigError
 from ..store.sweep_file import ResultsWriter, headline_values
-from .runfile import DEFAULT_MODE, MixtureSpec, RunFile, load_runfile
+from .gap_sweep import GapRunFile, load_sweep_runfile
+from .runfile import DEFAULT_MODE, MixtureSpec, RunFile
 
 DEFAULT_MAX_RETRIES = 2
 """A point whose worker process dies is tried at most 1 + DEFAULT_MAX_RETRIES times."""
@@ -477,11 +479,15 @@ def _progress_text(runfile: RunFile, point, result) -> str:
 
 
 def _log_failure(log_path: Path, runfile: RunFile, point, outcome: Outcome) -> str:
-    mixture = runfile.mixtures[point.mixture_index].label
-    magnetic = (f"magnetic field {point.magnetic_field:g} {runfile.magnetic_unit} at {point.field_angle_deg:g} deg, "
-                if runfile.magnetic else "")
-    line = (f"point {point.index} (mixture {mixture}, E/N {point.reduced_field_Td:g} Td, frequency "
-            f"{point.frequency_Hz:g} Hz, {magnetic}seed {point.seed}) failed after {outcome.attempts} attempt"
+    if isinstance(runfile, GapRunFile):
+        coordinates = f"{runfile.describe_point(point)}, "
+    else:
+        mixture = runfile.mixtures[point.mixture_index].label
+        magnetic = (f"magnetic field {point.magnetic_field:g} {runfile.magnetic_unit} at "
+                    f"{point.field_angle_deg:g} deg, " if runfile.magnetic else "")
+        coordinates = (f"mixture {mixture}, E/N {point.reduced_field_Td:g} Td, frequency {point.frequency_Hz:g} Hz, "
+                       f"{magnetic}")
+    line = (f"point {point.index} ({coordinates}seed {point.seed}) failed after {outcome.attempts} attempt"
             f"{'s' if outcome.attempts != 1 else ''}: {outcome.reason}")
     stamp = _dt.datetime.now(_dt.UTC).isoformat(timespec="seconds")
     try:
@@ -547,7 +553,10 @@ def run_sweep(runfile: str | Path | RunFile, *, workers: int | None = None, sche
     from tqdm import tqdm
 
     start = time.perf_counter()
-    rf = runfile if isinstance(runfile, RunFile) else load_runfile(runfile)
+    rf = runfile if isinstance(runfile, (RunFile, GapRunFile)) else load_sweep_runfile(runfile)
+    own = isinstance(rf, GapRunFile)  # a mode with its own tasks, computation, writer and texts (gap sweeps)
+    if own and compute is compute_point:
+        compute = rf.compute
     choices = [name for name, given in (("workers", workers is not None), ("scheduler", scheduler is not None),
                                         ("cluster", cluster), ("executor", executor is not None)) if given]
     if len(choices) > 1 and "executor" not in choices:
@@ -563,7 +572,7 @@ def run_sweep(runfile: str | Path | RunFile, *, workers: int | None = None, sche
     path = Path(out) if out is not None else rf.output
     report = SweepReport(path=path, points=len(rf.points))
     with contextlib.ExitStack() as stack:
-        writer = stack.enter_context(ResultsWriter(path, rf, resume=resume))
+        writer = stack.enter_context(rf.writer(path, resume) if own else ResultsWriter(path, rf, resume=resume))
         todo = [p for p in rf.points if p.index not in writer.finished]
         report.skipped = len(rf.points) - len(todo)
         if executor is None:
@@ -580,7 +589,7 @@ def run_sweep(runfile: str | Path | RunFile, *, workers: int | None = None, sche
                 executor = LocalPool(min(workers or default_workers(), max(1, len(todo))),
                                      threads_per_worker=threads_per_worker, max_retries=max_retries)
         report.executor = executor.description
-        tasks = [(p.index, point_task(rf, p, threads_per_worker)) for p in todo]
+        tasks = [(p.index, (rf.point_task if own else partial(point_task, rf))(p, threads_per_worker)) for p in todo]
         bar = stack.enter_context(tqdm(total=len(rf.points), initial=report.skipped, unit="point",
                                        disable=quiet, file=sys.stderr, dynamic_ncols=True,
                                        desc=rf.name, smoothing=0.1))
@@ -589,6 +598,8 @@ def run_sweep(runfile: str | Path | RunFile, *, workers: int | None = None, sche
         if not quiet:
             where = "all points already finished" if not todo else f"{len(todo)} points on {report.executor}"
             bar.write(f"avalanche sweep {rf.source} -> {path}: {where}", file=sys.stderr)
+            for note in rf.notes if own else ():
+                bar.write(f"avalanche sweep: {note}", file=sys.stderr)
         log_path = path.with_suffix(".failures.log")
         outcomes = stack.enter_context(contextlib.closing(executor.map_unordered(compute, tasks)))
         for outcome in outcomes:
@@ -607,7 +618,8 @@ def run_sweep(runfile: str | Path | RunFile, *, workers: int | None = None, sche
                     report.not_converged.append({"index": point.index, "notes": notes})
                     bar.write(f"avalanche sweep: point {point.index} (E/N {point.reduced_field_Td:g} Td, "
                               f"{point.frequency_Hz:g} Hz) not converged: {'; '.join(notes)}", file=sys.stderr)
-                bar.set_postfix_str(_progress_text(rf, point, result), refresh=False)
+                bar.set_postfix_str((rf.progress_text if own else partial(_progress_text, rf))(point, result),
+                                    refresh=False)
             else:
                 writer.commit_failure(point, outcome.reason, info)
                 report.failed.append({"index": point.index, "reason": outcome.reason, "attempts": outcome.attempts})

@@ -153,3 +153,22 @@ def test_local_field_gain_between_plates_is_exp_alpha_d():
                sharing="uniform", alpha_table=table)
     assert r.local_field_gain == pytest.approx(math.exp(4e-21 * N_m3 * d), rel=1e-9)
     assert r.local_field_ratio.value == pytest.approx(r.mean_gain.value / r.local_field_gain)
+
+
+def test_a_map_window_holds_the_events_inside_it():
+    # histogram bookkeeping (common practice): a window over the lower half of the default map, with as many bins,
+    # holds exactly the default map's lower half (same seed, so the same events)
+    d = 60e-6
+    V = 250 * TOWNSEND_V_m2 * N_m3 * d
+    geometry = av.ParallelPlates(d)
+    full = av.gap(geometry, lucas_saelee(), V, primaries=20, seed=3, sharing="uniform", local_field=False)
+    rho_max, z_min, z_max = geometry.map_extent()
+    half = av.gap(geometry, lucas_saelee(), V, primaries=20, seed=3, sharing="uniform", local_field=False,
+                  map_extent_m=(rho_max, z_min, 0.5 * (z_min + z_max)))
+    np.testing.assert_array_equal(half.gain_distribution.per_primary, full.gain_distribution.per_primary)
+    lower = full.maps["created"][:, :20].sum()
+    assert 0 < lower < full.maps["created"].sum()
+    assert half.maps["created"].sum() == pytest.approx(lower, rel=0.02)
+    assert half.maps["z_edges_m"][-1] == pytest.approx(0.5 * (z_min + z_max))
+    with pytest.raises(ConfigError, match="map_extent_m"):
+        av.gap(geometry, lucas_saelee(), V, map_extent_m=(1e-3, 1e-3, 0.0))

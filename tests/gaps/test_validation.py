@@ -74,30 +74,57 @@ def furry_chi2(gains, minimum_expected=5.0):
     return float(np.sum((observed - expected) ** 2 / expected)), expected.size - 2
 
 
+def plate_avalanche_sizes(F, mean_energy_eV, alpha_N, primaries, seed, en=200.0, z0=20e-6, mean_gain=6.0):
+    """Gains of avalanches between plates in the Lucas–Saelee gas with parameter F at E/N = ``en``, primaries
+    started isotropic with the swarm's mean energy at z0, the gap set for a mean gain ``mean_gain``."""
+    d = z0 + math.log(mean_gain) / (alpha_N * N_m3)
+    r = av.gap(av.ParallelPlates(d), lucas_saelee(F), plate_voltage(en, d), primaries=primaries, seed=seed,
+               sharing="uniform", local_field=False, initial_energy_eV=mean_energy_eV,
+               initial_direction="isotropic", start_position_m=(0.0, 0.0, z0))
+    assert not r.gain_distribution.controlled.any()
+    return r.gain_distribution.per_primary
+
+
 @pytest.mark.slow
 def test_furry_distribution_between_plates():
-    # Furry W H (1937) Phys. Rev. 52 569; Legler W (1955) Z. Naturforsch. A 10 1 (from memory): when the chance to
-    # ionize does not depend on the electron's history, the avalanche from one electron has the geometric size
-    # distribution P(n) = (1/n̄)(1 − 1/n̄)^(n−1). Legler's correction is of order α U_i/E; with F = 0.02 only one
-    # inelastic event in 50 ionizes, α U_i/E ≈ 0.02 and the ionizations are a thinned, nearly memoryless sequence.
-    # The primaries start in equilibrium: isotropic, with the swarm's mean energy, 20 µm into the gap. χ² test at
-    # the 1 % level (fixed seed; the seed was not chosen after the fact). Noted, not hidden: seeds 12, 13, 14 give
-    # p = 0.34, 0.81, 0.004 and variance / Furry variance n̄(n̄ − 1) = 0.98, 0.91, 0.85 (this seed: p = 0.017), so
-    # the simulated sizes are about 10 % narrower in variance than Furry's law, a ~3σ effect over four seeds; a
-    # Legler-type memory (α × the distance to regain the threshold ≈ 0.02 here) would explain a few percent.
-    en, z0 = 200.0, 20e-6
-    mixture = lucas_saelee(F=0.02)
-    mean_energy = 14.28  # eV: avalanche.swarm of this gas at 200 Td (0.05 % standard error)
-    alpha = 2.51e-22 * N_m3  # 1/m: the same run's α/N (0.7 %)
-    d = z0 + math.log(6.0) / alpha
-    r = av.gap(av.ParallelPlates(d), mixture, plate_voltage(en, d), primaries=1200, seed=11, sharing="uniform",
-               local_field=False, initial_energy_eV=mean_energy, initial_direction="isotropic",
-               start_position_m=(0.0, 0.0, z0))
-    gains = r.gain_distribution.per_primary
-    assert not r.gain_distribution.controlled.any()
+    # Furry W H (1937) Phys. Rev. 52 569: when each electron's chance to ionize per unit path does not depend on its
+    # history, the avalanche of one electron has the geometric size distribution P(n) = (1/n̄)(1 − 1/n̄)^(n−1).
+    # Legler W (1955) Z. Naturforsch. A 10 1; (1961) Z. Naturforsch. A 16 253 (from memory): real electrons have
+    # memory — after an ionization both electrons must regain about U_i/(eE) of path before they ionize again —
+    # and the distribution is narrower than Furry's by a relative amount of order α U_i/(eE). For the model of an
+    # age-dependent branching process (a dead path δ before an exponential wait) the relative variance falls by
+    # ≈ 4 α δ (common practice: second moment of the Bellman–Harris limit, W = e^{−rτ}(W₁ + W₂)). So the law is
+    # tested where α U_i/(eE) is small: F = 0.005 (one inelastic event in 200 ionizes), α U_i/(eE) = 0.005.
+    # Measured, 1200 primaries each (variance / Furry's n̄(n̄ − 1), whose sampling sd is 0.06; χ² p):
+    #   F = 0.005, seeds 1, 2, 3, 11, 12, 13, 14: 0.90, 0.89, 0.98, 0.96, 0.91, 0.97, 0.99; p = 0.39, 0.28, 0.016,
+    #     0.78, 0.72, 0.87, 0.84 (mean ratio 0.94 ± 0.02: 2 σ more deficit than the ≈ 2 % expected, not resolved);
+    #   F = 0.02 (α U_i/eE = 0.020), the former setting of this test: 0.80, 1.02, 0.98, 0.91, 0.85 (mean 0.91 ±
+    #     0.03; p down to 0.004), and 0.93 ± 0.045 with 4000 primaries whatever the start (fresh 0.5 eV forward,
+    #     0.92; 100 µm from the cathode, 0.94): not a start-up transient, Legler's memory (≈ 4 α U_i/eE ≈ 8 %);
+    #   F = 0.08 (α U_i/eE = 0.072): 0.79, 0.77, 0.92, 0.75, p = 2e-4 … 0.02 (test below).
+    # Primaries start in equilibrium (isotropic, the swarm's mean energy, 20 µm into the gap); χ² at the 1 % level
+    # with the seed of the former test (not chosen after the fact).
+    # Mean energy 14.369 eV and α/N = 6.352e-23 m² (±0.2 %): avalanche.swarm of this gas at 200 Td, precision 1 %.
+    gains = plate_avalanche_sizes(0.005, 14.369, 6.352e-23, primaries=1200, seed=11)
     chi2, dof = furry_chi2(gains)
-    print(f"n_mean {gains.mean():.4g}, chi2 {chi2:.4g} for {dof} dof, Polya theta {r.polya_theta}")
+    print(f"n_mean {gains.mean():.4g}, chi2 {chi2:.4g} for {dof} dof")
     assert stats.chi2.sf(chi2, dof) > 0.01
+
+
+@pytest.mark.slow
+def test_avalanches_with_memory_are_narrower_than_furry():
+    # Legler (1961, above): with α U_i/(eE) = 0.072 (F = 0.08) the memory after each ionization narrows the size
+    # distribution visibly: the variance lies below Furry's n̄(n̄ − 1) by more than 3 sampling standard deviations
+    # (the sample variance of a geometric law has relative sd ≈ sqrt(8/N) for n̄ = 6; measured ratio ≈ 0.8), and
+    # fewer avalanches stay single (P(1) < 1/n̄). Mean energy 13.986 eV, α/N = 9.23e-22 m²: avalanche.swarm at
+    # 200 Td, precision 1 %.
+    n = 3000
+    gains = plate_avalanche_sizes(0.08, 13.986, 9.23e-22, primaries=n, seed=11)
+    mean = gains.mean()
+    ratio = gains.var(ddof=1) / (mean * (mean - 1.0))
+    print(f"n_mean {mean:.4g}, variance / Furry {ratio:.4f}, P(1) n_mean {np.mean(gains == 1) * mean:.4f}")
+    assert ratio < 1.0 - 3.0 * math.sqrt(8.0 / n)
+    assert np.mean(gains == 1) * mean < 1.0 - 3.0 * math.sqrt((mean - 1.0) / n)
 
 
 def test_furry_chi2_rejects_a_narrow_distribution():
@@ -194,6 +221,11 @@ def test_coaxial_gain_against_the_local_field_integral():
         ratios[name] = r.local_field_ratio
         print(f"{name} wire: gain {r.mean_gain}, local-field gain {r.local_field_gain:.4g}, ratio "
               f"{r.local_field_ratio}")
+    # measured (seed 7): thick 0.980 ± 0.071; thin 0.965 ± 0.008 (gain 1.023 against 1.061), 4.3 σ below 1
     thick, thin = ratios["thick"], ratios["thin"]
     assert abs(thick.value - 1.0) < 0.10 + 2 * thick.stderr
-    assert abs(thin.value - 1.0) > 3 * thin.stderr  # departs from 1; its direction is reported (README)
+    # the thin wire departs from 1 in the direction non-local theory expects: the electrons running into the
+    # steeply rising field lag it (their energy, hence α, stays below the local-field value), so the gain is below
+    # exp(∫ α dr) (the non-local, energy-relaxation picture; Raizer 1991 §4 — from memory). A ratio above 1 fails
+    # here and must be investigated, not hidden.
+    assert thin.value < 1.0 - 3 * thin.stderr
