@@ -15,6 +15,7 @@ from pathlib import Path
 
 import numpy as np
 
+from .. import quantities as Q
 from ..analysis.tables import RATE_PREFIX, SwarmTable, did_you_mean, fluid_table
 from ..constants import BOLTZMANN_J_K, STANDARD_ATMOSPHERE_Pa, TORR_Pa, TOWNSEND_V_m2
 from ..errors import ConfigError
@@ -322,7 +323,8 @@ def _breakdown(args) -> int:
                     "minimum_pd_Torr_cm": curve.minimum_pd_Torr_cm if math.isfinite(curve.minimum_pd_Torr_cm)
                     else None, "critical_reduced_field_Td": critical, "critical_field_1atm_V_m": field_1atm,
                     "coefficients": {"reduced_field_Td": coefficients.reduced_field_Td,
-                                     "alpha_N_m2": coefficients.alpha_N_m2, "eta_N_m2": coefficients.eta_N_m2},
+                                     "alpha_N": coefficients.alpha_N_m2, "eta_N": coefficients.eta_N_m2,
+                                     "units": {n: Q.unit(n) for n in ("reduced_field_Td", "alpha_N", "eta_N")}},
                     "gap": gap_result, "warnings": messages, "files": [str(f) for f in files], "caution": CAUTION})
         return 0
     low, high = coefficients.reduced_field_range_Td
@@ -408,8 +410,7 @@ def _emission(args) -> int:
     out, stem = Path(args.out), Path(args.results).stem
     estimates, files, phase = [], [], []
     for k in indices:
-        rates = {key: (table.quantities[RATE_PREFIX + key][0][k], table.quantities[RATE_PREFIX + key][1][k])
-                 for key in table.rate_keys}
+        rates = {key: (table.rate(key)[0][k], table.rate(key)[1][k]) for key in table.rate_keys}
         estimate = emission_estimate(levels, rates, float(table.reduced_field_Td[k]))
         estimates.append(estimate)
         labels = [level.name for level in estimate.levels]

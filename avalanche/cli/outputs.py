@@ -40,7 +40,7 @@ def _plot_configure(p) -> None:
                    help="folder for the figures (default: current folder; --out is the older spelling)")
     p.add_argument("--quantity", default=None, metavar="LIST",
                    help="comma list of quantities or panels, e.g. alpha_N,drift_velocity_bulk; 'drift_velocity', "
-                        "'long_diffusion_N', 'trans_diffusion_N' draw flux and bulk together, 'rate_coefficients' "
+                        "'N_D_L', 'N_D_T' draw flux and bulk together, 'rate_coefficients' "
                         "every process rate (default: mean energy, drift velocity, diffusion, alpha_N, eta_N)")
     p.add_argument("--reference", default=None, metavar="FILE.csv",
                    help="reference data to overlay: CSV with '# source: <citation>' comment, a header line "

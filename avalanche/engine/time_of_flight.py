@@ -507,6 +507,7 @@ def swarm(mixture: Mixture | str, reduced_field_Td: float, magnetic_field_T: flo
                 result.inputs["method"] = result.regime["method"] = "exact"
         result.cpu_seconds = time.process_time() - cpu0
         result.wall_seconds = time.perf_counter() - wall0
+        result.mixture = mixture
     finally:
         numba.set_num_threads(previous)
     return result
