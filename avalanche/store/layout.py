@@ -15,6 +15,7 @@ from __future__ import annotations
 import json
 import platform
 import sys
+from collections.abc import Mapping
 from datetime import UTC, datetime
 
 import h5py
@@ -179,3 +180,117 @@ def read_crosssections(group: h5py.Group, where: str) -> dict:
         species = _text(ds.attrs["species"])
         out[species] = parse_set(tomllib.loads(_text(ds[()])), f"{where}:{ds.name}")
     return out
+
+
+STATUS_OK = "ok"
+"""``sweep_status`` of a committed point."""
+RATE_PREFIX = Q.RATE_PREFIX
+"""Every per-process rate coefficient of a point enters the table as ``rate_coefficient_<process>`` [m^3/s]
+(:func:`avalanche.quantities.rate_name`), with the exact label in the column's ``process`` attribute."""
+GRID_COLUMNS = ("mixture_index", "reduced_field_Td", "frequency_Hz", "seed")
+MAGNETIC_COLUMNS = ("magnetic_field_T", "reduced_magnetic_field_Hx", "field_angle_deg")
+
+
+def headline_quantities() -> tuple[tuple[str, str], ...]:
+    """(name, units) of the scalar quantities of a result, in display order (the time-of-flight estimates, then
+    the steady-state ones); those a point's result has are copied into the table."""
+    from ..engine.results import ESTIMATES
+
+    names = [name for name, _, _ in ESTIMATES] + ["relaxation_length_m"]
+    return tuple((name, Q.unit(name)) for name in names)
+
+
+def headline_values(result) -> dict[str, tuple[float, float, str]]:
+    """Name → (value, standard error, units) of every quantity of the table ``result`` has.
+
+    A quantity counts when the result has an attribute of that name with ``.value`` and ``.stderr`` (an
+    ``Estimate``); rate coefficients come from the mapping ``result.rate_coefficients``, named by
+    :func:`avalanche.quantities.rate_names` (:func:`rate_processes` gives their process labels).
+    """
+    out = {}
+    for name, units in headline_quantities():
+        estimate = getattr(result, name, None)
+        if hasattr(estimate, "value") and hasattr(estimate, "stderr"):
+            out[name] = (float(estimate.value), float(estimate.stderr), units)
+    rates = getattr(result, "rate_coefficients", None)
+    if isinstance(rates, Mapping):
+        for label, name in Q.rate_names(rates).items():
+            out[name] = (float(rates[label].value), float(rates[label].stderr), Q.RATE_UNIT)
+    return out
+
+
+def rate_processes(result) -> dict[str, str]:
+    """Rate-coefficient quantity name → process label of ``result``'s rate coefficients."""
+    rates = getattr(result, "rate_coefficients", None)
+    return {name: label for label, name in Q.rate_names(rates).items()} if isinstance(rates, Mapping) else {}
+
+
+def write_table_row(table: h5py.Group, index: int, result) -> None:
+    """Row ``index`` of ``/table``: every quantity of :func:`headline_values` (columns created on first use)."""
+    processes = rate_processes(result)
+    for quantity, (value, stderr, _) in headline_values(result).items():
+        value_column, stderr_column = table_columns(table, quantity, processes.get(quantity, ""))
+        value_column[index], stderr_column[index] = value, stderr
+
+
+def create_layout(f: h5py.File, kind: str, attrs: dict, *, grid: dict, labels: list, compositions: list,
+                  config_json: str, runfile_text: str, sets: dict, checksums: dict) -> None:
+    """The parts every results file has before its points (see the module notes): root attributes, run file,
+    configuration, cross-section sets, mixtures and the table's coordinates (``grid``: column → (n,) array)."""
+    import hashlib
+
+    n = len(grid["reduced_field_Td"])
+    write_root(f, kind, n_points=n, **attrs)
+    f.create_dataset("runfile", data=runfile_text, dtype=h5py.string_dtype()).attrs["sha256"] = \
+        hashlib.sha256(runfile_text.encode()).hexdigest()
+    f.create_dataset("config", data=config_json, dtype=h5py.string_dtype()).attrs["sha256"] = \
+        hashlib.sha256(config_json.encode()).hexdigest()
+    crosssections = f.create_group("crosssections")
+    write_crosssections(crosssections, sets)
+    crosssections.attrs.update(checksums)
+    mixtures = f.create_group("mixtures")
+    index = scale(mixtures, "mixture", np.arange(len(labels), dtype=np.int64))
+    attach(mixtures.create_dataset("label", data=list(labels), dtype=h5py.string_dtype()), index)
+    attach(mixtures.create_dataset("composition_json", data=list(compositions), dtype=h5py.string_dtype()), index)
+    table = f.create_group("table")
+    point = scale(table, "point", np.arange(n, dtype=np.int64))
+    for name, values in grid.items():
+        describe(attach(table.create_dataset(name, data=values), point), name)
+    label = table.create_dataset("mixture", data=[labels[i] for i in grid["mixture_index"]],
+                                 dtype=h5py.string_dtype())
+    attach(label, point).attrs["long_name"] = "mixture"
+    f.create_group("points")
+
+
+def table_columns(table: h5py.Group, quantity: str, process: str = "") -> tuple[h5py.Dataset, h5py.Dataset]:
+    """The columns ``quantity`` and ``quantity_stderr`` of ``/table`` (created, NaN-filled, on first use)."""
+    if quantity not in table:
+        coordinates = " ".join(name for name in ("mixture", *GRID_COLUMNS, *MAGNETIC_COLUMNS) if name in table)
+        extra = {"quantity": quantity, "coordinates": coordinates, **({"process": process} if process else {})}
+        for name in (quantity, quantity + Q.STDERR_SUFFIX):
+            column = table.create_dataset(name, data=np.full(table["point"].shape[0], np.nan))
+            describe(attach(column, table["point"]), quantity, **extra)
+    return table[quantity], table[quantity + Q.STDERR_SUFFIX]
+
+
+def write_estimates(group: h5py.Group, estimates: dict, rates: dict | None = None) -> None:
+    """Every estimate (name → ``Estimate``) as a scalar pair, then the rate coefficients (process label →
+    ``Estimate``) under their quantity names with the ``process`` attribute."""
+    for name, e in estimates.items():
+        write_pair(group, name, e.value, e.stderr)
+    for key, name in Q.rate_names(rates or {}).items():
+        write_pair(group, name, rates[key].value, rates[key].stderr, process=key)
+
+
+def read_estimates(group: h5py.Group) -> tuple[dict, dict]:
+    """(estimates, rate coefficients by process label) written by :func:`write_estimates`."""
+    from ..engine.results import Estimate
+
+    estimates, rates = {}, {}
+    for name, (value, stderr, attrs) in read_pairs(group).items():
+        e = Estimate(float(value), float(stderr))
+        if "process" in attrs:
+            rates[str(attrs["process"])] = e
+        else:
+            estimates[name] = e
+    return estimates, rates

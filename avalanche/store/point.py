@@ -50,7 +50,26 @@ from ..engine.results import (
 )
 from ..engine.tallies import FIELDS, MAGNETIC_FIELDS, SwarmTallies
 from ..errors import AvalancheError
-from .layout import attach, json_text, read_pairs, scale, write_inputs, write_pair
+from .layout import (
+    FILE_TYPE,
+    FORMAT_VERSION,
+    MAGNETIC_COLUMNS,
+    STATUS_OK,
+    attach,
+    check_root,
+    create_layout,
+    json_text,
+    read_estimates,
+    read_pairs,
+    scale,
+    write_estimates,
+    write_inputs,
+    write_pair,
+    write_table_row,
+)
+
+__all__ = ["FILE_TYPE", "FORMAT_VERSION", "PAYLOAD", "write_result", "read_result", "save_result", "load_result",
+           "write_point_file"]
 
 PAYLOAD = "time-of-flight point"
 TIME_SERIES_UNITS = {"time_s": "s", "duration_s": "s", "sampling": "1", "electrons": "1", "log_weight": "1",
@@ -58,27 +77,6 @@ TIME_SERIES_UNITS = {"time_s": "s", "duration_s": "s", "sampling": "1", "electro
                      "collision_frequency": "1/s", "net_production_frequency": "1/s"}
 _SCALARS = ("events", "cpu_seconds", "wall_seconds", "relaxation_time_s", "sampled_time_s", "extrapolated_fraction")
 AXES = ("E", "ExB", "third")
-
-
-def write_estimates(group: h5py.Group, estimates: dict, rates: dict | None = None) -> None:
-    """Every estimate (name → :class:`Estimate`) as a scalar pair, then the rate coefficients (process label →
-    Estimate) under their quantity names with the ``process`` attribute."""
-    for name, e in estimates.items():
-        write_pair(group, name, e.value, e.stderr)
-    for key, name in Q.rate_names(rates or {}).items():
-        write_pair(group, name, rates[key].value, rates[key].stderr, process=key)
-
-
-def read_estimates(group: h5py.Group) -> tuple[dict, dict]:
-    """(estimates, rate coefficients by process label) written by :func:`write_estimates`."""
-    estimates, rates = {}, {}
-    for name, (value, stderr, attrs) in read_pairs(group).items():
-        e = Estimate(float(value), float(stderr))
-        if "process" in attrs:
-            rates[str(attrs["process"])] = e
-        else:
-            estimates[name] = e
-    return estimates, rates
 
 
 def write_result(group: h5py.Group, result: SwarmResult) -> None:
@@ -247,6 +245,53 @@ def read_result(group: h5py.Group) -> SwarmResult:
                        **convergence)
 
 
+def write_point_file(path: str | Path, result) -> None:
+    """Write one result (``SwarmResult`` or ``TownsendResult``) as a new results file of kind "point" or
+    "steady-state" at ``path`` (not atomic by itself: :func:`save_result` writes it under a
+    temporary name)."""
+    import hashlib
+
+    from .point import write_result
+
+    inputs = result.inputs
+    described = inputs.get("mixture", {})
+    steady = inputs.get("mode") == "steady-state-townsend"
+    seed = inputs.get("seed")
+    drive = inputs.get("drive") or {}
+    grid = {"mixture_index": np.zeros(1, dtype=np.int64),
+            "reduced_field_Td": np.array([float(result.reduced_field_Td)]),
+            "frequency_Hz": np.array([float(drive.get("frequency_Hz") or 0.0)]),
+            "seed": np.array([seed if isinstance(seed, int) else -1], dtype=np.int64)}
+    field = inputs.get("magnetic_field")
+    if field:
+        grid.update({name: np.array([float(field.get(name, np.nan))]) for name in MAGNETIC_COLUMNS})
+    mixture = getattr(result, "mixture", None)
+    sets = {c.name: c.cross_sections for c in mixture.components} if mixture is not None else {}
+    penning = (described.get("penning") or {}).get("groups")
+    spec = {"composition": described.get("composition", {}), "parameters": {}, **({"penning": penning} if penning
+                                                                                  else {})}
+    config = {"mode": "steady-state-townsend" if steady else "time-of-flight", "seed": seed,
+              "temperature_K": described.get("temperature_K"), "number_density_m3": described.get("number_density_m3"),
+              "pressure_Pa": described.get("pressure_Pa"), "mixtures": [spec],
+              "vibrational_temperature_K": described.get("vibrational_temperature_K"),
+              "settings": inputs.get("settings", {})}
+    config_json = json.dumps(config, sort_keys=True, separators=(",", ":"), default=str)
+    with h5py.File(path, "w") as f:
+        create_layout(f, "steady-state" if steady else "point",
+                      {"name": "", "description": "", "mode": config["mode"], "master_seed": json.dumps(seed),
+                       "runfile_source": "", "config_sha256": hashlib.sha256(config_json.encode()).hexdigest()},
+                      grid=grid, labels=[str(inputs.get("label", ""))], compositions=[json.dumps(spec["composition"])],
+                      config_json=config_json, runfile_text="", sets=sets,
+                      checksums=dict(described.get("checksums", {})))
+        group = f["points"].create_group(f"{0:06d}")
+        write_result(group, result)
+        write_table_row(f["table"], 0, result)
+        group.attrs.update({"sweep_index": 0, "sweep_seed": grid["seed"][0], "sweep_attempts": 1,
+                            "sweep_converged": bool(getattr(result, "converged", True)),
+                            "sweep_convergence_notes": json.dumps(list(getattr(result, "convergence_notes", []))),
+                            "sweep_status": STATUS_OK})
+
+
 def save_result(path: str | Path, result: SwarmResult, *, overwrite: bool = True) -> Path:
     """Write ``result`` as a results file of kind "point" (or "steady-state" for a ``TownsendResult``): the
     layout of :mod:`avalanche.store.sweep_file` with one point, readable by ``open_results``, ``avalanche plot``
@@ -263,14 +308,23 @@ def save_result(path: str | Path, result: SwarmResult, *, overwrite: bool = True
         Replace an existing file (default); False refuses with a :class:`ConfigError` naming the path.
     """
     from .files import check_output_file, write_atomically
-    from .sweep_file import write_point_file
 
     path = check_output_file(path, force=overwrite)
     return write_atomically(path, lambda temporary: write_point_file(temporary, result))
 
 
 def load_result(path: str | Path) -> SwarmResult:
-    """Read the point of a results file written by :func:`save_result` (the first point of any results file)."""
-    from .sweep_file import open_results
-
-    return open_results(path).point(0)
+    """Read the point of a results file written by :func:`save_result` (the first point of any results file;
+    ``avalanche.open_results`` reads the whole file)."""
+    path = Path(path)
+    if not path.is_file():
+        raise AvalancheError(f"{path}: no such file" if not path.exists() else f"{path}: not a regular file")
+    try:
+        f = h5py.File(path, "r")
+    except OSError as exc:
+        raise AvalancheError(f"{path}: not an HDF5 file ({exc})") from None
+    with f:
+        check_root(f, path)
+        if "points/000000" not in f or f["points/000000"].attrs.get("sweep_status") != STATUS_OK:
+            raise AvalancheError(f"{path}: its first point is not computed (yet)")
+        return read_result(f["points/000000"])

@@ -52,29 +52,27 @@ import numpy as np
 from .. import quantities as Q
 from .._version import __version__
 from ..errors import AvalancheError, ConfigError
-from .layout import FILE_TYPE, FORMAT_VERSION, attach, check_root, describe, scale, write_crosssections, write_root
+from .layout import (
+    FILE_TYPE,
+    FORMAT_VERSION,
+    GRID_COLUMNS,
+    MAGNETIC_COLUMNS,
+    RATE_PREFIX,
+    STATUS_OK,
+    check_root,
+    create_layout,
+    headline_quantities,
+    headline_values,
+    table_columns,
+    write_table_row,
+)
 
-__all__ = ["FILE_TYPE", "FORMAT_VERSION", "ResultsWriter", "SweepResults", "open_results", "write_point_file"]
+__all__ = ["FILE_TYPE", "FORMAT_VERSION", "RATE_PREFIX", "STATUS_OK", "GRID_COLUMNS", "MAGNETIC_COLUMNS",
+           "ResultsWriter", "SweepResults", "open_results", "headline_quantities", "headline_values", "table_columns",
+           "create_layout"]
 
-STATUS_OK = "ok"
 STATUS_FAILED = "failed"
 STATUS_MISSING = "missing"
-
-RATE_PREFIX = Q.RATE_PREFIX
-"""Every per-process rate coefficient of a point enters the table as ``rate_coefficient_<process>`` [m^3/s]
-(:func:`avalanche.quantities.rate_name`), with the exact label in the column's ``process`` attribute."""
-GRID_COLUMNS = ("mixture_index", "reduced_field_Td", "frequency_Hz", "seed")
-MAGNETIC_COLUMNS = ("magnetic_field_T", "reduced_magnetic_field_Hx", "field_angle_deg")
-
-
-def headline_quantities() -> tuple[tuple[str, str], ...]:
-    """(name, units) of the scalar quantities of a result, in display order (the time-of-flight estimates, then
-    the steady-state ones); those a point's result has are copied into the table."""
-    from ..engine.results import ESTIMATES
-
-    names = [name for name, _, _ in ESTIMATES] + ["relaxation_length_m"]
-    return tuple((name, Q.unit(name)) for name in names)
-
 
 PayloadIO = tuple[Callable, Callable]
 """``(write(h5group, result), read(h5group) -> result)``: how a point's full result is stored."""
@@ -88,114 +86,6 @@ def engine_payload_io() -> PayloadIO:
     except ImportError as exc:
         raise AvalancheError(f"the per-point HDF5 layout (avalanche.store.point) is not available: {exc}") from None
     return write_result, read_result
-
-
-def headline_values(result) -> dict[str, tuple[float, float, str]]:
-    """Name → (value, standard error, process label or ``''``) of every quantity of the table ``result`` has.
-
-    A quantity counts when the result has an attribute of that name with ``.value`` and ``.stderr`` (an
-    ``Estimate``); rate coefficients come from the mapping ``result.rate_coefficients``, named by
-    :func:`avalanche.quantities.rate_names`.
-    """
-    out = {}
-    for name, _ in headline_quantities():
-        estimate = (getattr(result, "estimates", None) or {}).get(name)
-        if hasattr(estimate, "value") and hasattr(estimate, "stderr"):
-            out[name] = (float(estimate.value), float(estimate.stderr), "")
-    rates = getattr(result, "rate_coefficients", None)
-    if isinstance(rates, Mapping):
-        for label, name in Q.rate_names(rates).items():
-            out[name] = (float(rates[label].value), float(rates[label].stderr), label)
-    return out
-
-
-def create_layout(f: h5py.File, kind: str, attrs: dict, *, grid: dict, labels: list, compositions: list,
-                  config_json: str, runfile_text: str, sets: dict, checksums: dict) -> None:
-    """The parts every results file has before its points (see the module notes): root attributes, run file,
-    configuration, cross-section sets, mixtures and the table's coordinates (``grid``: column → (n,) array)."""
-    import hashlib
-
-    n = len(grid["reduced_field_Td"])
-    write_root(f, kind, n_points=n, **attrs)
-    f.create_dataset("runfile", data=runfile_text, dtype=h5py.string_dtype()).attrs["sha256"] = \
-        hashlib.sha256(runfile_text.encode()).hexdigest()
-    f.create_dataset("config", data=config_json, dtype=h5py.string_dtype()).attrs["sha256"] = \
-        hashlib.sha256(config_json.encode()).hexdigest()
-    crosssections = f.create_group("crosssections")
-    write_crosssections(crosssections, sets)
-    crosssections.attrs.update(checksums)
-    mixtures = f.create_group("mixtures")
-    index = scale(mixtures, "mixture", np.arange(len(labels), dtype=np.int64))
-    attach(mixtures.create_dataset("label", data=list(labels), dtype=h5py.string_dtype()), index)
-    attach(mixtures.create_dataset("composition_json", data=list(compositions), dtype=h5py.string_dtype()), index)
-    table = f.create_group("table")
-    point = scale(table, "point", np.arange(n, dtype=np.int64))
-    for name, values in grid.items():
-        describe(attach(table.create_dataset(name, data=values), point), name)
-    label = table.create_dataset("mixture", data=[labels[i] for i in grid["mixture_index"]],
-                                 dtype=h5py.string_dtype())
-    attach(label, point).attrs["long_name"] = "mixture"
-    f.create_group("points")
-
-
-def table_columns(table: h5py.Group, quantity: str, process: str = "") -> tuple[h5py.Dataset, h5py.Dataset]:
-    """The columns ``quantity`` and ``quantity_stderr`` of ``/table`` (created, NaN-filled, on first use)."""
-    if quantity not in table:
-        coordinates = " ".join(name for name in ("mixture", *GRID_COLUMNS, *MAGNETIC_COLUMNS) if name in table)
-        extra = {"quantity": quantity, "coordinates": coordinates, **({"process": process} if process else {})}
-        for name in (quantity, quantity + Q.STDERR_SUFFIX):
-            column = table.create_dataset(name, data=np.full(table["point"].shape[0], np.nan))
-            describe(attach(column, table["point"]), quantity, **extra)
-    return table[quantity], table[quantity + Q.STDERR_SUFFIX]
-
-
-def write_point_file(path: str | Path, result) -> None:
-    """Write one result (``SwarmResult`` or ``TownsendResult``) as a new results file of kind "point" or
-    "steady-state" at ``path`` (not atomic by itself: :func:`avalanche.store.point.save_result` writes it under a
-    temporary name)."""
-    import hashlib
-
-    from .point import write_result
-
-    inputs = result.inputs
-    described = inputs.get("mixture", {})
-    steady = inputs.get("mode") == "steady-state-townsend"
-    seed = inputs.get("seed")
-    drive = inputs.get("drive") or {}
-    grid = {"mixture_index": np.zeros(1, dtype=np.int64),
-            "reduced_field_Td": np.array([float(result.reduced_field_Td)]),
-            "frequency_Hz": np.array([float(drive.get("frequency_Hz") or 0.0)]),
-            "seed": np.array([seed if isinstance(seed, int) else -1], dtype=np.int64)}
-    field = inputs.get("magnetic_field")
-    if field:
-        grid.update({name: np.array([float(field.get(name, np.nan))]) for name in MAGNETIC_COLUMNS})
-    mixture = getattr(result, "mixture", None)
-    sets = {c.name: c.cross_sections for c in mixture.components} if mixture is not None else {}
-    penning = (described.get("penning") or {}).get("groups")
-    spec = {"composition": described.get("composition", {}), "parameters": {}, **({"penning": penning} if penning
-                                                                                  else {})}
-    config = {"mode": "steady-state-townsend" if steady else "time-of-flight", "seed": seed,
-              "temperature_K": described.get("temperature_K"), "number_density_m3": described.get("number_density_m3"),
-              "pressure_Pa": described.get("pressure_Pa"), "mixtures": [spec],
-              "vibrational_temperature_K": described.get("vibrational_temperature_K"),
-              "settings": inputs.get("settings", {})}
-    config_json = json.dumps(config, sort_keys=True, separators=(",", ":"), default=str)
-    with h5py.File(path, "w") as f:
-        create_layout(f, "steady-state" if steady else "point",
-                      {"name": "", "description": "", "mode": config["mode"], "master_seed": json.dumps(seed),
-                       "runfile_source": "", "config_sha256": hashlib.sha256(config_json.encode()).hexdigest()},
-                      grid=grid, labels=[str(inputs.get("label", ""))], compositions=[json.dumps(spec["composition"])],
-                      config_json=config_json, runfile_text="", sets=sets,
-                      checksums=dict(described.get("checksums", {})))
-        group = f["points"].create_group(f"{0:06d}")
-        write_result(group, result)
-        for quantity, (value, stderr, process) in headline_values(result).items():
-            value_column, stderr_column = table_columns(f["table"], quantity, process)
-            value_column[0], stderr_column[0] = value, stderr
-        group.attrs.update({"sweep_index": 0, "sweep_seed": grid["seed"][0], "sweep_attempts": 1,
-                            "sweep_converged": bool(getattr(result, "converged", True)),
-                            "sweep_convergence_notes": json.dumps(list(getattr(result, "convergence_notes", []))),
-                            "sweep_status": STATUS_OK})
 
 
 def _now() -> str:
@@ -441,9 +331,7 @@ class ResultsWriter:
             self._point_attrs(group, point, info)
             group.attrs["sweep_converged"] = bool(getattr(result, "converged", True))
             group.attrs["sweep_convergence_notes"] = json.dumps(list(getattr(result, "convergence_notes", [])))
-            for quantity, (value, stderr, process) in headline_values(result).items():
-                value_column, stderr_column = table_columns(self.file["table"], quantity, process)
-                value_column[point.index], stderr_column[point.index] = value, stderr
+            write_table_row(self.file["table"], point.index, result)
             group.attrs["sweep_status"] = STATUS_OK
             self.file.flush()
         except OSError as exc:

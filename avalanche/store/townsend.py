@@ -25,7 +25,7 @@ import h5py
 import numpy as np
 
 from ..errors import AvalancheError
-from .layout import attach, json_text, scale, write_inputs
+from .layout import attach, json_text, read_estimates, scale, write_estimates, write_inputs
 
 PAYLOAD = "steady-state point"
 _SCALARS = ("events", "pilot_events", "batches", "cpu_seconds", "wall_seconds", "equilibrium_from_m",
@@ -38,7 +38,6 @@ def write_townsend(group: h5py.Group, result) -> None:
     """Write a :class:`~avalanche.engine.townsend.TownsendResult` into the (empty) HDF5 group ``group``."""
     from ..engine.townsend import PROFILE_UNITS
     from ..engine.townsend_estimators import TALLY_FIELDS
-    from .point import write_estimates
 
     inputs = result.inputs
     mixture = inputs.get("mixture", {})
@@ -84,7 +83,6 @@ def read_townsend(group: h5py.Group):
         If the group is not a Townsend point, has another format version, or lacks a part (named).
     """
     from ..engine.townsend import TownsendResult
-    from .point import read_estimates
 
     where = f"{group.file.filename}:{group.name}"
     attrs = group.attrs
