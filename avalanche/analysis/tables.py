@@ -657,8 +657,8 @@ def read_table(path) -> FluidTable:
     Raises
     ------
     ConfigError
-        If the file is missing, is not such a table (or one of an older format: write it again with
-        ``avalanche table``), or has rows of the wrong length.
+        If the file is missing, is not such a table, or has rows of the wrong length. Tables of the older formats
+        (1 and 2) still read.
     """
     path = Path(path)
     if not path.is_file():
@@ -669,27 +669,34 @@ def read_table(path) -> FluidTable:
     comments = [line[1:].strip() for line in lines if line.startswith("#")]
     body = [line for line in lines if line.strip() and not line.startswith("#")]
     metadata = _parse_header(comments, path)
-    version = re.match(r"avalanche fluid-model table \(format (\d+)\)", comments[0])
-    if version is None or int(version.group(1)) != _TABLE_FORMAT:
-        raise ConfigError(f"{path}: written by an older avalanche version (table format "
-                          f"{version.group(1) if version else '?'}, this version reads {_TABLE_FORMAT}); write it "
-                          "again with `avalanche table` from the results file")
     processes = {line.split(": ", 1)[0][len("process of "):]: line.split(": ", 1)[1]
                  for line in comments if line.startswith("process of ")}
-    if any(line.startswith("last comment line: column names") for line in comments):
+    units_line = next((line for line in comments if line.startswith("units: ")), None)
+    unit_of = {} if units_line is None else dict(item.split(" = ", 1) for item in units_line[len("units: "):]
+                                                 .split("; ") if " = " in item)
+    if any(line.startswith("last comment line: column names") for line in comments):  # text
         names = comments[-1].split()
-        units_line = next((line for line in comments if line.startswith("units: ")), "units: ")
-        unit_of = dict(item.split(" = ", 1) for item in units_line[len("units: "):].split("; ") if " = " in item)
         units = [("" if unit_of.get(name, "-") == "-" else unit_of[name]) for name in names]
         rows = [line.split() for line in body]
-    else:
+    elif any("last two comment lines" in line for line in comments):  # text of format 2: names, then units
+        names = comments[-2].split()
+        units = [("" if u == "-" else u.replace("_", " ")) for u in comments[-1].split()]
+        rows = [line.split() for line in body]
+    elif any(line.startswith("next line: column names") for line in comments):  # CSV of format 1
+        parsed = list(csv.reader(body))
+        names, units, rows = parsed[0], parsed[1], parsed[2:]
+    else:  # CSV: one header line of name[unit] labels (format 2: plain names and a "# units:" line)
         parsed = list(csv.reader(body))
         labels, rows = (parsed[0], parsed[1:]) if parsed else ([], [])
         split = [re.fullmatch(r"([0-9A-Za-z_]+)(?:\[(.*)\])?", label) for label in labels]
         if not labels or not all(split):
             raise ConfigError(f"{path}: the header line should hold name[unit] labels; write the table with "
                               "`avalanche table`")
-        names, units = [m.group(1) for m in split], [m.group(2) or "" for m in split]
+        names = [m.group(1) for m in split]
+        units = [m.group(2) if m.group(2) is not None else
+                 ("" if unit_of.get(m.group(1), "-") == "-" else unit_of[m.group(1)]) for m in split]
+    if len(names) != len(units):
+        raise ConfigError(f"{path}: {len(names)} column names but {len(units)} units; the header is damaged")
     for number, row in enumerate(rows, start=1):
         if len(row) != len(names):
             raise ConfigError(f"{path}: data row {number} has {len(row)} values for {len(names)} columns")

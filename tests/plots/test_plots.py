@@ -66,7 +66,7 @@ def test_swarm_plot_shows_the_file_data(argon, outputs_results, tmp_path):  # no
     results = open_results(outputs_results)
     rows = results.grid["mixture_index"] == 0
     drawn = lines_by_gid(figure)
-    for name in ("mean_energy_eV", "drift_velocity_flux", "drift_velocity_bulk", "long_diffusion_N_bulk", "alpha_N"):
+    for name in ("mean_energy_eV", "drift_velocity_flux", "drift_velocity_bulk", "N_D_L_bulk", "alpha_N"):
         fields, values = results.grid["reduced_field_Td"][rows], results.value(name)[rows]
         errors = results.stderr(name)[rows]
         shown = np.isfinite(values) & (values > 0)  # log axes: zero or undefined values are left out
@@ -114,7 +114,7 @@ def test_reference_overlay(argon, tmp_path):
 def test_quantity_selection(argon):
     drawn = lines_by_gid(plot_swarm_parameters(argon, ["drift_velocity_bulk", "rate_coefficients"]))
     assert "drift_velocity_bulk" in drawn and "drift_velocity_flux" not in drawn
-    assert "rate_coefficient:1s4 (3p5 4s [3/2]1, resonant)" in drawn
+    assert "rate_coefficient_1s4_3p5_4s_3_2_1_resonant" in drawn
     with pytest.raises(ConfigError, match="did you mean 'mean_energy_eV'"):
         plot_swarm_parameters(argon, ["mean_energy"])
 
@@ -123,8 +123,8 @@ def test_labels_are_our_own_and_do_not_overlap(argon):
     # several quantities at once: no two tick or axis labels of the figure overlap once drawn (the figure's own
     # renderer measures them), the series of the computed data is not named after the package, the title holds
     # no file name, and a log axis spanning less than two decades shows plain numbers ("6", not "6×10⁰")
-    figure = plot_swarm_parameters(argon, ["mean_energy_eV", "drift_velocity", "long_diffusion_N",
-                                           "trans_diffusion_N", "alpha_N", "eta_N", "rate_coefficients"])
+    figure = plot_swarm_parameters(argon, ["mean_energy_eV", "drift_velocity", "N_D_L",
+                                           "N_D_T", "alpha_N", "eta_N", "rate_coefficients"])
     renderer = FigureCanvasAgg(figure).get_renderer()
     figure.draw(renderer)
     for ax in figure.axes:

@@ -18,6 +18,7 @@ import numpy as np
 import pytest
 
 from avalanche.errors import ConfigError
+from avalanche.quantities import rate_name
 from avalanche.store.sweep_file import open_results
 from avalanche.sweep.execution import LocalPool, compute_point, run_sweep
 from avalanche.sweep.runfile import load_runfile
@@ -209,7 +210,7 @@ def test_a_sweep_fills_its_results_file(one_worker, sweep_file):
     point = res.point(2)
     assert point.mean_energy_eV.value == mean[2] and point.mean_energy_eV.stderr == res.stderr("mean_energy_eV")[2]
     assert point.reduced_field_Td == 18.0
-    assert set(point.rate_coefficients) and all(f"rate_coefficient:{k}" in res.units for k in point.rate_coefficients)
+    assert set(point.rate_coefficients) and all(rate_name(k) in res.units for k in point.rate_coefficients)
 
 
 def test_two_workers_give_bitwise_the_same_results(one_worker, sweep_file):
