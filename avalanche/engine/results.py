@@ -214,6 +214,10 @@ class SwarmResult:
     def __getattr__(self, name: str):
         return _lookup(self, name)
 
+    def __getstate__(self):
+        # the mixture stays with the process that ran the point (model gases hold functions that do not pickle)
+        return {**self.__dict__, "mixture": None}
+
     def __dir__(self):
         return sorted(set(super().__dir__()) | set(self.quantities()))
 

@@ -79,7 +79,7 @@ def test_demo_runs_the_whole_job_and_says_where_each_output_went(capsys, tmp_pat
     names = _csv_names(tmp_path / "demo_rates.csv")
     assert list(rows[:, 0]) == list(DEMO_FIELDS_Td)
     # alpha/N rises with E/N in argon (Raizer 1991, Gas Discharge Physics, table 4.1 Townsend formula — from memory)
-    alpha = rows[:, names.index("alpha_N")]
+    alpha = rows[:, names.index("alpha_N[m^2]")]
     assert np.all(alpha > 0) and np.all(np.diff(alpha) > 0)
     assert "Caution" in out and "local electrical codes" in out
     assert re.search(r"regime: (quasi-static|effective-field|neither) \(omega/nu_m = ", out)
