@@ -375,15 +375,16 @@ def _write_emission_csv(path: Path, estimates, source: str) -> Path:
     buffer = io.StringIO()
     buffer.write(f"# avalanche emission estimate, {source}\n# {APPROXIMATION_NOTE}\n")
     writer = csv.writer(buffer, lineterminator="\n")
-    writer.writerow(["reduced_field_Td", "species", "level", "wavelength_nm", "photon_energy_eV",
-                     "emission_coefficient_m3_s", "emission_coefficient_stderr", "relative_rate", "relative_power"])
-    writer.writerow(["Td", "", "", "nm", "eV", "m3/s", "m3/s", "", ""])
+    writer.writerow(["reduced_field_Td[Td]", "species", "level", "wavelength_nm[nm]", "photon_energy_eV[eV]",
+                     "emission_coefficient[m^3/s]", "emission_coefficient_stderr[m^3/s]", "relative_rate[1]",
+                     "relative_power[1]"])
     for estimate in estimates:
         columns = (estimate.emission_coefficient_m3_s, estimate.emission_coefficient_stderr, estimate.relative_rate,
                    estimate.relative_power)
         for k, level in enumerate(estimate.levels):
-            writer.writerow([repr(estimate.reduced_field_Td), level.species, level.label, repr(level.wavelength_nm),
-                             repr(level.photon_energy_eV), *(repr(float(column[k])) for column in columns)])
+            writer.writerow([f"{estimate.reduced_field_Td:.7g}", level.species, level.label,
+                             f"{level.wavelength_nm:.7g}", f"{level.photon_energy_eV:.7g}",
+                             *(f"{float(column[k]):.7g}" for column in columns)])
     path.parent.mkdir(parents=True, exist_ok=True)
     path.write_text(buffer.getvalue(), encoding="utf-8")
     return path

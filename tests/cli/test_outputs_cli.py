@@ -199,8 +199,10 @@ def test_emission_command(outputs_results, tmp_path, capsys):
     for name in ("outputs_emission_240Td.png", "outputs_emission_240Td.pdf", "outputs_emission.csv"):
         assert (tmp_path / name).stat().st_size > 0
     rows = [line for line in (tmp_path / "outputs_emission.csv").read_text().splitlines() if not line.startswith("#")]
-    assert rows[1] == "Td,,,nm,eV,m3/s,m3/s,,"
-    assert len(rows) == 2 + 3  # Ar 1s2, Ar 1s4, N2 C state
+    assert rows[0] == ("reduced_field_Td[Td],species,level,wavelength_nm[nm],photon_energy_eV[eV],"
+                       "emission_coefficient[m^3/s],emission_coefficient_stderr[m^3/s],relative_rate[1],"
+                       "relative_power[1]")  # one header line, units in brackets
+    assert len(rows) == 1 + 3  # Ar 1s2, Ar 1s4, N2 C state
     code, out, _ = run(capsys, "emission", outputs_results, "--mixture", "Ar", "--json", "--out", tmp_path)
     data = json.loads(out)
     assert code == 0 and len(data["estimates"]) == 4 and data["estimates"][0]["note"] == APPROXIMATION_NOTE
