@@ -16,7 +16,7 @@ from pathlib import Path
 import numpy as np
 
 from .. import quantities as Q
-from ..analysis.tables import RATE_PREFIX, SwarmTable, did_you_mean, fluid_table
+from ..analysis.tables import SwarmTable, did_you_mean, fluid_table
 from ..constants import BOLTZMANN_J_K, STANDARD_ATMOSPHERE_Pa, TORR_Pa, TOWNSEND_V_m2
 from ..errors import ConfigError
 from .common import (
@@ -365,8 +365,10 @@ def _phase_rates(resolved) -> dict:
     nested = resolved.get("rate_coefficients")
     if nested is not None:
         return {key: value_error(entry) for key, entry in nested.items()}
-    return {name[len(RATE_PREFIX):]: value_error(entry) for name, entry in resolved.items()
-            if name.startswith(RATE_PREFIX)}
+    # the engine keys each process's phase-resolved rate by its label ("rate_coefficient:<label>" where the label
+    # is also the name of a quantity); the quantities of avalanche.quantities have a unit, processes do not
+    return {name.removeprefix("rate_coefficient:"): value_error(entry) for name, entry in resolved.items()
+            if name.startswith("rate_coefficient:") or not Q.unit(name)}
 
 
 def _write_emission_csv(path: Path, estimates, source: str) -> Path:
