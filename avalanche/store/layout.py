@@ -107,6 +107,20 @@ def attach(ds: h5py.Dataset, *scales: h5py.Dataset) -> h5py.Dataset:
     return ds
 
 
+def attach_dims(group: h5py.Group, ds: h5py.Dataset, names) -> h5py.Dataset:
+    """Attach a dimension scale to every dimension of ``ds``: the scale ``names[k]`` of ``group`` when it exists
+    with the right length, else an index scale of that name created in ``group`` (``<name>_<length>`` when the
+    name is taken by a scale of another length). netCDF readers need every dimension of a variable named."""
+    for axis, size in enumerate(ds.shape):
+        name = names[axis] if axis < len(names) else f"{ds.name.rsplit('/', 1)[1]}_dim{axis}"
+        if name in group and group[name].shape != (size,):
+            name = f"{name}_{size}"
+        if name not in group:
+            scale(group, name, np.arange(size, dtype=np.int64))
+        ds.dims[axis].attach_scale(group[name])
+    return ds
+
+
 def write_pair(group: h5py.Group, name: str, value, stderr, scales=(), **extra) -> None:
     """Datasets ``name`` and ``name_stderr`` (arrays of one shape, or scalars), described from the table of
     quantities, with ``scales`` attached."""

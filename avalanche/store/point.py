@@ -56,6 +56,7 @@ from .layout import (
     MAGNETIC_COLUMNS,
     STATUS_OK,
     attach,
+    attach_dims,
     check_root,
     create_layout,
     json_text,
@@ -77,6 +78,8 @@ TIME_SERIES_UNITS = {"time_s": "s", "duration_s": "s", "sampling": "1", "electro
                      "collision_frequency": "1/s", "net_production_frequency": "1/s"}
 _SCALARS = ("events", "cpu_seconds", "wall_seconds", "relaxation_time_s", "sampled_time_s", "extrapolated_fraction")
 AXES = ("E", "ExB", "third")
+TALLY_DIMS = {"B": ("energy_bin",), "P": ("process",), "3": ("axis",), "3x3": ("axis", "axis_column")}
+"""Dimension names of the tallies' shape codes (:data:`avalanche.engine.tallies.FIELDS`) after ``replica``."""
 
 
 def write_result(group: h5py.Group, result: SwarmResult) -> None:
@@ -123,15 +126,13 @@ def write_result(group: h5py.Group, result: SwarmResult) -> None:
                 attach(ds, chunks)
     if result.tallies is not None:
         tallies = group.create_group("tallies")
-        replicas = scale(tallies, "replica", np.arange(len(result.tallies["events"])))
-        for name, (_, _, units, description) in {**FIELDS, **MAGNETIC_FIELDS}.items():
+        for name, (_, shape, units, description) in {**FIELDS, **MAGNETIC_FIELDS}.items():
             if name not in result.tallies.arrays:
                 continue
             ds = tallies.create_dataset(name, data=result.tallies[name])
             ds.attrs["units"] = units.replace("m2", "m^2")
             ds.attrs["description"] = description
-            if ds.ndim and ds.shape[0] == replicas.shape[0]:
-                attach(ds, replicas)
+            attach_dims(tallies, ds, ("replica", *TALLY_DIMS.get(shape, ())))
     if result.phase is not None:
         _write_phase(group.create_group("phase"), result)
     if result.magnetic is not None:
@@ -170,7 +171,8 @@ def _write_phase(group: h5py.Group, result: SwarmResult) -> None:
     if result.phase_tallies is not None:
         tallies = group.create_group("tallies")
         for name in ("sums", "counts", "process"):
-            tallies.create_dataset(name, data=getattr(result.phase_tallies, name))
+            ds = tallies.create_dataset(name, data=getattr(result.phase_tallies, name))
+            attach_dims(tallies, ds, ("replica", "phase_bin", f"{name}_column"))
 
 
 def _read_phase(group: h5py.Group) -> dict:

@@ -25,7 +25,7 @@ import h5py
 import numpy as np
 
 from ..errors import AvalancheError
-from .layout import attach, json_text, read_estimates, scale, write_estimates, write_inputs
+from .layout import attach, attach_dims, json_text, read_estimates, scale, write_estimates, write_inputs
 
 PAYLOAD = "steady-state point"
 _SCALARS = ("events", "pilot_events", "batches", "cpu_seconds", "wall_seconds", "equilibrium_from_m",
@@ -69,9 +69,13 @@ def write_townsend(group: h5py.Group, result) -> None:
             attach(ds, scales[ds.shape[0]])
     tallies = group.create_group("tallies")
     described = {n: (u, d) for n, (_, u, d) in TALLY_FIELDS.items()} | _EXTRA_TALLIES
+    shapes = {n: shape for n, (shape, _, _) in TALLY_FIELDS.items()}
     for name, values in result.tallies.items():
         ds = tallies.create_dataset(name, data=np.asarray(values))
         ds.attrs["units"], ds.attrs["description"] = described.get(name, ("", ""))
+        dims = ("process",) if name in _EXTRA_TALLIES else {"J+1": ("plane",), "J": ("slab",)}.get(
+            shapes.get(name, ""), ())
+        attach_dims(tallies, ds, ("replica", *dims) if ds.ndim > len(dims) else dims)
 
 
 def read_townsend(group: h5py.Group):

@@ -131,6 +131,26 @@ def test_xarray_opens_a_sweep_with_named_dimensions_and_units(outputs_results):
     np.testing.assert_array_equal(frame["alpha_N"].values, in_memory["alpha_N"].values)
 
 
+def test_every_group_of_a_point_file_opens_in_xarray(point_file, steady_state_file):
+    # netCDF readers need every dimension of a variable named (h5netcdf refuses a mix of named and unnamed ones)
+    xarray = pytest.importorskip("xarray")
+    pytest.importorskip("h5netcdf")
+    for path in (point_file, steady_state_file):
+        with h5py.File(path, "r") as f:
+            groups = ["/", *_groups(f)]
+        for group in groups:
+            with xarray.open_dataset(path, engine="h5netcdf", group=group) as ds:
+                assert not any(dim.startswith("phony_dim") for dim in ds.sizes), (path, group, dict(ds.sizes))
+    with xarray.open_dataset(point_file, engine="h5netcdf", group="points/000000/tallies") as ds:
+        assert ds["eedf_counts"].dims == ("replica", "energy_bin")
+
+
+def _groups(f: h5py.File) -> list[str]:
+    found = []
+    f.visititems(lambda name, obj: found.append(name) if isinstance(obj, h5py.Group) else None)
+    return found
+
+
 def test_a_point_reruns_from_its_file_alone(point_file):
     # The stored cross sections, composition, state, seed and settings give back the stored point bit for bit
     # (fixed-seed determinism, common practice for the Monte Carlo streams of numpy.random.SeedSequence).
