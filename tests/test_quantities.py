@@ -70,6 +70,10 @@ def test_rate_coefficients_answer_to_their_quantity_name():
 def test_old_names_in_a_precision_target_and_a_table_are_renamed():
     with pytest.warns(DeprecationWarning, match="'mobility_N' is deprecated"):
         assert parse_precision({"mobility_N": 0.02})[1] == (("N_mu", 0.02),)
+    from avalanche.engine.time_of_flight import make_settings
+
+    with pytest.warns(DeprecationWarning, match="'trans_diffusion_N_flux' is deprecated"):
+        assert make_settings(precision_on="trans_diffusion_N_flux").precision_on == "N_D_T_flux"
     with pytest.warns(DeprecationWarning, match="'long_diffusion_N_bulk' is deprecated"):
         table = SwarmTable([1.0, 2.0], {"long_diffusion_N_bulk": ([1.0, 2.0], [0.1, 0.1])})
     assert table.names == ["N_D_L_bulk"]

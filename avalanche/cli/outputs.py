@@ -12,6 +12,7 @@ from pathlib import Path
 
 import numpy as np
 
+from .. import quantities as Q
 from ..analysis.magnetic import MagneticDriftTable
 from ..analysis.tables import SwarmTable, fluid_table
 from ..errors import ConfigError
@@ -31,6 +32,19 @@ from .common import (
     value_error,
 )
 from .registry import command
+
+
+def _quantities(text: str | None, command_name: str) -> list[str] | None:
+    """The ``--quantity`` list, names of version 0.1 replaced by the current ones (with a deprecation note)."""
+    names = split_list(text)
+    if names is None:
+        return None
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always")
+        names = [Q.current_name(name) for name in names]
+    show_warnings(caught, command_name)
+    return names
+
 
 # --- plot ---------------------------------------------------------------------------------------------------------
 
@@ -145,7 +159,7 @@ def _plot(args) -> int:
     written = []
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always")
-        figure = plot_swarm_parameters(table, split_list(args.quantity), reference, handbook)
+        figure = plot_swarm_parameters(table, _quantities(args.quantity, "plot"), reference, handbook)
         written += save_figure(figure, out / f"{stem}_swarm", formats)
         _handbook_note(figure, table, handbook)
         if (args.eedf or "").lower() != "none":
@@ -217,7 +231,7 @@ def _table(args) -> int:
             print(f"wrote {args.out} (drift velocity components and Lorentz angle, csv)")
         return 0
     table = load_table(results, args, "table")
-    fluid = fluid_table(table, against=args.against, quantities=split_list(args.quantity))
+    fluid = fluid_table(table, against=args.against, quantities=_quantities(args.quantity, "table"))
     fmt = args.table_format or ("text" if args.out and Path(args.out).suffix.lower() in (".txt", ".dat") else "csv")
     if args.digits < 0 or args.digits > 17:
         raise ConfigError(f"--digits {args.digits}: give 1 to 17 significant digits, or 0 for the exact form")
