@@ -227,7 +227,7 @@ def _table(args) -> int:
             sys.stdout.write(text)
         else:
             Path(args.out).parent.mkdir(parents=True, exist_ok=True)
-            Path(args.out).write_text(text, encoding="utf-8")
+            write_atomically(args.out, lambda temporary: temporary.write_text(text, encoding="utf-8"))
             print(f"wrote {args.out} (drift velocity components and Lorentz angle, csv)")
         return 0
     table = load_table(results, args, "table")
