@@ -40,12 +40,12 @@ def main(argv=None) -> dict:
     print(f"regime: {regime['verdict']} (omega/nu_energy = {regime['omega_over_nu_energy']:.3g})")
     print(f"  {regime['statement']}")
     print(f"cycle average: mean energy {result.mean_energy_eV} eV, "
-          f"ionization rate coefficient {result.ionization_rate_coefficient} m3/s")
+          f"ionization rate coefficient {result.ionization_rate_coefficient} m^3/s")
     drift = result.phase_resolved["drift_velocity_flux"]
     h = first_harmonic(result.phase, drift.value, drift.stderr)
     print(f"drift velocity: amplitude {h.amplitude:.4g} ± {h.amplitude_stderr:.2g} m/s, lag {h.lag_rad:.3g} rad "
           f"behind the field (cycle average {h.mean:.3g} m/s)")
-    print(f"{'phase [rad]':>11} {'E/N [Td]':>9} {'mean energy [eV]':>17} {'k_iz [m3/s]':>12}")
+    print(f"{'phase [rad]':>11} {'E/N [Td]':>9} {'mean energy [eV]':>17} {'k_iz [m^3/s]':>12}")
     energy = result.phase_resolved["mean_energy_eV"].value
     k_iz = result.phase_resolved["ionization_rate_coefficient"].value
     field = result.phase_resolved["reduced_field_Td"].value

@@ -39,7 +39,7 @@ def main(argv=None) -> dict:
     rows = []
     for field, result in zip(fields, results, strict=True):
         w_flux, w_bulk = result.drift_velocity_flux.value, result.drift_velocity_bulk.value
-        nd_l, nd_t = result.long_diffusion_N_bulk.value, result.trans_diffusion_N_bulk.value
+        nd_l, nd_t = result.N_D_L_bulk.value, result.N_D_T_bulk.value
         sigma_l = math.sqrt(2 * nd_l / density * 0.01 / w_bulk) * 1e6
         sigma_t = math.sqrt(2 * nd_t / density * 0.01 / w_bulk) * 1e6
         rows.append((field, w_flux, w_bulk, nd_l, nd_t))

@@ -13,11 +13,11 @@ import sys
 from pathlib import Path
 
 PACKAGE = Path(__file__).resolve().parents[1] / "avalanche"
-BASE = {"_version", "constants", "errors"}
+BASE = {"_version", "constants", "errors", "quantities"}
 ALLOWED = {
     "base": set(),
     "kernels": {"constants"},
-    "gas": {"constants", "errors", "_version"},
+    "gas": {"constants", "errors", "_version", "quantities"},
     "engine": {"kernels", "gas"} | BASE,
     "gaps": {"kernels", "gas", "engine"} | BASE,
     "store": {"gaps", "engine", "gas"} | BASE,

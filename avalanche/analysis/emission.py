@@ -173,7 +173,7 @@ class EmissionEstimate:
         lines = [f"Emission estimate{field}", APPROXIMATION_NOTE,
                  f"{'level':<{width}}  {'wavelength':>10}  {'photon':>7}  {'x k (photons/s per electron per m^-3)':>39}"
                  f"  {'relative':>8}  {'relative':>8}",
-                 f"{'':<{width}}  {'[nm]':>10}  {'[eV]':>7}  {'[m3/s]':>39}  {'rate':>8}  {'power':>8}"]
+                 f"{'':<{width}}  {'[nm]':>10}  {'[eV]':>7}  {'[m^3/s]':>39}  {'rate':>8}  {'power':>8}"]
         for k, level in enumerate(self.levels):
             coefficient = f"{self.emission_coefficient_m3_s[k]:.4e} ± {self.emission_coefficient_stderr[k]:.2e}"
             lines.append(f"{level.name:<{width}}  {level.wavelength_nm:>10.5g}  {level.photon_energy_eV:>7.4g}  "

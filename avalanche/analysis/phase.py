@@ -17,6 +17,7 @@ from dataclasses import dataclass, replace
 import numpy as np
 
 from ..errors import ConfigError
+from ..quantities import QUANTITIES
 
 __all__ = ["DRIFT_AMPLITUDE", "DRIFT_LAG", "HARMONIC_UNITS", "Harmonic", "first_harmonic",
            "drift_harmonic_quantities", "with_drift_harmonic"]
@@ -25,8 +26,8 @@ DRIFT_AMPLITUDE = "drift_velocity_amplitude"
 """Name of the first-harmonic amplitude W_1 of the flux drift velocity over the cycle [m/s]."""
 DRIFT_LAG = "drift_velocity_phase_lag_rad"
 """Name of the phase lag φ of the drift velocity behind the field, W ≈ W_1 sin(ωt − φ) [rad]."""
-HARMONIC_UNITS = {DRIFT_AMPLITUDE: "m/s", DRIFT_LAG: "rad"}
-"""Units of the first-harmonic quantities."""
+HARMONIC_UNITS = {name: QUANTITIES[name].unit for name in (DRIFT_AMPLITUDE, DRIFT_LAG)}
+"""Units of the first-harmonic quantities (from :mod:`avalanche.quantities`)."""
 
 
 @dataclass(frozen=True)

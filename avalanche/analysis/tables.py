@@ -24,6 +24,7 @@ from pathlib import Path
 
 import numpy as np
 
+from .. import quantities as Q
 from .._version import __version__
 from ..errors import ConfigError, PhysicsWarning
 from ..gas.crosssections import _did_you_mean as did_you_mean
@@ -34,52 +35,33 @@ __all__ = [
     "fluid_table", "read_table",
 ]
 
-QUANTITY_UNITS: dict[str, str] = {
-    "reduced_field_Td": "Td",
-    "mean_energy_eV": "eV",
-    "characteristic_energy_eV": "eV",
-    "drift_velocity_flux": "m/s",
-    "drift_velocity_bulk": "m/s",
-    "mobility_N": "1/(V m s)",
-    "long_diffusion_N_flux": "1/(m s)",
-    "long_diffusion_N_bulk": "1/(m s)",
-    "trans_diffusion_N_flux": "1/(m s)",
-    "trans_diffusion_N_bulk": "1/(m s)",
-    "alpha_N": "m2",
-    "eta_N": "m2",
-    "effective_alpha_N": "m2",
-    "alpha_N_simple": "m2",
-    "eta_N_simple": "m2",
-    "ionization_rate_coefficient": "m3/s",
-    "attachment_rate_coefficient": "m3/s",
-    "excitation_rate_coefficient": "m3/s",
-    "penning_ionization_rate_coefficient": "m3/s",
-    "penning_fraction": "1",
-    "effective_ionization_frequency": "1/s",
-    "collision_frequency": "1/s",
-}
-"""Units of the swarm quantities, by the engine's names (SI, electron energy in eV; plain ASCII as in files)."""
+QUANTITY_UNITS: dict[str, str] = {name: Q.unit(name) for name in (
+    "reduced_field_Td", "mean_energy_eV", "characteristic_energy_eV", "drift_velocity_flux", "drift_velocity_bulk",
+    "N_mu", "N_D_L_flux", "N_D_L_bulk", "N_D_T_flux", "N_D_T_bulk", "alpha_N", "eta_N", "effective_alpha_N",
+    "alpha_N_simple", "eta_N_simple", "ionization_rate_coefficient", "attachment_rate_coefficient",
+    "excitation_rate_coefficient", "penning_ionization_rate_coefficient", "penning_fraction",
+    "effective_ionization_frequency", "collision_frequency", "relaxation_length_m")}
+"""Units of the swarm quantities of a table, from :mod:`avalanche.quantities`."""
 
-RATE_PREFIX = "rate_coefficient:"
-"""Prefix of per-process rate coefficients [m³/s]: ``rate_coefficient:<key>`` with the engine's process key
-(the process label, or ``<species>:<label>`` in a mixture)."""
+RATE_PREFIX = Q.RATE_PREFIX
+"""Prefix of per-process rate coefficients [m^3/s]: ``rate_coefficient_<process>``
+(:func:`avalanche.quantities.rate_name`)."""
 
 COORDINATES = {"reduced-field": "reduced_field_Td", "mean-energy": "mean_energy_eV"}
 """Table coordinates (command-line spelling → column name)."""
 
-_TABLE_FORMAT = 2
+_TABLE_FORMAT = 3
 
 
 def rate_quantity(key: str) -> str:
-    """Quantity name of the rate coefficient of process ``key``."""
-    return f"{RATE_PREFIX}{key}"
+    """Quantity name of the rate coefficient of process ``key`` (:func:`avalanche.quantities.rate_name`)."""
+    return Q.rate_name(key)
 
 
 def quantity_unit(name: str) -> str:
-    """Unit of quantity ``name`` (``''`` when unknown), e.g. ``'m2'`` for ``alpha_N``."""
-    if name.startswith(RATE_PREFIX):
-        return "m3/s"
-    return QUANTITY_UNITS.get(name, "")
+    """Unit of quantity ``name`` (``''`` when unknown), e.g. ``'m^2'`` for ``alpha_N``
+    (:func:`avalanche.quantities.unit`)."""
+    return Q.unit(name)
 
 
 def _array(name: str, value, owner: str, size: int | None = None) -> np.ndarray:
@@ -103,7 +85,9 @@ class SwarmTable:
         E/N [Td] (> 0, distinct); the table is sorted by it on construction.
     quantities : mapping
         Quantity name → ``(values, stderr)``, one value per field, in the units of :func:`quantity_unit`
-        (SI, energies in eV). Per-process rate coefficients are named ``rate_coefficient:<key>``.
+        (SI, energies in eV). Per-process rate coefficients are named ``rate_coefficient_<process>``
+        (:func:`avalanche.quantities.rate_name`). Names of version 0.1 (``mobility_N``, ...) are renamed with a
+        :class:`DeprecationWarning`.
     gas_label : str
         The mixture, e.g. ``"Ar"`` or ``"Ne:0.99,Ar:0.01"``.
     temperature_K, number_density_m3 : float, optional
@@ -129,6 +113,8 @@ class SwarmTable:
         list into the table's header (``not_converged``).
     converged : array_like of bool, optional
         Per point, whether it converged (default: all); :meth:`coefficient_table` leaves the others out.
+    processes : mapping, optional
+        Rate-coefficient quantity name → the exact process label (default: the part after the prefix).
 
     Raises
     ------
@@ -151,6 +137,7 @@ class SwarmTable:
     notes: list[str] = field(default_factory=list)
     not_converged: list[str] = field(default_factory=list)
     converged: np.ndarray | None = None
+    processes: dict[str, str] = field(default_factory=dict)
 
     def __post_init__(self):
         owner = f"SwarmTable({self.source or self.gas_label or 'data'})"
@@ -172,7 +159,7 @@ class SwarmTable:
             errors = _array(f"{name} stderr", errors, owner, fields.size)[order]
             if np.any(errors[np.isfinite(errors)] < 0.0):
                 raise ConfigError(f"{owner}: {name} has a negative standard error; errors must be ≥ 0")
-            quantities[str(name)] = (values, errors)
+            quantities[Q.current_name(str(name))] = (values, errors)
         if self.point_index is not None:
             self.point_index = np.asarray(self.point_index, dtype=np.int64).reshape(-1)[order]
         converged = np.ones(fields.size, dtype=bool) if self.converged is None else \
@@ -182,7 +169,9 @@ class SwarmTable:
         self.converged = converged[order]
         self.reduced_field_Td = fields
         self.quantities = quantities
-        self.units = {str(k): str(v) for k, v in dict(self.units).items()}
+        self.units = {Q.current_name(str(k), warn=False): str(v) for k, v in dict(self.units).items()}
+        self.processes = {name: dict(self.processes).get(name, name[len(RATE_PREFIX):]) for name in quantities
+                          if name.startswith(RATE_PREFIX)}
         self.eedf = {float(k): v for k, v in dict(self.eedf).items()}
 
     @property
@@ -203,8 +192,15 @@ class SwarmTable:
 
     @property
     def rate_keys(self) -> list[str]:
-        """Process keys of the per-process rate coefficients present."""
-        return [name[len(RATE_PREFIX):] for name in self.quantities if name.startswith(RATE_PREFIX)]
+        """Process labels of the per-process rate coefficients present."""
+        return list(self.processes.values())
+
+    def rate(self, process: str) -> tuple[np.ndarray, np.ndarray]:
+        """``(values, stderr)`` of the rate coefficient of ``process`` (its label or its quantity name)."""
+        for name, key in self.processes.items():
+            if process in (key, name):
+                return self.quantities[name]
+        return self.get(rate_quantity(process))
 
     def coefficient_table(self, alpha: str = "alpha_N", eta: str = "eta_N",
                           temperature_K: float | None = None) -> CoefficientTable:
@@ -267,7 +263,8 @@ class SwarmTable:
                           number_density_m3=self.number_density_m3, composition=self.composition,
                           source=self.source, units=self.units, parameters=self.parameters,
                           checksums=self.checksums, not_converged=self.not_converged + other.not_converged,
-                          converged=np.concatenate((self.converged, other.converged)))
+                          converged=np.concatenate((self.converged, other.converged)),
+                          processes={**other.processes, **self.processes})
 
     def build_mixture(self):
         """The :class:`~avalanche.gas.mixture.Mixture` of the runs (composition, model-gas parameters, T, N).
@@ -294,19 +291,20 @@ class SwarmTable:
     def from_swarm_results(cls, results: Sequence, source: str = "computed") -> SwarmTable:
         """Table of engine results (:class:`avalanche.engine.results.SwarmResult`), one per reduced field.
 
-        Every estimate becomes a quantity, each process rate coefficient ``rate_coefficient:<key>``, and the
+        Every estimate becomes a quantity, each process rate coefficient ``rate_coefficient_<process>``, and the
         EEDFs are kept. The gas, temperature and density are those of the first result.
         """
         results = list(results)
         if not results:
             raise ConfigError("SwarmTable.from_swarm_results: no results given")
         names = list(dict.fromkeys(name for r in results for name in r.estimates))
-        names += list(dict.fromkeys(rate_quantity(key) for r in results
-                                    for key in getattr(r, "rate_coefficients", {})))
+        processes = Q.rate_names(dict.fromkeys(key for r in results for key in getattr(r, "rate_coefficients", {})))
+        by_name = {name: key for key, name in processes.items()}
+        names += list(by_name)
 
         def estimate(result, name):
-            if name.startswith(RATE_PREFIX):
-                return getattr(result, "rate_coefficients", {}).get(name[len(RATE_PREFIX):])
+            if name in by_name:
+                return getattr(result, "rate_coefficients", {}).get(by_name[name])
             return result.estimates.get(name)
 
         quantities = {}
@@ -324,7 +322,7 @@ class SwarmTable:
                    checksums=dict(described.get("checksums", {})),
                    not_converged=[f"E/N {r.reduced_field_Td:g} Td: {'; '.join(r.convergence_notes)}" for r in results
                                   if not getattr(r, "converged", True)],
-                   converged=[bool(getattr(r, "converged", True)) for r in results])
+                   converged=[bool(getattr(r, "converged", True)) for r in results], processes=by_name)
 
     @classmethod
     def from_results(cls, results, mixture: str | int | None = None, frequency_Hz: float | None = None,
@@ -401,7 +399,8 @@ class SwarmTable:
                    units=dict(results.units), parameters=dict(spec.get("parameters", {})),
                    checksums=dict(results.checksums), point_index=grid["index"][done], notes=notes,
                    not_converged=unconverged,
-                   converged=grid["converged"][done] if "converged" in (grid.dtype.names or ()) else None)
+                   converged=grid["converged"][done] if "converged" in (grid.dtype.names or ()) else None,
+                   processes={q: p for q, p in getattr(results, "processes", {}).items() if q in quantities})
 
 
 def _magnetic_rows(grid, rows, source: str, tesla, hx, angle) -> np.ndarray:
@@ -460,12 +459,15 @@ class FluidTable:
         Column name → unit.
     metadata : dict
         Gas, temperature, density, source: written as comment lines.
+    processes : dict
+        Rate-coefficient column → its process label (written as ``# process of`` lines).
     """
 
     coordinate: str
     columns: dict[str, np.ndarray]
     units: dict[str, str]
     metadata: dict[str, str] = field(default_factory=dict)
+    processes: dict[str, str] = field(default_factory=dict)
 
     @property
     def names(self) -> list[str]:
@@ -491,29 +493,23 @@ class FluidTable:
         lines += [f"{key}: {value}" for key, value in self.metadata.items()]
         lines.append(f"coordinate: {self.coordinate}, sorted and strictly increasing; every quantity q is followed "
                      "by its standard error q_stderr")
+        lines += [f"process of {name}: {self.process(name)}" for name in self.names
+                  if name.startswith(RATE_PREFIX) and not name.endswith(Q.STDERR_SUFFIX)]
         return lines
 
+    def process(self, name: str) -> str:
+        """The process label of the rate-coefficient column ``name``."""
+        return self.processes.get(name.removesuffix(Q.STDERR_SUFFIX), name[len(RATE_PREFIX):])
+
     def column_labels(self) -> dict[str, str]:
-        """Column name → the label written in files: the name itself, or for a per-process rate coefficient
-        (``rate_coefficient:<process>``) ``rate_coefficient_<process>`` with every run of characters other than
-        letters and digits turned into ``_``, so that every label is a valid identifier for pandas, numpy and
-        spreadsheets. The labels of a table are unique."""
-        labels, seen = {}, set()
-        for name in self.columns:
-            stderr = name.endswith("_stderr")
-            base = name.removesuffix("_stderr")
-            label = (base if not base.startswith(RATE_PREFIX) else
-                     "rate_coefficient_" + (re.sub(r"[^0-9A-Za-z]+", "_", base[len(RATE_PREFIX):]).strip("_") or "x"))
-            label += "_stderr" if stderr else ""
-            while label in seen:
-                label += "_"
-            seen.add(label)
-            labels[name] = label
-        return labels
+        """Column name → the label in the CSV header: the quantity name followed by its unit in brackets,
+        ``alpha_N[m^2]``, ``N_D_L_flux_stderr[1/(m s)]`` (names are letters, digits and ``_`` only, see
+        :mod:`avalanche.quantities`; a column without a unit has no brackets)."""
+        return {name: f"{name}[{self.units[name]}]" if self.units.get(name) else name for name in self.names}
 
     def format_csv(self, digits: int | None = 7) -> str:
-        """The table as CSV: ``#`` comment lines (metadata, the unit of every column, the process of every rate
-        column), then ONE line of column labels (:meth:`column_labels`) and one row per point, so that
+        """The table as CSV: ``#`` comment lines (metadata, the process of every rate column), then ONE line of
+        column labels ``name[unit]`` (:meth:`column_labels`) and one row per point, so that
         ``pandas.read_csv(path, comment="#")`` gives numeric columns.
 
         Parameters
@@ -526,10 +522,6 @@ class FluidTable:
         buffer = io.StringIO()
         for line in self._header_comments():
             buffer.write(f"# {line}\n")
-        buffer.write("# units: " + "; ".join(f"{labels[n]} = {self.units[n] or '-'}" for n in self.names) + "\n")
-        for name in self.names:
-            if name.startswith(RATE_PREFIX) and not name.endswith("_stderr"):
-                buffer.write(f"# process of {labels[name]}: {name[len(RATE_PREFIX):]}\n")
         writer = csv.writer(buffer, lineterminator="\n")
         writer.writerow([labels[n] for n in self.names])
         for row in zip(*self.columns.values(), strict=True):
@@ -538,31 +530,25 @@ class FluidTable:
 
     def format_text(self, digits: int | None = 7) -> str:
         """The table as whitespace-separated text readable by ``numpy.loadtxt``: every header line is a ``#``
-        comment, the last two being the column labels (:meth:`column_labels`) and the units (``-`` for none, a
-        space inside a unit written ``_``, ``1/(m_s)``, which :func:`read_table` turns back). ``digits`` as for
-        :meth:`format_csv`."""
-        labels = self.column_labels()
-        names = [labels[name] for name in self.names]
-        units = ["_".join(self.units[name].split()) or "-" for name in self.names]
+        comment; ``# units:`` gives ``name = unit`` pairs and the last comment line the column names.
+        ``digits`` as for :meth:`format_csv`."""
+        names = self.names
         cells = [[_number(v, digits) for v in values] for values in self.columns.values()]
-        widths = [max(len(n), len(u), *(len(c) for c in column))
-                  for n, u, column in zip(names, units, cells, strict=True)]
+        widths = [max(len(n), *(len(c) for c in column)) for n, column in zip(names, cells, strict=True)]
         lines = [f"# {line}" for line in self._header_comments()]
-        lines += [f"# process of {labels[name]}: {name[len(RATE_PREFIX):]}" for name in self.names
-                  if name.startswith(RATE_PREFIX) and not name.endswith("_stderr")]
-        lines.append("# last two comment lines: column names, then units")
+        lines.append("# units: " + "; ".join(f"{n} = {self.units[n] or '-'}" for n in names))
+        lines.append("# last comment line: column names")
         lines.append("# " + " ".join(n.rjust(w) for n, w in zip(names, widths, strict=True)))
-        lines.append("# " + " ".join(u.rjust(w) for u, w in zip(units, widths, strict=True)))
         for row in zip(*cells, strict=True):
             lines.append("  " + " ".join(c.rjust(w) for c, w in zip(row, widths, strict=True)))
         return "\n".join(lines) + "\n"
 
     def to_csv(self, path, digits: int | None = 7) -> Path:
-        """Write :meth:`format_csv` to ``path``; returns the path."""
+        """Write :meth:`format_csv` to ``path`` (atomically); returns the path."""
         return _write(path, self.format_csv(digits))
 
     def to_text(self, path, digits: int | None = 7) -> Path:
-        """Write :meth:`format_text` to ``path``; returns the path."""
+        """Write :meth:`format_text` to ``path`` (atomically); returns the path."""
         return _write(path, self.format_text(digits))
 
 
@@ -571,10 +557,11 @@ def _number(value, digits: int | None) -> str:
 
 
 def _write(path, text: str) -> Path:
+    from ..store.files import write_atomically
+
     path = Path(path)
     path.parent.mkdir(parents=True, exist_ok=True)
-    path.write_text(text, encoding="utf-8")
-    return path
+    return write_atomically(path, lambda temporary: temporary.write_text(text, encoding="utf-8"))
 
 
 def _check_monotone_energy(table: SwarmTable) -> None:
@@ -647,7 +634,9 @@ def fluid_table(table: SwarmTable, against: str = "reduced-field", quantities: S
         metadata["source"] = table.source
     if table.not_converged:
         metadata["not_converged"] = " | ".join(table.not_converged)
-    return FluidTable(coordinate, {k: np.array(v, dtype=float) for k, v in columns.items()}, units, metadata)
+    return FluidTable(coordinate, {k: np.array(v, dtype=float) for k, v in columns.items()}, units, metadata,
+                      {name: table.processes.get(name, name[len(RATE_PREFIX):]) for name in columns
+                       if name.startswith(RATE_PREFIX) and not name.endswith(Q.STDERR_SUFFIX)})
 
 
 def _parse_header(comments: list[str], path) -> dict[str, str]:
@@ -668,7 +657,8 @@ def read_table(path) -> FluidTable:
     Raises
     ------
     ConfigError
-        If the file is missing, is not such a table, or has rows of the wrong length.
+        If the file is missing, is not such a table, or has rows of the wrong length. Tables of the older formats
+        (1 and 2) still read.
     """
     path = Path(path)
     if not path.is_file():
@@ -681,24 +671,30 @@ def read_table(path) -> FluidTable:
     metadata = _parse_header(comments, path)
     processes = {line.split(": ", 1)[0][len("process of "):]: line.split(": ", 1)[1]
                  for line in comments if line.startswith("process of ")}
-    if any("last two comment lines" in line for line in comments):
+    units_line = next((line for line in comments if line.startswith("units: ")), None)
+    unit_of = {} if units_line is None else dict(item.split(" = ", 1) for item in units_line[len("units: "):]
+                                                 .split("; ") if " = " in item)
+    if any(line.startswith("last comment line: column names") for line in comments):  # text
+        names = comments[-1].split()
+        units = [("" if unit_of.get(name, "-") == "-" else unit_of[name]) for name in names]
+        rows = [line.split() for line in body]
+    elif any("last two comment lines" in line for line in comments):  # text of format 2: names, then units
         names = comments[-2].split()
         units = [("" if u == "-" else u.replace("_", " ")) for u in comments[-1].split()]
         rows = [line.split() for line in body]
-    elif any(line.startswith("next line: column names") for line in comments):  # format 1: names, then units
+    elif any(line.startswith("next line: column names") for line in comments):  # CSV of format 1
         parsed = list(csv.reader(body))
         names, units, rows = parsed[0], parsed[1], parsed[2:]
-    else:
+    else:  # CSV: one header line of name[unit] labels (format 2: plain names and a "# units:" line)
         parsed = list(csv.reader(body))
-        names, rows = parsed[0], parsed[1:]
-        units_line = next((line for line in comments if line.startswith("units: ")), None)
-        if units_line is None:
-            raise ConfigError(f"{path}: no '# units:' line; write the table with `avalanche table`")
-        unit_of = dict(item.split(" = ", 1) for item in units_line[len("units: "):].split("; "))
-        units = [("" if unit_of.get(name) == "-" else unit_of.get(name, "")) for name in names]
-    names = [RATE_PREFIX + processes[n] if n in processes else
-             RATE_PREFIX + processes[n.removesuffix("_stderr")] + "_stderr"
-             if n.endswith("_stderr") and n.removesuffix("_stderr") in processes else n for n in names]
+        labels, rows = (parsed[0], parsed[1:]) if parsed else ([], [])
+        split = [re.fullmatch(r"([0-9A-Za-z_]+)(?:\[(.*)\])?", label) for label in labels]
+        if not labels or not all(split):
+            raise ConfigError(f"{path}: the header line should hold name[unit] labels; write the table with "
+                              "`avalanche table`")
+        names = [m.group(1) for m in split]
+        units = [m.group(2) if m.group(2) is not None else
+                 ("" if unit_of.get(m.group(1), "-") == "-" else unit_of[m.group(1)]) for m in split]
     if len(names) != len(units):
         raise ConfigError(f"{path}: {len(names)} column names but {len(units)} units; the header is damaged")
     for number, row in enumerate(rows, start=1):
@@ -707,4 +703,4 @@ def read_table(path) -> FluidTable:
     values = np.array(rows, dtype=float).reshape(len(rows), len(names))
     coordinate = metadata.pop("coordinate", names[0]).split(",")[0]
     return FluidTable(coordinate, {name: values[:, j] for j, name in enumerate(names)},
-                      dict(zip(names, units, strict=True)), metadata)
+                      dict(zip(names, units, strict=True)), metadata, processes)

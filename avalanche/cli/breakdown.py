@@ -15,7 +15,8 @@ from pathlib import Path
 
 import numpy as np
 
-from ..analysis.tables import RATE_PREFIX, SwarmTable, did_you_mean, fluid_table
+from .. import quantities as Q
+from ..analysis.tables import SwarmTable, did_you_mean, fluid_table
 from ..constants import BOLTZMANN_J_K, STANDARD_ATMOSPHERE_Pa, TORR_Pa, TOWNSEND_V_m2
 from ..errors import ConfigError
 from .common import (
@@ -322,7 +323,8 @@ def _breakdown(args) -> int:
                     "minimum_pd_Torr_cm": curve.minimum_pd_Torr_cm if math.isfinite(curve.minimum_pd_Torr_cm)
                     else None, "critical_reduced_field_Td": critical, "critical_field_1atm_V_m": field_1atm,
                     "coefficients": {"reduced_field_Td": coefficients.reduced_field_Td,
-                                     "alpha_N_m2": coefficients.alpha_N_m2, "eta_N_m2": coefficients.eta_N_m2},
+                                     "alpha_N": coefficients.alpha_N_m2, "eta_N": coefficients.eta_N_m2,
+                                     "units": {n: Q.unit(n) for n in ("reduced_field_Td", "alpha_N", "eta_N")}},
                     "gap": gap_result, "warnings": messages, "files": [str(f) for f in files], "caution": CAUTION})
         return 0
     low, high = coefficients.reduced_field_range_Td
@@ -363,8 +365,10 @@ def _phase_rates(resolved) -> dict:
     nested = resolved.get("rate_coefficients")
     if nested is not None:
         return {key: value_error(entry) for key, entry in nested.items()}
-    return {name[len(RATE_PREFIX):]: value_error(entry) for name, entry in resolved.items()
-            if name.startswith(RATE_PREFIX)}
+    # the engine keys each process's phase-resolved rate by its label ("rate_coefficient:<label>" where the label
+    # is also the name of a quantity); the quantities of avalanche.quantities have a unit, processes do not
+    return {name.removeprefix("rate_coefficient:"): value_error(entry) for name, entry in resolved.items()
+            if name.startswith("rate_coefficient:") or not Q.unit(name)}
 
 
 def _write_emission_csv(path: Path, estimates, source: str) -> Path:
@@ -373,15 +377,16 @@ def _write_emission_csv(path: Path, estimates, source: str) -> Path:
     buffer = io.StringIO()
     buffer.write(f"# avalanche emission estimate, {source}\n# {APPROXIMATION_NOTE}\n")
     writer = csv.writer(buffer, lineterminator="\n")
-    writer.writerow(["reduced_field_Td", "species", "level", "wavelength_nm", "photon_energy_eV",
-                     "emission_coefficient_m3_s", "emission_coefficient_stderr", "relative_rate", "relative_power"])
-    writer.writerow(["Td", "", "", "nm", "eV", "m3/s", "m3/s", "", ""])
+    writer.writerow(["reduced_field_Td[Td]", "species", "level", "wavelength_nm[nm]", "photon_energy_eV[eV]",
+                     "emission_coefficient[m^3/s]", "emission_coefficient_stderr[m^3/s]", "relative_rate[1]",
+                     "relative_power[1]"])
     for estimate in estimates:
         columns = (estimate.emission_coefficient_m3_s, estimate.emission_coefficient_stderr, estimate.relative_rate,
                    estimate.relative_power)
         for k, level in enumerate(estimate.levels):
-            writer.writerow([repr(estimate.reduced_field_Td), level.species, level.label, repr(level.wavelength_nm),
-                             repr(level.photon_energy_eV), *(repr(float(column[k])) for column in columns)])
+            writer.writerow([f"{estimate.reduced_field_Td:.7g}", level.species, level.label,
+                             f"{level.wavelength_nm:.7g}", f"{level.photon_energy_eV:.7g}",
+                             *(f"{float(column[k]):.7g}" for column in columns)])
     path.parent.mkdir(parents=True, exist_ok=True)
     path.write_text(buffer.getvalue(), encoding="utf-8")
     return path
@@ -408,8 +413,7 @@ def _emission(args) -> int:
     out, stem = Path(args.out), Path(args.results).stem
     estimates, files, phase = [], [], []
     for k in indices:
-        rates = {key: (table.quantities[RATE_PREFIX + key][0][k], table.quantities[RATE_PREFIX + key][1][k])
-                 for key in table.rate_keys}
+        rates = {key: (table.rate(key)[0][k], table.rate(key)[1][k]) for key in table.rate_keys}
         estimate = emission_estimate(levels, rates, float(table.reduced_field_Td[k]))
         estimates.append(estimate)
         labels = [level.name for level in estimate.levels]

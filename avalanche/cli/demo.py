@@ -146,7 +146,7 @@ def run_ac_point(path: Path) -> Path:
           f"{regime['omega_over_nu_energy']:.3g}, E_eff/N = {regime['effective_field_Td']:.4g} Td)")
     print(f"      {regime['statement']}")
     print("      cycle average: mean energy " f"{result.mean_energy_eV}" " eV, ionization rate coefficient "
-          f"{result.ionization_rate_coefficient} m3/s")
+          f"{result.ionization_rate_coefficient} m^3/s")
     drift = result.phase_resolved["drift_velocity_flux"]
     h = first_harmonic(result.phase, drift.value, drift.stderr)
     print(f"      drift velocity over the cycle: amplitude {h.amplitude:.4g} ± {h.amplitude_stderr:.2g} m/s, lag "

@@ -12,6 +12,7 @@ from pathlib import Path
 
 import numpy as np
 
+from .. import quantities as Q
 from ..analysis.magnetic import MagneticDriftTable
 from ..analysis.tables import SwarmTable, fluid_table
 from ..errors import ConfigError
@@ -32,6 +33,19 @@ from .common import (
 )
 from .registry import command
 
+
+def _quantities(text: str | None, command_name: str) -> list[str] | None:
+    """The ``--quantity`` list, names of version 0.1 replaced by the current ones (with a deprecation note)."""
+    names = split_list(text)
+    if names is None:
+        return None
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always")
+        names = [Q.current_name(name) for name in names]
+    show_warnings(caught, command_name)
+    return names
+
+
 # --- plot ---------------------------------------------------------------------------------------------------------
 
 def _plot_configure(p) -> None:
@@ -40,7 +54,7 @@ def _plot_configure(p) -> None:
                    help="folder for the figures (default: current folder; --out is the older spelling)")
     p.add_argument("--quantity", default=None, metavar="LIST",
                    help="comma list of quantities or panels, e.g. alpha_N,drift_velocity_bulk; 'drift_velocity', "
-                        "'long_diffusion_N', 'trans_diffusion_N' draw flux and bulk together, 'rate_coefficients' "
+                        "'N_D_L', 'N_D_T' draw flux and bulk together, 'rate_coefficients' "
                         "every process rate (default: mean energy, drift velocity, diffusion, alpha_N, eta_N)")
     p.add_argument("--reference", default=None, metavar="FILE.csv",
                    help="reference data to overlay: CSV with '# source: <citation>' comment, a header line "
@@ -145,7 +159,7 @@ def _plot(args) -> int:
     written = []
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always")
-        figure = plot_swarm_parameters(table, split_list(args.quantity), reference, handbook)
+        figure = plot_swarm_parameters(table, _quantities(args.quantity, "plot"), reference, handbook)
         written += save_figure(figure, out / f"{stem}_swarm", formats)
         _handbook_note(figure, table, handbook)
         if (args.eedf or "").lower() != "none":
@@ -213,11 +227,11 @@ def _table(args) -> int:
             sys.stdout.write(text)
         else:
             Path(args.out).parent.mkdir(parents=True, exist_ok=True)
-            Path(args.out).write_text(text, encoding="utf-8")
+            write_atomically(args.out, lambda temporary: temporary.write_text(text, encoding="utf-8"))
             print(f"wrote {args.out} (drift velocity components and Lorentz angle, csv)")
         return 0
     table = load_table(results, args, "table")
-    fluid = fluid_table(table, against=args.against, quantities=split_list(args.quantity))
+    fluid = fluid_table(table, against=args.against, quantities=_quantities(args.quantity, "table"))
     fmt = args.table_format or ("text" if args.out and Path(args.out).suffix.lower() in (".txt", ".dat") else "csv")
     if args.digits < 0 or args.digits > 17:
         raise ConfigError(f"--digits {args.digits}: give 1 to 17 significant digits, or 0 for the exact form")

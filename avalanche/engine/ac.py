@@ -67,8 +67,8 @@ PHASE_QUANTITIES = ("reduced_field_Td", "mean_energy_eV", "drift_velocity_flux",
                     "collision_frequency", "power_absorbed_eV_s")
 """Phase-resolved quantities besides the per-process rate coefficients (names as in the DC result)."""
 PHASE_UNITS = {"reduced_field_Td": "Td", "mean_energy_eV": "eV", "drift_velocity_flux": "m/s",
-               "ionization_rate_coefficient": "m3/s", "attachment_rate_coefficient": "m3/s",
-               "excitation_rate_coefficient": "m3/s", "effective_ionization_frequency": "1/s",
+               "ionization_rate_coefficient": "m^3/s", "attachment_rate_coefficient": "m^3/s",
+               "excitation_rate_coefficient": "m^3/s", "effective_ionization_frequency": "1/s",
                "collision_frequency": "1/s", "power_absorbed_eV_s": "eV/s"}
 @dataclass(eq=False)
 class PhaseTallies:

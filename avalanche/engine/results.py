@@ -12,6 +12,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from .. import quantities as Q
 from .tallies import SwarmTallies
 
 
@@ -57,9 +58,9 @@ class ArrayEstimate:
         return {"value": _plain(np.asarray(self.value)), "stderr": _plain(np.asarray(self.stderr))}
 
 
-MAGNETIC_UNITS = {"drift_velocity_vector": "m/s", "drift_velocity_bulk_vector": "m/s",
-                  "drift_velocity_magnitude": "m/s", "lorentz_angle_deg": "deg",
-                  "diffusion_tensor_N_flux": "1/(m s)", "diffusion_tensor_N_bulk": "1/(m s)"}
+MAGNETIC_UNITS = {name: Q.unit(name) for name in ("drift_velocity_vector", "drift_velocity_bulk_vector",
+                                                  "drift_velocity_magnitude", "lorentz_angle_deg", "N_D_tensor_flux",
+                                                  "N_D_tensor_bulk")}
 """Units of the vector and tensor results (components in the frame E, E×B, third of
 :mod:`avalanche.engine.magnetic`)."""
 
@@ -107,31 +108,14 @@ class PhaseResolved:
         return {"value": [_json_float(v) for v in self.value], "stderr": [_json_float(v) for v in self.stderr]}
 
 
-ESTIMATES: tuple[tuple[str, str, str], ...] = (
-    ("mean_energy_eV", "eV", "mean energy"),
-    ("drift_velocity_flux", "m/s", "flux drift velocity <v_z>"),
-    ("drift_velocity_bulk", "m/s", "bulk drift velocity d<z>/dt"),
-    ("long_diffusion_N_flux", "1/(m s)", "N D_L, flux"),
-    ("long_diffusion_N_bulk", "1/(m s)", "N D_L, bulk"),
-    ("trans_diffusion_N_flux", "1/(m s)", "N D_T, flux"),
-    ("trans_diffusion_N_bulk", "1/(m s)", "N D_T, bulk"),
-    ("mobility_N", "1/(V m s)", "N mu = N W_bulk / E"),
-    ("characteristic_energy_eV", "eV", "D_T / mu (bulk)"),
-    ("alpha_N", "m2", "Townsend ionization coefficient alpha/N"),
-    ("eta_N", "m2", "attachment coefficient eta/N"),
-    ("effective_alpha_N", "m2", "(alpha - eta)/N from nu_eff"),
-    ("alpha_N_simple", "m2", "nu_ion / (N W_bulk)"),
-    ("eta_N_simple", "m2", "nu_att / (N W_bulk)"),
-    ("ionization_rate_coefficient", "m3/s", "total ionization frequency / N (direct + Penning)"),
-    ("attachment_rate_coefficient", "m3/s", "total attachment frequency / N"),
-    ("ionization_rate_coefficient_counted", "m3/s", "ionization frequency / N from counted events"),
-    ("attachment_rate_coefficient_counted", "m3/s", "attachment frequency / N from counted events"),
-    ("excitation_rate_coefficient", "m3/s", "total excitation frequency / N"),
-    ("penning_ionization_rate_coefficient", "m3/s", "Penning ionization frequency / N"),
-    ("penning_fraction", "1", "Penning share of the ionization frequency"),
-    ("effective_ionization_frequency", "1/s", "nu_ion - nu_att"),
-    ("collision_frequency", "1/s", "real collision frequency per electron"),
-)
+ESTIMATE_NAMES = ("mean_energy_eV", "drift_velocity_flux", "drift_velocity_bulk", "N_D_L_flux", "N_D_L_bulk",
+                  "N_D_T_flux", "N_D_T_bulk", "N_mu", "characteristic_energy_eV", "alpha_N", "eta_N",
+                  "effective_alpha_N", "alpha_N_simple", "eta_N_simple", "ionization_rate_coefficient",
+                  "attachment_rate_coefficient", "ionization_rate_coefficient_counted",
+                  "attachment_rate_coefficient_counted", "excitation_rate_coefficient",
+                  "penning_ionization_rate_coefficient", "penning_fraction", "effective_ionization_frequency",
+                  "collision_frequency")
+ESTIMATES: tuple[tuple[str, str, str], ...] = tuple((name, Q.unit(name), Q.label(name)) for name in ESTIMATE_NAMES)
 """(name, units, description) of every scalar estimate, in display order."""
 ESTIMATE_UNITS = {name: units for name, units, _ in ESTIMATES}
 
@@ -144,12 +128,16 @@ class SwarmResult:
     ----------
     reduced_field_Td : float
         E/N [Td].
-    mean_energy_eV, drift_velocity_flux, drift_velocity_bulk, long_diffusion_N_flux, long_diffusion_N_bulk,
-    trans_diffusion_N_flux, trans_diffusion_N_bulk, alpha_N, eta_N, ... : Estimate
-        See :data:`ESTIMATES` for units and meaning, and :mod:`avalanche.engine.estimators` for the definitions.
+    mean_energy_eV, drift_velocity_flux, drift_velocity_bulk, N_D_L_flux, N_D_L_bulk, N_D_T_flux, N_D_T_bulk,
+    N_mu, alpha_N, eta_N, ... : Estimate
+        See :data:`ESTIMATES` and :mod:`avalanche.quantities` for units and meaning, and
+        :mod:`avalanche.engine.estimators` for the definitions. The names of version 0.1 (``mobility_N``,
+        ``long_diffusion_N_flux``, ...) still work with a :class:`DeprecationWarning`
+        (:data:`avalanche.quantities.RENAMED`).
     rate_coefficients : dict of str to Estimate
         Rate coefficient per target molecule of every process [m³/s]; keys are the process labels, or
-        "<species>:<label>" in a mixture of several species.
+        "<species>:<label>" in a mixture of several species. Each is also an attribute under its quantity name
+        ``rate_coefficient_<process>`` (:func:`avalanche.quantities.rate_name`), the name used in files.
     eedf : EnergyDistribution
     events : int
         Trial collision events simulated (real and null, including chunks that were redone).
@@ -219,15 +207,25 @@ class SwarmResult:
     convergence_notes: list = field(default_factory=list)
     stopped_by: str = ""
     upper_bounds: dict = field(default_factory=dict)
+    mixture: object | None = field(default=None, repr=False)
+    """The :class:`~avalanche.gas.mixture.Mixture` that was run (its cross-section sets go into results files);
+    None for a result read from a file (use ``open_results(path).mixture()``)."""
 
     def __getattr__(self, name: str):
-        estimates = self.__dict__.get("estimates")
-        if estimates is not None and name in estimates:
-            return estimates[name]
-        raise AttributeError(f"SwarmResult has no attribute '{name}'")
+        return _lookup(self, name)
+
+    def __getstate__(self):
+        # the mixture stays with the process that ran the point (model gases hold functions that do not pickle)
+        return {**self.__dict__, "mixture": None}
 
     def __dir__(self):
-        return sorted(set(super().__dir__()) | set(self.estimates))
+        return sorted(set(super().__dir__()) | set(self.quantities()))
+
+    def quantities(self) -> dict[str, Estimate]:
+        """Every scalar quantity by its name in :mod:`avalanche.quantities`: the estimates, then the rate
+        coefficient of each process as ``rate_coefficient_<process>``."""
+        names = Q.rate_names(self.rate_coefficients)
+        return {**self.estimates, **{names[key]: est for key, est in self.rate_coefficients.items()}}
 
     def _vector(self, name: str, along_E: str) -> tuple[Estimate, Estimate, Estimate]:
         if self.magnetic is not None:
@@ -258,21 +256,21 @@ class SwarmResult:
     def _tensor(self, name: str, kind: str) -> ArrayEstimate:
         if self.magnetic is not None:
             return self.magnetic[name]
-        long, trans = self.estimates[f"long_diffusion_N_{kind}"], self.estimates[f"trans_diffusion_N_{kind}"]
+        long, trans = self.estimates[f"N_D_L_{kind}"], self.estimates[f"N_D_T_{kind}"]
         return ArrayEstimate(np.diag([long.value, trans.value, trans.value]),
                              np.diag([long.stderr, trans.stderr, trans.stderr]))
 
     @property
-    def diffusion_tensor_N_flux(self) -> ArrayEstimate:
-        """N D (flux, symmetrised) [m⁻¹ s⁻¹], 3 × 3 in the frame (E, E×B, third); without a magnetic field
-        diag(N D_L, N D_T, N D_T)."""
-        return self._tensor("diffusion_tensor_N_flux", "flux")
+    def N_D_tensor_flux(self) -> ArrayEstimate:
+        """N·D (flux, symmetrised) [m⁻¹ s⁻¹], 3 × 3 in the frame (E, E×B, third); without a magnetic field
+        diag(N·D_L, N·D_T, N·D_T). Formerly ``diffusion_tensor_N_flux``."""
+        return self._tensor("N_D_tensor_flux", "flux")
 
     @property
-    def diffusion_tensor_N_bulk(self) -> ArrayEstimate:
-        """N D (bulk) [m⁻¹ s⁻¹], 3 × 3 in the frame (E, E×B, third); without a magnetic field diag(N D_L, N D_T,
-        N D_T)."""
-        return self._tensor("diffusion_tensor_N_bulk", "bulk")
+    def N_D_tensor_bulk(self) -> ArrayEstimate:
+        """N·D (bulk) [m⁻¹ s⁻¹], 3 × 3 in the frame (E, E×B, third); without a magnetic field diag(N·D_L, N·D_T,
+        N·D_T). Formerly ``diffusion_tensor_N_bulk``."""
+        return self._tensor("N_D_tensor_bulk", "bulk")
 
     def magnetic_dict(self) -> dict:
         """The magnetic-field part of :meth:`to_dict`: the field, the drift vectors (lists of three
@@ -287,8 +285,8 @@ class SwarmResult:
             "drift_velocity_bulk_vector": [e.to_dict() for e in self.drift_velocity_bulk_vector],
             "drift_velocity_magnitude": self.drift_velocity_magnitude.to_dict(),
             "lorentz_angle_deg": self.lorentz_angle_deg.to_dict(),
-            "diffusion_tensor_N_flux": self.diffusion_tensor_N_flux.to_dict(),
-            "diffusion_tensor_N_bulk": self.diffusion_tensor_N_bulk.to_dict(),
+            "N_D_tensor_flux": self.N_D_tensor_flux.to_dict(),
+            "N_D_tensor_bulk": self.N_D_tensor_bulk.to_dict(),
             "frame_axes": ["E", "ExB", "third"]}
 
     @property
@@ -297,10 +295,14 @@ class SwarmResult:
         return str(self.inputs.get("settings", {}).get("precision_on", ""))
 
     def to_dict(self, time_series: bool = False) -> dict:
-        """JSON-ready data with the same names: each estimate as ``{"value": .., "stderr": ..}``."""
+        """JSON-ready data with the names of :mod:`avalanche.quantities`: each quantity (estimates, then the
+        per-process ``rate_coefficient_<process>``) as ``{"value": .., "stderr": ..}``; ``processes`` maps each
+        rate-coefficient name to its process label and ``units`` every name to its unit."""
         out: dict = {"reduced_field_Td": float(self.reduced_field_Td)}
         out.update({name: self.estimates[name].to_dict() for name, _, _ in ESTIMATES if name in self.estimates})
-        out["rate_coefficients"] = {key: est.to_dict() for key, est in self.rate_coefficients.items()}
+        names = Q.rate_names(self.rate_coefficients)
+        out.update({names[key]: est.to_dict() for key, est in self.rate_coefficients.items()})
+        out["processes"] = {name: key for key, name in names.items()}
         out["eedf"] = self.eedf.to_dict()
         out.update({"converged": bool(self.converged), "convergence_notes": list(self.convergence_notes),
                     "events": int(self.events), "cpu_seconds": float(self.cpu_seconds),
@@ -309,8 +311,10 @@ class SwarmResult:
                     "relaxation_time_s": float(self.relaxation_time_s), "sampled_time_s": float(self.sampled_time_s),
                     "extrapolated_fraction": float(self.extrapolated_fraction),
                     "anomalies": _plain(self.anomalies), "inputs": _plain(self.inputs),
-                    "units": dict(ESTIMATE_UNITS, rate_coefficients="m3/s", **MAGNETIC_UNITS,
-                                  magnetic_field_T="T", reduced_magnetic_field_Hx="Hx", field_angle_deg="deg")})
+                    "units": {"reduced_field_Td": Q.unit("reduced_field_Td"), **ESTIMATE_UNITS,
+                              **{name: Q.RATE_UNIT for name in names.values()}, **MAGNETIC_UNITS,
+                              **{n: Q.unit(n) for n in ("magnetic_field_T", "reduced_magnetic_field_Hx",
+                                                        "field_angle_deg")}}})
         out.update(self.magnetic_dict())
         if self.phase is not None:
             out["phase"] = [float(v) for v in self.phase]
@@ -329,14 +333,10 @@ class SwarmResult:
                  f"N = {mixture.get('number_density_m3', float('nan')):.4g} m^-3"]
         if not self.converged:
             lines.append(f"  NOT CONVERGED: {'; '.join(self.convergence_notes)}")
-        width = max(len(d) for _, _, d in ESTIMATES)
-        rows = [(desc, self.estimates[name], units) for name, units, desc in ESTIMATES if name in self.estimates]
-        rows += [(f"k {key}", est, "m3/s") for key, est in self.rate_coefficients.items()]
-        width = max(width, *(len(r[0]) for r in rows))
-        for desc, est, units in rows:
-            rel = est.relative_stderr
-            rel_text = f"({100 * rel:.2g} %)" if math.isfinite(rel) and est.value != 0 else ""
-            lines.append(f"  {desc:<{width}}  {est.value:>12.5g} ± {est.stderr:<9.2g} {units:<10} {rel_text}")
+        rows = [(name, desc, self.estimates[name], units) for name, units, desc in ESTIMATES if name in self.estimates]
+        rows += [(name, f"rate coefficient k of {key}", self.rate_coefficients[key], Q.RATE_UNIT)
+                 for key, name in Q.rate_names(self.rate_coefficients).items()]
+        lines += format_rows(rows)
         lines.append(f"  events {self.events:.4g} (real + null), cpu {self.cpu_seconds:.3g} s, "
                      f"wall {self.wall_seconds:.3g} s, stop: {self.stop_reason}"
                      f"{f' ({self.stopped_by})' if self.stopped_by else ''}, relaxation "
@@ -361,10 +361,10 @@ class SwarmResult:
                  f"{field.get('field_angle_deg', 0):g} deg to E; frame (E, ExB, third)",
                  f"  drift velocity vector [m/s]  {w[0]} | {w[1]} | {w[2]}",
                  f"  |W| {self.drift_velocity_magnitude} m/s, Lorentz angle {self.lorentz_angle_deg} deg"]
-        for name in ("diffusion_tensor_N_flux", "diffusion_tensor_N_bulk"):
+        for name in ("N_D_tensor_flux", "N_D_tensor_bulk"):
             t = getattr(self, name)
             rows = "; ".join(" ".join(f"{t.value[i, j]:.4g}" for j in range(3)) for i in range(3))
-            lines.append(f"  {name} [1/(m s)]  {rows}")
+            lines.append(f"  {Q.label(name)} [{Q.unit(name)}]  {rows}")
         return lines
 
     def _ac_lines(self, rows: int = 8) -> list[str]:
@@ -383,9 +383,9 @@ class SwarmResult:
         elif reg.get("method"):
             lines.append(f"  method: {reg['method']} tracking of every period")
         pr = self.phase_resolved or {}
-        columns = [(n, h) for n, h in (("reduced_field_Td", "E/N [Td]"), ("mean_energy_eV", "energy [eV]"),
-                                       ("drift_velocity_flux", "W flux [m/s]"),
-                                       ("ionization_rate_coefficient", "k_ion [m3/s]")) if n in pr]
+        columns = [(n, f"{Q.symbol(n)} [{Q.unit(n)}]") for n in ("reduced_field_Td", "mean_energy_eV",
+                                                               "drift_velocity_flux", "ionization_rate_coefficient")
+                   if n in pr]
         lines.append("  " + f"{'phase [rad]':>11s}" + "".join(f" {h:>22s}" for _, h in columns))
         step = max(1, len(self.phase) // rows)
         for i in range(0, len(self.phase), step):
@@ -397,6 +397,40 @@ class SwarmResult:
         return (f"SwarmResult(E/N={self.reduced_field_Td:g} Td, mean_energy_eV={self.mean_energy_eV}, "
                 f"drift_velocity_bulk={self.drift_velocity_bulk}, alpha_N={self.alpha_N}, "
                 f"stop_reason={self.stop_reason!r})")
+
+
+def format_rows(rows) -> list[str]:
+    """Screen lines of (name, plain-words label, Estimate, unit) rows: the quantity's name (as in files and
+    JSON), its label, value ± standard error, unit and relative error."""
+    name_width = max((len(r[0]) for r in rows), default=0)
+    width = max((len(r[1]) for r in rows), default=0)
+    lines = []
+    for name, desc, est, units in rows:
+        rel = est.relative_stderr
+        rel_text = f"({100 * rel:.2g} %)" if math.isfinite(rel) and est.value != 0 else ""
+        lines.append(f"  {name:<{name_width}}  {desc:<{width}}  {est.value:>12.5g} ± {est.stderr:<9.2g} "
+                     f"{units:<10} {rel_text}".rstrip())
+    return lines
+
+
+def _lookup(result, name: str):
+    """Attribute access of the result objects by quantity name: an estimate, a ``rate_coefficient_<process>``,
+    or a name of version 0.1 (:data:`avalanche.quantities.RENAMED`, with a DeprecationWarning)."""
+    estimates = result.__dict__.get("estimates")
+    if estimates is None or name.startswith("__"):
+        raise AttributeError(name)
+    if name in estimates:
+        return estimates[name]
+    current = Q.current_name(name, warn=False)
+    if current != name:
+        Q.current_name(name)
+        return getattr(result, current)
+    if name.startswith(Q.RATE_PREFIX):
+        rates = result.__dict__.get("rate_coefficients") or {}
+        for key, quantity in Q.rate_names(rates).items():
+            if quantity == name:
+                return rates[key]
+    raise AttributeError(f"{type(result).__name__} has no attribute '{name}'")
 
 
 UNDEFINED_WITHOUT_IONIZATION = ("penning_fraction",)

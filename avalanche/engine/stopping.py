@@ -26,10 +26,11 @@ from collections.abc import Mapping
 import numpy as np
 
 from ..errors import ConfigError
+from ..quantities import current_name
 from .results import ESTIMATE_UNITS, Estimate
 
-DEFAULT_QUANTITIES = ("mean_energy_eV", "drift_velocity_flux", "drift_velocity_bulk", "long_diffusion_N_flux",
-                      "long_diffusion_N_bulk", "trans_diffusion_N_flux", "trans_diffusion_N_bulk", "alpha_N", "eta_N")
+DEFAULT_QUANTITIES = ("mean_energy_eV", "drift_velocity_flux", "drift_velocity_bulk", "N_D_L_flux", "N_D_L_bulk",
+                      "N_D_T_flux", "N_D_T_bulk", "alpha_N", "eta_N")
 """The estimates the stop rule tests by default (besides the rate coefficients of the main energy-loss
 processes)."""
 LOSS_SHARE = 0.01
@@ -76,7 +77,7 @@ def parse_precision(precision, where: str = "swarm(): argument precision") -> tu
         return float(value)
 
     if isinstance(precision, Mapping):
-        targets = {str(k): number(f"[{k!r}]", v) for k, v in precision.items()}
+        targets = {current_name(str(k)): number(f"[{k!r}]", v) for k, v in precision.items()}
         default = targets.pop("default", 0.01)
         return default, tuple(sorted(targets.items()))
     return number("", precision), ()

@@ -65,6 +65,7 @@ from ..constants import BOLTZMANN_J_K, ELEMENTARY_CHARGE_C, EV_J, ATOMIC_MASS_UN
 from ..errors import AvalancheError, ConfigError, PhysicsWarning
 from ..gas.crosssections import _did_you_mean
 from ..gas.mixture import Mixture
+from ..quantities import current_name
 from . import ac
 from .drive import Drive, make_drive
 from .ensemble import Ensemble
@@ -194,7 +195,8 @@ def make_settings(*, seed=0, precision=0.01, electrons=16384, max_events=1_000_0
         seed=_seed(seed), precision=precision, precision_targets=precision_targets, electrons=electrons,
         max_events=max_events, sharing=_choice("sharing", sharing, SHARING_RULES),
         scattering=_choice("scattering", scattering, SCATTERING_MODELS), replicas=replicas,
-        precision_on=_choice("precision_on", precision_on, precision_choices), energy_cells=energy_cells,
+        precision_on=_choice("precision_on", current_name(precision_on) if isinstance(precision_on, str)
+                             else precision_on, precision_choices), energy_cells=energy_cells,
         energy_max_eV=_positive("energy_max_eV", energy_max_eV, allow_none=True),
         energy_limit_eV=_positive("energy_limit_eV", energy_limit_eV),
         initial_energy_eV=_positive("initial_energy_eV", initial_energy_eV),
@@ -507,6 +509,7 @@ def swarm(mixture: Mixture | str, reduced_field_Td: float, magnetic_field_T: flo
                 result.inputs["method"] = result.regime["method"] = "exact"
         result.cpu_seconds = time.process_time() - cpu0
         result.wall_seconds = time.perf_counter() - wall0
+        result.mixture = mixture
     finally:
         numba.set_num_threads(previous)
     return result

@@ -54,29 +54,26 @@ import numba
 import numpy as np
 
 from .. import kernels as K
+from .. import quantities as Q
 from .._version import __version__
 from ..constants import BOLTZMANN_J_K, ELEMENTARY_CHARGE_C, EV_J, ELECTRON_MASS_kg, TOWNSEND_V_m2
 from ..errors import AvalancheError, ConfigError, PhysicsWarning
 from ..gas.crosssections import _did_you_mean
 from ..gas.mixture import Mixture
 from ..kernels import steady_state as S
-from .results import _json_float, _plain
+from .results import _json_float, _lookup, _plain, format_rows
 from .tables import COLD_GAS_GROUPS, EnergyGrid, ProcessTable, extrapolation_notice
 from .townsend_estimators import TALLY_FIELDS, townsend_estimates
 
-TOWNSEND_ESTIMATES: tuple[tuple[str, str, str], ...] = (
-    ("alpha_N", "m2", "SST ionization coefficient alpha/N (ionizations per flux path)"),
-    ("eta_N", "m2", "SST attachment coefficient eta/N (attachments per flux path)"),
-    ("effective_alpha_N", "m2", "SST (alpha - eta)/N from the growth of ln(flux)"),
-    ("relaxation_length_m", "m", "distance where the flux mean energy has relaxed"),
-    ("mean_energy_eV", "eV", "equilibrium mean energy of the flux"),
-)
+TOWNSEND_ESTIMATES: tuple[tuple[str, str, str], ...] = tuple(
+    (name, Q.unit(name), Q.label(name)) for name in ("alpha_N", "eta_N", "effective_alpha_N", "relaxation_length_m",
+                                                     "mean_energy_eV"))
 """(name, units, description) of the estimates of a :class:`TownsendResult`, in display order."""
 COMPARISON_QUANTITIES = ("alpha_N", "alpha_N_simple", "effective_alpha_N", "eta_N", "eta_N_simple",
-                         "drift_velocity_bulk", "long_diffusion_N_bulk", "mean_energy_eV")
+                         "drift_velocity_bulk", "N_D_L_bulk", "mean_energy_eV")
 """Time-of-flight estimates put beside the SST ones by ``compare=True``."""
 PROFILE_UNITS = {"z_m": "m", "slab_center_m": "m", "flux": "1", "mean_energy_eV": "eV", "ionization": "1",
-                 "attachment": "1", "local_alpha_N": "m2", "local_eta_N": "m2"}
+                 "attachment": "1", "local_alpha_N": Q.unit("alpha_N"), "local_eta_N": Q.unit("eta_N")}
 """Units of the profiles (each also has a ``<name>_stderr``); flux, ionization and attachment per emitted electron."""
 INITIAL_DISTRIBUTIONS = ("maxwellian", "beam")
 GROWTH_PER_PASS = 0.25
@@ -218,11 +215,15 @@ class TownsendResult:
     inputs: dict
     tallies: dict = field(default_factory=dict)
 
+    mixture: object | None = field(default=None, repr=False)
+    """The :class:`~avalanche.gas.mixture.Mixture` that was run (None when read from a file)."""
+
     def __getattr__(self, name: str):
-        estimates = self.__dict__.get("estimates")
-        if estimates is not None and name in estimates:
-            return estimates[name]
-        raise AttributeError(f"TownsendResult has no attribute '{name}'")
+        return _lookup(self, name)
+
+    def __getstate__(self):
+        # the mixture stays with the process that ran the point (model gases hold functions that do not pickle)
+        return {**self.__dict__, "mixture": None}
 
     def __dir__(self):
         return sorted(set(super().__dir__()) | set(self.estimates))
@@ -251,16 +252,10 @@ class TownsendResult:
         lines = [f"steady-state Townsend   E/N = {self.reduced_field_Td:g} Td   gas: {composition or '?'}   "
                  f"T = {mixture.get('temperature_K', float('nan')):g} K   "
                  f"N = {mixture.get('number_density_m3', float('nan')):.4g} m^-3"]
-        width = max(len(d) for _, _, d in TOWNSEND_ESTIMATES)
-        for name, units, desc in TOWNSEND_ESTIMATES:
-            est = self.estimates[name]
-            rel = est.relative_stderr
-            rel_text = f"({100 * rel:.2g} %)" if math.isfinite(rel) and est.value != 0 else ""
-            lines.append(f"  {desc:<{width}}  {est.value:>12.5g} ± {est.stderr:<9.2g} {units:<4} {rel_text}")
+        lines += format_rows([(name, desc, self.estimates[name], units) for name, units, desc in TOWNSEND_ESTIMATES])
         if self.comparison:
             lines.append("  time-of-flight at the same E/N:")
-            for name, est in self.comparison.items():
-                lines.append(f"    {name:<{width - 2}}  {est.value:>12.5g} ± {est.stderr:<9.2g}")
+            lines += format_rows([(name, Q.label(name), est, Q.unit(name)) for name, est in self.comparison.items()])
         lines.append(f"  {len(self.profiles.get('z_m', []))} planes to {self.profiles['z_m'][-1]:.4g} m, "
                      f"equilibrium from {self.equilibrium_from_m:.4g} m; events {self.events:.4g} "
                      f"(+ pilot {self.pilot_events:.3g}), {self.batches} batches, cpu {self.cpu_seconds:.3g} s, "
@@ -349,7 +344,7 @@ def _distances(settings: TownsendSettings, pilot, density_m3: float) -> tuple[fl
     w = _finite(pilot.drift_velocity_flux.value)
     growth = abs(pilot.effective_ionization_frequency.value) / w
     growth = growth if math.isfinite(growth) else 0.0
-    d_l = _finite(pilot.long_diffusion_N_bulk.value, pilot.long_diffusion_N_flux.value) / density_m3
+    d_l = _finite(pilot.N_D_L_bulk.value, pilot.N_D_L_flux.value) / density_m3
     relax = w * pilot.relaxation_time_s
     if not (math.isfinite(relax) and relax > 0):
         raise AvalancheError(f"townsend(): the time-of-flight pilot gave no drift distance (W = {w:g} m/s, "
@@ -606,6 +601,7 @@ def townsend(mixture: Mixture | str, reduced_field_Td: float, *, seed=0, precisi
         result = _simulate(mixture, reduced_field_Td, settings, bool(compare))
         result.cpu_seconds = time.process_time() - cpu0
         result.wall_seconds = time.perf_counter() - wall0
+        result.mixture = mixture
     finally:
         numba.set_num_threads(previous)
     return result
@@ -658,7 +654,7 @@ def _simulate(mixture: Mixture, reduced_field_Td: float, settings: TownsendSetti
         "kT_eV": BOLTZMANN_J_K * mixture.temperature_K / EV_J,
         "pilot": None if pilot is None else {
             name: getattr(pilot, name).to_dict() for name in ("effective_alpha_N", "drift_velocity_bulk",
-                                                              "long_diffusion_N_bulk")} | {
+                                                              "N_D_L_bulk")} | {
             "relaxation_time_s": float(pilot.relaxation_time_s), "events": int(pilot.events)},
     }
     real = max(int(process_counts.sum()), 1)

@@ -22,6 +22,7 @@ import numpy as np
 from matplotlib.figure import Figure
 from matplotlib.ticker import FuncFormatter, LogFormatter, LogLocator, NullFormatter
 
+from .. import quantities as Q
 from .._version import __version__
 from ..analysis.tables import RATE_PREFIX, did_you_mean
 from ..errors import ConfigError
@@ -40,14 +41,14 @@ _WIDTH_IN = 7.0
 _PANEL_HEIGHT_IN = 2.5
 
 _PRETTY_UNITS = {
-    "rad": "rad", "m/s": r"m s$^{-1}$", "1/(m s)": r"m$^{-1}$ s$^{-1}$", "m2": r"m$^{2}$", "m3/s": r"m$^{3}$ s$^{-1}$",
+    "rad": "rad", "m/s": r"m s$^{-1}$", "1/(m s)": r"m$^{-1}$ s$^{-1}$", "m^2": r"m$^{2}$", "m^3/s": r"m$^{3}$ s$^{-1}$",
     "1/s": r"s$^{-1}$", "1/(V m s)": r"V$^{-1}$ m$^{-1}$ s$^{-1}$", "eV^-3/2": r"eV$^{-3/2}$", "1/m": r"m$^{-1}$",
 }
 
 PAIRS = {
     "drift_velocity": ("drift_velocity_flux", "drift_velocity_bulk"),
-    "long_diffusion_N": ("long_diffusion_N_flux", "long_diffusion_N_bulk"),
-    "trans_diffusion_N": ("trans_diffusion_N_flux", "trans_diffusion_N_bulk"),
+    "N_D_L": ("N_D_L_flux", "N_D_L_bulk"),
+    "N_D_T": ("N_D_T_flux", "N_D_T_bulk"),
 }
 """Panels that show a flux and a bulk quantity together."""
 
@@ -55,42 +56,19 @@ _COMPANIONS = {"alpha_N_simple": "alpha_N", "eta_N_simple": "eta_N"}
 """Quantities drawn on another quantity's panel (the ν/(N W) estimates beside the diffusion-corrected ones)."""
 
 _PANEL_LABELS = {
-    "mean_energy_eV": "mean energy ⟨ε⟩",
-    "characteristic_energy_eV": "characteristic energy D$_T$/μ",
+    **{name: Q.label(name) for name in Q.QUANTITIES},
     "drift_velocity": "drift velocity W",
-    "mobility_N": "reduced mobility μN",
-    "long_diffusion_N": "reduced longitudinal diffusion N·D$_L$",
-    "trans_diffusion_N": "reduced transverse diffusion N·D$_T$",
-    "long_diffusion_N_flux": "reduced longitudinal diffusion N·D$_L$ (flux)",
-    "long_diffusion_N_bulk": "reduced longitudinal diffusion N·D$_L$ (bulk)",
-    "trans_diffusion_N_flux": "reduced transverse diffusion N·D$_T$ (flux)",
-    "trans_diffusion_N_bulk": "reduced transverse diffusion N·D$_T$ (bulk)",
-    "alpha_N": "ionization coefficient α/N",
-    "eta_N": "attachment coefficient η/N",
-    "effective_alpha_N": "effective ionization coefficient (α−η)/N",
-    "effective_ionization_frequency": "effective ionization frequency",
-    "ionization_rate_coefficient": "ionization rate coefficient k$_{iz}$",
-    "attachment_rate_coefficient": "attachment rate coefficient k$_{att}$",
-    "excitation_rate_coefficient": "total excitation rate coefficient k$_{ex}$",
-    "penning_ionization_rate_coefficient": "Penning ionization rate coefficient",
-    "penning_fraction": "Penning share of ionization",
-    "rate_coefficients": "rate coefficients",
-    "drift_velocity_flux": "flux drift velocity W",
-    "drift_velocity_bulk": "bulk drift velocity W",
-    "reduced_field_Td": "reduced field E/N",
-    "collision_frequency": "collision frequency",
-    "power_absorbed_eV_s": "power absorbed per electron",
-    "alpha_N_simple": "ionization coefficient ν$_{iz}$/(N W)",
-    "eta_N_simple": "attachment coefficient ν$_{att}$/(N W)",
-    "drift_velocity_amplitude": "drift velocity amplitude W$_1$",
-    "drift_velocity_phase_lag_rad": "drift velocity lag φ behind E",
+    "N_D_L": "reduced longitudinal diffusion N·D$_L$",
+    "N_D_T": "reduced transverse diffusion N·D$_T$",
+    "alpha_N": "Townsend ionization coefficient α/N",
+    "rate_coefficients": "rate coefficients k",
     "flux": "electron flux per released electron",
 }
-"""Plain axis labels of quantities and panels; read them through :func:`label`."""
+"""Axis labels: the plain-words labels of :mod:`avalanche.quantities`, and those of the combined panels."""
 
 _SERIES_LABELS = {"flux": "flux", "bulk": "bulk", "simple": "ν/(N W)"}
 
-DEFAULT_PANELS = ("mean_energy_eV", "drift_velocity", "long_diffusion_N", "trans_diffusion_N", "alpha_N", "eta_N")
+DEFAULT_PANELS = ("mean_energy_eV", "drift_velocity", "N_D_L", "N_D_T", "alpha_N", "eta_N")
 """Panels drawn when no quantities are chosen (those the data have; η/N only where it is nonzero)."""
 
 _PHASE_DEFAULTS = ("mean_energy_eV", "ionization_rate_coefficient", "drift_velocity_flux")
@@ -98,7 +76,7 @@ _PHASE_DEFAULTS = ("mean_energy_eV", "ionization_rate_coefficient", "drift_veloc
 
 def label(name: str) -> str:
     """The plain words (with the usual symbol) naming quantity or panel ``name`` on a figure, e.g.
-    ``label("mobility_N")`` → "reduced mobility μN"; every figure takes its axis labels from here.
+    ``label("N_mu")`` → "reduced mobility μN"; every figure takes its axis labels from here.
 
     Per-process rate coefficients read "rate coefficient of <process>"; an unknown name is shown with spaces for
     underscores rather than as a code name.

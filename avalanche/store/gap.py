@@ -38,7 +38,7 @@ FORMAT_VERSION = 1
 UNITS = {"time_s": "s", "driven_A": "A", "grounded_A": "A", "charge_C": "C", "time_edges_s": "s",
          "driven_per_primary": "1", "grounded_per_primary": "1", "samples": "m, m, m, s, 1", "rho_edges_m": "m",
          "z_edges_m": "m", "s_m": "m", "position_m": "m", "field_V_m": "V/m", "reduced_field_Td": "Td",
-         "alpha_eff_per_m": "1/m", "alpha_N": "m2", "eta_N": "m2", "per_primary": "1", "controlled": "1"}
+         "alpha_eff_per_m": "1/m", "alpha_N": "m^2", "eta_N": "m^2", "per_primary": "1", "controlled": "1"}
 
 
 def _json(value) -> str:

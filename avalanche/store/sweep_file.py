@@ -1,30 +1,33 @@
-"""The sweep results file (HDF5): one group per grid point, a table of headline coefficients, provenance, and the
-crash-safe commit protocol that makes ``--resume`` possible.
+"""The results file (HDF5, format version 2) of a sweep, a single point or a steady-state point: one layout,
+one group per point, a table of every scalar quantity, provenance, and the crash-safe commit protocol that makes
+``--resume`` possible.
 
-Layout (format version 1)::
+Layout (names and units from :mod:`avalanche.quantities`; shared parts in :mod:`avalanche.store.layout`)::
 
-    /                      attrs: file_type = "avalanche-sweep", format_version, package_version, created_utc,
-                                  name, description, mode, master_seed, n_points, runfile_source,
+    /                      attrs: file_type = "avalanche-results", kind = "sweep" | "point" | "steady-state",
+                                  format_version = 2, created_utc, package_version, python_version,
+                                  numpy_version, numba_version, scipy_version, h5py_version, hdf5_version,
+                                  platform, name, description, mode, master_seed, n_points, runfile_source,
                                   runfile_sha256, config_sha256
-    /runfile               the run file's text (string dataset; attr sha256)
+    /runfile               the run file's text (string; empty for a single point); attr sha256
     /config                canonical JSON of everything that determines the results (attr sha256)
-    /crosssections         attrs: species -> SHA-256 checksum of its cross-section set
-    /grid/                 one row per point (index order):
-        mixture_index      (n,) int64
-        mixture            (m,) strings, the mixture labels;  composition_json (m,) exact compositions
-        reduced_field_Td   (n,) float64, units "Td"
-        frequency_Hz       (n,) float64, units "Hz"
-        seed               (n,) int64, the point's seed
-        magnetic_field_T, reduced_magnetic_field_Hx, field_angle_deg
-                           (n,) float64, units "T", "Hx", "deg": only in sweeps with a magnetic grid (a file
-                           without them had B = 0 at every point; readers then report 0, 0, 90)
-    /table/value/<q>       (n,) float64, headline quantity q per point (NaN where not finished); attrs quantity
-                           (the exact name), units
-    /table/stderr/<q>      (n,) float64, its standard error; same attrs
-    /points/<index:06d>/   the engine's per-point layout (avalanche.store.point.write_result), plus attrs
-                           sweep_index, sweep_seed, sweep_attempts, sweep_wall_seconds, sweep_worker,
-                           sweep_finished_utc, sweep_warnings, sweep_reason (failed points) and, written last,
-                           sweep_status = "ok" | "failed"
+    /crosssections/        the cross-section sets used, one string dataset set_<k> each (the project's TOML
+                           format, attrs species, checksum); attrs: species -> SHA-256 checksum
+    /mixtures/             mixture (m,) index scale; label (m,) strings; composition_json (m,)
+    /table/                one row per point on the dimension scale point (n,):
+        mixture_index, mixture (labels), reduced_field_Td [Td], frequency_Hz [Hz], seed,
+        magnetic_field_T [T], reduced_magnetic_field_Hx [Hx], field_angle_deg [deg] (only in sweeps with a
+                           magnetic grid)       coordinates of the points
+        <q>, <q>_stderr    (n,) float64, every scalar quantity q of the points (NaN where a point did not finish
+                           or lacks it); attrs quantity, units, long_name, symbol, coordinates, and process for
+                           the per-process rate coefficients rate_coefficient_<process>
+    /points/<index:06d>/   the per-point layout (avalanche.store.point.write_result), plus attrs sweep_index,
+                           sweep_seed, sweep_attempts, sweep_wall_seconds, sweep_worker, sweep_finished_utc,
+                           sweep_warnings, sweep_reason (failed points) and, written last, sweep_status = "ok" |
+                           "failed"
+
+``xarray.open_dataset(path, engine="h5netcdf", group="table")`` gives the table with the dimension ``point`` and
+the grid columns as coordinates; :meth:`SweepResults.to_xarray` gives the same without h5netcdf.
 
 Crash safety. Only the coordinating process writes. A point is committed by deleting any earlier attempt's
 group, writing the new group and its table rows, setting ``sweep_status`` last and flushing the file before the
@@ -46,26 +49,30 @@ from pathlib import Path
 import h5py
 import numpy as np
 
+from .. import quantities as Q
 from .._version import __version__
 from ..errors import AvalancheError, ConfigError
+from .layout import (
+    FILE_TYPE,
+    FORMAT_VERSION,
+    GRID_COLUMNS,
+    MAGNETIC_COLUMNS,
+    RATE_PREFIX,
+    STATUS_OK,
+    check_root,
+    create_layout,
+    headline_quantities,
+    headline_values,
+    table_columns,
+    write_table_row,
+)
 
-FILE_TYPE = "avalanche-sweep"
-FORMAT_VERSION = 1
-STATUS_OK = "ok"
+__all__ = ["FILE_TYPE", "FORMAT_VERSION", "RATE_PREFIX", "STATUS_OK", "GRID_COLUMNS", "MAGNETIC_COLUMNS",
+           "ResultsWriter", "SweepResults", "open_results", "headline_quantities", "headline_values", "table_columns",
+           "create_layout"]
+
 STATUS_FAILED = "failed"
 STATUS_MISSING = "missing"
-
-RATE_PREFIX = "rate_coefficient:"
-"""Every per-process rate coefficient of a point enters the table as ``rate_coefficient:<label>`` [m³/s]."""
-
-
-def headline_quantities() -> tuple[tuple[str, str], ...]:
-    """(name, units) of the scalar estimates of a result, in display order (:data:`avalanche.engine.results.ESTIMATES`);
-    those a point's result has are copied into the table."""
-    from ..engine.results import ESTIMATES
-
-    return tuple((name, units) for name, units, _ in ESTIMATES)
-
 
 PayloadIO = tuple[Callable, Callable]
 """``(write(h5group, result), read(h5group) -> result)``: how a point's full result is stored."""
@@ -79,28 +86,6 @@ def engine_payload_io() -> PayloadIO:
     except ImportError as exc:
         raise AvalancheError(f"the per-point HDF5 layout (avalanche.store.point) is not available: {exc}") from None
     return write_result, read_result
-
-
-def headline_values(result) -> dict[str, tuple[float, float, str]]:
-    """Name → (value, standard error, units) of every headline quantity ``result`` has.
-
-    A quantity counts when the result has an attribute of that name with ``.value`` and ``.stderr`` (an
-    ``Estimate``); rate coefficients come from the mapping ``result.rate_coefficients``.
-    """
-    out = {}
-    for name, units in headline_quantities():
-        estimate = getattr(result, name, None)
-        if hasattr(estimate, "value") and hasattr(estimate, "stderr"):
-            out[name] = (float(estimate.value), float(estimate.stderr), units)
-    rates = getattr(result, "rate_coefficients", None)
-    if isinstance(rates, Mapping):
-        for label, estimate in rates.items():
-            out[RATE_PREFIX + str(label)] = (float(estimate.value), float(estimate.stderr), "m3/s")
-    return out
-
-
-def _column_name(quantity: str) -> str:
-    return quantity.replace("/", "_")
 
 
 def _now() -> str:
@@ -134,7 +119,7 @@ def incomplete_reason(path: str | Path) -> str | None:
     except OSError:
         return f"it is truncated ({size} bytes) and does not open" if size <= INCOMPLETE_MAX_BYTES else None
     with f:
-        parts = ("runfile", "config", "grid", "table", "points")
+        parts = ("runfile", "config", "crosssections", "mixtures", "table", "points")
         if not f.attrs.get("file_type") and not list(f.keys()):
             return "it has no content"
         if f.attrs.get("file_type") == FILE_TYPE and not all(part in f for part in parts):
@@ -160,14 +145,8 @@ def _open(path: Path, mode: str, **kwargs) -> h5py.File:
         raise AvalancheError(f"cannot open results file '{path}': {exc}") from None
 
 
-def _check_type(f: h5py.File, path: Path) -> None:
-    if f.attrs.get("file_type") != FILE_TYPE:
-        raise AvalancheError(f"'{path}' is not an avalanche sweep results file (file_type = "
-                             f"{f.attrs.get('file_type')!r}, expected '{FILE_TYPE}')")
-    version = int(f.attrs.get("format_version", -1))
-    if version != FORMAT_VERSION:
-        raise AvalancheError(f"'{path}' has sweep format version {version}; this avalanche {__version__} reads "
-                             f"version {FORMAT_VERSION}")
+def _check_type(f: h5py.File, path: Path) -> str:
+    return check_root(f, path)
 
 
 def _point_statuses(f: h5py.File, n_points: int) -> np.ndarray:
@@ -269,47 +248,28 @@ class ResultsWriter:
         self.file = _open(self.path, "r+")
 
     def _create(self) -> None:
-        f, rf = self.file, self.runfile
+        rf = self.runfile
         points = rf.points
-        f.attrs.update({
-            "file_type": FILE_TYPE, "format_version": FORMAT_VERSION, "package_version": __version__,
-            "created_utc": _now(), "name": rf.name, "description": rf.description, "mode": rf.mode,
-            "master_seed": rf.seed, "n_points": len(points), "runfile_source": rf.source,
-            "runfile_sha256": rf.text_sha256, "config_sha256": rf.config_sha256,
-        })
-        f.create_dataset("runfile", data=rf.text, dtype=h5py.string_dtype()).attrs["sha256"] = rf.text_sha256
-        f.create_dataset("config", data=rf.config_json(), dtype=h5py.string_dtype()).attrs["sha256"] = \
-            rf.config_sha256
-        f.create_group("crosssections").attrs.update(rf.checksums)
-        grid = f.create_group("grid")
-        grid.create_dataset("mixture_index", data=np.array([p.mixture_index for p in points], dtype=np.int64))
-        grid.create_dataset("mixture", data=[m.label for m in rf.mixtures], dtype=h5py.string_dtype())
-        grid.create_dataset("composition_json", data=[m.key for m in rf.mixtures], dtype=h5py.string_dtype())
-        grid.create_dataset("reduced_field_Td", data=np.array([p.reduced_field_Td for p in points]))\
-            .attrs["units"] = "Td"
-        grid.create_dataset("frequency_Hz", data=np.array([p.frequency_Hz for p in points])).attrs["units"] = "Hz"
-        grid.create_dataset("seed", data=np.array([p.seed for p in points], dtype=np.int64))
+        grid = {"mixture_index": np.array([p.mixture_index for p in points], dtype=np.int64),
+                "reduced_field_Td": np.array([p.reduced_field_Td for p in points], dtype=float),
+                "frequency_Hz": np.array([p.frequency_Hz for p in points], dtype=float),
+                "seed": np.array([p.seed for p in points], dtype=np.int64)}
+        mixtures = [rf.build_mixture(i) for i in range(len(rf.mixtures))]
         if getattr(rf, "magnetic", False):
-            self._write_magnetic_grid(grid, rf, points)
-        table = f.create_group("table")
-        table.create_group("value")
-        table.create_group("stderr")
-        f.create_group("points")
-        f.flush()
+            from ..constants import HUXLEY_T_m3
 
-    @staticmethod
-    def _write_magnetic_grid(grid, rf, points) -> None:
-        """The magnetic grid columns: B in T and in Hx (converted with each mixture's density) and the angle."""
-        from ..constants import HUXLEY_T_m3
-
-        density = [rf.build_mixture(i).number_density_m3 for i in range(len(rf.mixtures))]
-        given = np.array([p.magnetic_field for p in points])
-        per_point = np.array([density[p.mixture_index] for p in points]) * HUXLEY_T_m3
-        tesla, hx = (given, given / per_point) if rf.magnetic_unit == "T" else (given * per_point, given)
-        grid.create_dataset("magnetic_field_T", data=tesla).attrs["units"] = "T"
-        grid.create_dataset("reduced_magnetic_field_Hx", data=hx).attrs["units"] = "Hx"
-        grid.create_dataset("field_angle_deg", data=np.array([p.field_angle_deg for p in points])).attrs["units"] = \
-            "deg"
+            given = np.array([p.magnetic_field for p in points], dtype=float)
+            per_point = np.array([mixtures[p.mixture_index].number_density_m3 for p in points]) * HUXLEY_T_m3
+            grid["magnetic_field_T"], grid["reduced_magnetic_field_Hx"] = \
+                (given, given / per_point) if rf.magnetic_unit == "T" else (given * per_point, given)
+            grid["field_angle_deg"] = np.array([p.field_angle_deg for p in points], dtype=float)
+        sets = {c.name: c.cross_sections for m in mixtures for c in m.components}
+        create_layout(self.file, "sweep", {
+            "name": rf.name, "description": rf.description, "mode": rf.mode, "master_seed": rf.seed,
+            "runfile_source": rf.source, "runfile_sha256": rf.text_sha256, "config_sha256": rf.config_sha256},
+            grid=grid, labels=[m.label for m in rf.mixtures], compositions=[m.key for m in rf.mixtures],
+            config_json=rf.config_json(), runfile_text=rf.text, sets=sets, checksums=rf.checksums)
+        self.file.flush()
 
     def _check_resumable(self) -> None:
         f, rf, path = self.file, self.runfile, self.path
@@ -341,18 +301,10 @@ class ResultsWriter:
         points = self.file["points"]
         if name in points:
             del points[name]
-        for part in ("value", "stderr"):
-            for column in self.file["table"][part].values():
+        for column in self.file["table"].values():
+            if "quantity" in column.attrs:
                 column[index] = np.nan
         return points.create_group(name)
-
-    def _column(self, part: str, quantity: str, units: str) -> h5py.Dataset:
-        group = self.file["table"][part]
-        name = _column_name(quantity)
-        if name not in group:
-            column = group.create_dataset(name, data=np.full(len(self.runfile.points), np.nan))
-            column.attrs.update({"quantity": quantity, "units": units})
-        return group[name]
 
     def _point_attrs(self, group: h5py.Group, point, info: Mapping) -> None:
         group.attrs.update({"sweep_index": point.index, "sweep_seed": point.seed,
@@ -379,9 +331,7 @@ class ResultsWriter:
             self._point_attrs(group, point, info)
             group.attrs["sweep_converged"] = bool(getattr(result, "converged", True))
             group.attrs["sweep_convergence_notes"] = json.dumps(list(getattr(result, "convergence_notes", [])))
-            for quantity, (value, stderr, units) in headline_values(result).items():
-                self._column("value", quantity, units)[point.index] = value
-                self._column("stderr", quantity, units)[point.index] = stderr
+            write_table_row(self.file["table"], point.index, result)
             group.attrs["sweep_status"] = STATUS_OK
             self.file.flush()
         except OSError as exc:
@@ -446,12 +396,15 @@ class SweepResults:
     mixtures : list of str
         Mixture labels; ``grid["mixture_index"]`` indexes them.
     grid : numpy.ndarray
-        Structured array, one row per point: ``index``, ``mixture_index``, ``mixture``, ``reduced_field_Td``
+        Structured array, one row per point (the coordinates of ``/table``): ``index``,
+        ``mixture_index``, ``mixture``, ``reduced_field_Td``
         [Td], ``frequency_Hz`` [Hz], ``seed``, ``status`` ("ok", "failed" or "missing"), ``magnetic_field_T`` [T],
         ``reduced_magnetic_field_Hx`` [Hx], ``field_angle_deg`` [deg] (0, 0, 90 for a sweep without a magnetic
         field), ``converged`` (False for a finished point marked not converged: not relaxed, or a NaN estimate).
     units : dict
-        Quantity → units of every tabulated quantity, in table order.
+        Quantity → units of every tabulated quantity, in table order (names of :mod:`avalanche.quantities`).
+    processes : dict
+        Rate-coefficient quantity → its exact process label.
     failures : list of dict
         ``index``, ``reason``, ``attempts`` of every failed point.
     not_converged : list of dict
@@ -471,6 +424,62 @@ class SweepResults:
     _stderrs: dict
     _read_payload: Callable | None = None
     not_converged: list = field(default_factory=list)
+    processes: dict = field(default_factory=dict)
+
+    @property
+    def kind(self) -> str:
+        """"sweep", "point" (``avalanche swarm --out``) or "steady-state" (``avalanche townsend --out``)."""
+        return str(self.attrs.get("kind", "sweep"))
+
+    def crosssections(self) -> dict:
+        """Species → the :class:`~avalanche.gas.crosssections.CrossSectionSet` stored in the file (the sets the
+        points were computed with)."""
+        from .layout import read_crosssections
+
+        with _open(self.path, "r") as f:
+            return read_crosssections(f["crosssections"], str(self.path))
+
+    def mixture(self, index: int = 0):
+        """The :class:`~avalanche.gas.mixture.Mixture` of mixture ``index``, rebuilt from the file alone: the
+        stored cross-section sets, composition, temperature, density and Penning groups. Re-running a point with
+        it, the point's seed and settings (``point(i).inputs``) gives the stored result.
+        """
+        from ..gas.mixture import Mixture
+
+        spec = (self.config.get("mixtures") or [{}])[index]
+        done = np.flatnonzero((self.grid["mixture_index"] == index) & (self.grid["status"] == STATUS_OK))
+        with _open(self.path, "r") as f:
+            composition = spec.get("composition") or json.loads(_text(f["mixtures"]["composition_json"][index]))
+            described = (json.loads(_text(f["points"][f"{done[0]:06d}"].attrs["inputs_json"]))["mixture"]
+                         if done.size else {})
+        sets = self.crosssections()
+        penning = (described.get("penning") or {}).get("groups") or spec.get("penning")
+        return Mixture(dict(composition),
+                       temperature_K=described.get("temperature_K", self.config.get("temperature_K", 300.0)),
+                       number_density_m3=described.get("number_density_m3", self.config.get("number_density_m3")),
+                       sets={name: sets[name] for name in composition if name in sets}, penning=penning,
+                       vibrational_temperature_K=described.get("vibrational_temperature_K"))
+
+    def to_xarray(self):
+        """The table as an :class:`xarray.Dataset`: dimension ``point``, the grid columns as coordinates, every
+        quantity ``q`` and ``q_stderr`` as variables with ``units`` and ``long_name`` attributes (xarray is
+        imported only here; it is optional)."""
+        try:
+            import xarray as xr
+        except ImportError:
+            raise AvalancheError("to_xarray() needs xarray, which is not installed (pip install xarray); "
+                                 "SweepResults.table gives the same table as a numpy structured array") from None
+        coords = {name: ("point", self.grid[name], {"units": Q.unit(name), "long_name": Q.label(name)})
+                  for name in self.grid.dtype.names if name != "index"}
+        data = {}
+        for q in self.units:
+            attrs = {"units": self.units[q], "long_name": Q.label(q)}
+            if q in self.processes:
+                attrs["process"] = self.processes[q]
+            data[q] = ("point", self._values[q], attrs)
+            data[q + Q.STDERR_SUFFIX] = ("point", self._stderrs[q], attrs)
+        return xr.Dataset(data, coords={"point": self.grid["index"], **coords},
+                          attrs={k: v for k, v in self.attrs.items() if isinstance(v, (str, int, float))})
 
     @property
     def quantities(self) -> list[str]:
@@ -550,7 +559,8 @@ def _text(value) -> str:
 
 
 def open_results(path: str | Path, *, payload_io: PayloadIO | None = None) -> SweepResults:
-    """Open a sweep results file for reading.
+    """Open a results file for reading: a sweep, a single point (``avalanche swarm --out``) or a steady-state point
+    (``avalanche townsend --out``), all in one layout.
 
     Points without a committed status (an interrupted write) count as missing, and their table rows as NaN.
 
@@ -563,63 +573,71 @@ def open_results(path: str | Path, *, payload_io: PayloadIO | None = None) -> Sw
     Raises
     ------
     AvalancheError
-        When the file is not a sweep results file, has another format version, or cannot be opened.
+        When the file is not an avalanche results file, was written by an older version (the message says to
+        re-run it), has another format version, or cannot be opened.
     """
     path = Path(path)
     if not path.is_file():
         raise ConfigError(f"results file '{path}' not found" if not path.exists() else
-                          f"results file '{path}' is not a regular file; give the .h5 file written by avalanche sweep")
+                          f"results file '{path}' is not a regular file; give the .h5 file written by avalanche")
     reason = incomplete_reason(path)
     if reason is not None:
         raise AvalancheError(_incomplete_message(path, reason))
     with _open(path, "r") as f:
         _check_type(f, path)
-        n = int(f.attrs["n_points"])
-        status = _point_statuses(f, n)
-        ok = status == STATUS_OK
-        g = f["grid"]
-        mixtures = [_text(s) for s in g["mixture"][()]]
-        mixture_index = g["mixture_index"][()]
-        width = max((len(m) for m in mixtures), default=1)
-        grid = np.zeros(n, dtype=[("index", np.int64), ("mixture_index", np.int64), ("mixture", f"U{width}"),
-                                  ("reduced_field_Td", np.float64), ("frequency_Hz", np.float64),
-                                  ("seed", np.int64), ("status", "U7"), ("magnetic_field_T", np.float64),
-                                  ("reduced_magnetic_field_Hx", np.float64), ("field_angle_deg", np.float64),
-                                  ("converged", bool)])
-        grid["index"] = np.arange(n)
-        grid["mixture_index"] = mixture_index
-        grid["mixture"] = [mixtures[i] for i in mixture_index]
-        grid["reduced_field_Td"] = g["reduced_field_Td"][()]
-        grid["frequency_Hz"] = g["frequency_Hz"][()]
-        grid["seed"] = g["seed"][()]
-        grid["status"] = status.astype(str)
-        for name, default in (("magnetic_field_T", 0.0), ("reduced_magnetic_field_Hx", 0.0), ("field_angle_deg", 90.0)):
-            grid[name] = g[name][()] if name in g else default
-        grid["converged"] = True
-        not_converged = []
-        for i in np.flatnonzero(ok):
-            attrs = f["points"][f"{i:06d}"].attrs
-            if not bool(attrs.get("sweep_converged", True)):
-                grid["converged"][i] = False
-                not_converged.append({"index": int(i),
-                                      "notes": json.loads(_text(attrs.get("sweep_convergence_notes", "[]")))})
-        columns = {}
-        for column in f["table"]["value"].values():
-            quantity = _text(column.attrs["quantity"])
-            values = np.where(ok, column[()], np.nan)
-            errors = np.where(ok, f["table"]["stderr"][column.name.rsplit("/", 1)[1]][()], np.nan)
-            columns[quantity] = (_text(column.attrs["units"]), values, errors)
-        order = [q for q, _ in headline_quantities() if q in columns]
-        order += sorted(q for q in columns if q not in order)
-        failures = []
-        for i in np.flatnonzero(status == STATUS_FAILED):
-            attrs = f["points"][f"{i:06d}"].attrs
-            failures.append({"index": int(i), "reason": _text(attrs.get("sweep_reason", "")),
-                             "attempts": int(attrs.get("sweep_attempts", 0))})
-        return SweepResults(
-            path=path, attrs={k: (_text(v) if isinstance(v, bytes) else v) for k, v in f.attrs.items()},
-            runfile_text=_text(f["runfile"][()]), config=json.loads(_text(f["config"][()])),
-            checksums={k: _text(v) for k, v in f["crosssections"].attrs.items()}, mixtures=mixtures, grid=grid,
-            units={q: columns[q][0] for q in order}, failures=failures,
-            _values={q: columns[q][1] for q in order}, _stderrs={q: columns[q][2] for q in order},
-            _read_payload=(payload_io[1] if payload_io else None), not_converged=not_converged)
+        try:
+            return _read(f, path, payload_io)
+        except KeyError as exc:
+            raise AvalancheError(f"'{path}': damaged results file, missing {exc}; re-run it") from None
+
+
+def _read(f: h5py.File, path: Path, payload_io) -> SweepResults:
+    n = int(f.attrs["n_points"])
+    status = _point_statuses(f, n)
+    ok = status == STATUS_OK
+    t = f["table"]
+    mixtures = [_text(s) for s in f["mixtures"]["label"][()]]
+    width = max((len(m) for m in mixtures), default=1)
+    grid = np.zeros(n, dtype=[("index", np.int64), ("mixture_index", np.int64), ("mixture", f"U{width}"),
+                              ("reduced_field_Td", np.float64), ("frequency_Hz", np.float64),
+                              ("seed", np.int64), ("status", "U7"), ("magnetic_field_T", np.float64),
+                              ("reduced_magnetic_field_Hx", np.float64), ("field_angle_deg", np.float64),
+                              ("converged", bool)])
+    grid["index"] = np.arange(n)
+    for name in GRID_COLUMNS:
+        grid[name] = t[name][()]
+    grid["mixture"] = [mixtures[i] for i in grid["mixture_index"]]
+    grid["status"] = status.astype(str)
+    for name, default in zip(MAGNETIC_COLUMNS, (0.0, 0.0, 90.0), strict=True):
+        grid[name] = t[name][()] if name in t else default
+    grid["converged"] = True
+    not_converged = []
+    for i in np.flatnonzero(ok):
+        attrs = f["points"][f"{i:06d}"].attrs
+        if not bool(attrs.get("sweep_converged", True)):
+            grid["converged"][i] = False
+            not_converged.append({"index": int(i),
+                                  "notes": json.loads(_text(attrs.get("sweep_convergence_notes", "[]")))})
+    columns, processes = {}, {}
+    for name, column in t.items():
+        if "quantity" not in column.attrs or name.endswith(Q.STDERR_SUFFIX):
+            continue
+        values = np.where(ok, column[()], np.nan)
+        errors = np.where(ok, t[name + Q.STDERR_SUFFIX][()], np.nan)
+        columns[name] = (_text(column.attrs["units"]), values, errors)
+        if "process" in column.attrs:
+            processes[name] = _text(column.attrs["process"])
+    order = [q for q, _ in headline_quantities() if q in columns]
+    order += sorted(q for q in columns if q not in order)
+    failures = []
+    for i in np.flatnonzero(status == STATUS_FAILED):
+        attrs = f["points"][f"{i:06d}"].attrs
+        failures.append({"index": int(i), "reason": _text(attrs.get("sweep_reason", "")),
+                         "attempts": int(attrs.get("sweep_attempts", 0))})
+    return SweepResults(
+        path=path, attrs={k: (_text(v) if isinstance(v, bytes) else v) for k, v in f.attrs.items()},
+        runfile_text=_text(f["runfile"][()]), config=json.loads(_text(f["config"][()])),
+        checksums={k: _text(v) for k, v in f["crosssections"].attrs.items()}, mixtures=mixtures, grid=grid,
+        units={q: columns[q][0] for q in order}, failures=failures,
+        _values={q: columns[q][1] for q in order}, _stderrs={q: columns[q][2] for q in order},
+        _read_payload=(payload_io[1] if payload_io else None), not_converged=not_converged, processes=processes)

@@ -67,8 +67,7 @@ def test_emission_is_fraction_times_rate(outputs_results):  # noqa: F811
     table = SwarmTable.from_results(open_results(outputs_results), mixture="Ar:0.5,N2:0.5")
     levels = radiating_levels(table.build_mixture())
     k = int(np.argmax(table.reduced_field_Td))
-    rates = {key: (table.get(f"rate_coefficient:{key}")[0][k], table.get(f"rate_coefficient:{key}")[1][k])
-             for key in table.rate_keys}
+    rates = {key: (table.rate(key)[0][k], table.rate(key)[1][k]) for key in table.rate_keys}
     estimate = emission_estimate(levels, rates, float(table.reduced_field_Td[k]))
     assert np.all(np.diff(estimate.wavelength_nm) > 0)
     for j, level in enumerate(estimate.levels):

@@ -13,6 +13,7 @@ import pytest
 
 from avalanche.analysis.tables import QUANTITY_UNITS, SwarmTable, fluid_table, read_table
 from avalanche.errors import ConfigError, PhysicsWarning
+from avalanche.quantities import rate_name
 from avalanche.store.sweep_file import open_results
 
 
@@ -24,11 +25,11 @@ def test_fluid_table_equals_the_results_file(outputs_results, tmp_path):  # noqa
     order = np.argsort(results.grid["reduced_field_Td"][rows])
     assert fluid.coordinate == "reduced_field_Td" and fluid.names[0] == "reduced_field_Td"
     assert np.all(np.diff(fluid["reduced_field_Td"]) > 0)
-    for name in ("mean_energy_eV", "alpha_N", "rate_coefficient:1s4 (3p5 4s [3/2]1, resonant)"):
+    for name in ("mean_energy_eV", "alpha_N", "rate_coefficient_1s4_3p5_4s_3_2_1_resonant"):
         np.testing.assert_array_equal(fluid[name], results.value(name)[rows][order])
         np.testing.assert_array_equal(fluid[f"{name}_stderr"], results.stderr(name)[rows][order])
         assert fluid.units[name] == fluid.units[f"{name}_stderr"] == results.units[name]
-    assert not any(name.startswith("rate_coefficient:N2:") for name in fluid.names)  # the other mixture's processes
+    assert not any(name.startswith("rate_coefficient_N2_") for name in fluid.names)  # the other mixture's processes
     for writer in (fluid.to_csv, fluid.to_text):
         for digits in (None, 7):
             back = read_table(writer(tmp_path / f"t.{writer.__name__}", digits))
@@ -49,21 +50,23 @@ def test_csv_reads_as_numbers_in_pandas(outputs_results, tmp_path):  # noqa: F81
     frame = pandas.read_csv(fluid.to_csv(tmp_path / "rates.csv"), comment="#")
     assert list(frame.columns) == list(fluid.column_labels().values())
     assert all(dtype.kind in "fi" for dtype in frame.dtypes)  # numbers, not strings
-    assert all(re.fullmatch(r"[A-Za-z_][A-Za-z0-9_]*", name) for name in frame.columns)
-    np.testing.assert_allclose(frame["alpha_N"], fluid["alpha_N"], rtol=5e-7)
+    # safe column names: letters, digits and _, then the unit in brackets
+    assert all(re.fullmatch(r"[A-Za-z_][A-Za-z0-9_]*(\[[^\]]+\])?", name) for name in frame.columns)
+    np.testing.assert_allclose(frame["alpha_N[m^2]"], fluid["alpha_N"], rtol=5e-7)
 
 
-def test_csv_header_is_one_line_with_units_in_a_comment(tmp_path):
+def test_csv_header_is_one_line_of_names_with_units_in_brackets(tmp_path):
     table = SwarmTable([20.0, 10.0], {"drift_velocity_bulk": ([2.0, 1.0], [0.1, 0.1]),
-                                      "long_diffusion_N_bulk": ([4.0, 3.0], [0.2, 0.2])})
+                                      "N_D_L_bulk": ([4.0, 3.0], [0.2, 0.2])})
     text = fluid_table(table).format_csv()
     lines = [line for line in text.splitlines() if not line.startswith("#")]
-    assert lines[0] == ("reduced_field_Td,drift_velocity_bulk,drift_velocity_bulk_stderr,long_diffusion_N_bulk,"
-                        "long_diffusion_N_bulk_stderr")
     # SI units of the definitions: W in m/s, N·D in 1/(m s) (common practice).
-    assert ("# units: reduced_field_Td = Td; drift_velocity_bulk = m/s; drift_velocity_bulk_stderr = m/s; "
-            "long_diffusion_N_bulk = 1/(m s); long_diffusion_N_bulk_stderr = 1/(m s)") in text.splitlines()
+    assert lines[0] == ("reduced_field_Td[Td],drift_velocity_bulk[m/s],drift_velocity_bulk_stderr[m/s],"
+                        "N_D_L_bulk[1/(m s)],N_D_L_bulk_stderr[1/(m s)]")
     assert lines[1] == "10,1,0.1,3,0.2"  # sorted by E/N, 7 significant digits
+    text = fluid_table(table).format_text()
+    assert ("# units: reduced_field_Td = Td; drift_velocity_bulk = m/s; drift_velocity_bulk_stderr = m/s; "
+            "N_D_L_bulk = 1/(m s); N_D_L_bulk_stderr = 1/(m s)") in text.splitlines()
 
 
 def test_mean_energy_coordinate_sorted_or_refused():
@@ -110,7 +113,8 @@ def test_from_results_selection(outputs_results):  # noqa: F811
         SwarmTable.from_results(results, mixture=1, frequency_Hz=13.56e6)
     mix = SwarmTable.from_results(results, mixture="Ar:0.5,N2:0.5")
     assert mix.composition == {"Ar": 0.5, "N2": 0.5} and mix.temperature_K == 300.0
-    assert "rate_coefficient:N2:C3Pi_u" in mix.quantities
+    assert "rate_coefficient_N2_C3Pi_u" in mix.quantities and mix.processes["rate_coefficient_N2_C3Pi_u"] == \
+        "N2:C3Pi_u"
 
 
 def test_from_swarm_results_keeps_every_estimate():
@@ -126,7 +130,7 @@ def test_from_swarm_results_keeps_every_estimate():
     for name, estimate in runs[1].estimates.items():
         assert table.get(name)[0][0] == estimate.value or np.isnan(estimate.value)
     for key, estimate in runs[0].rate_coefficients.items():
-        assert table.get(f"rate_coefficient:{key}")[0][1] == estimate.value
+        assert table.rate(key)[0][1] == estimate.value == table.get(rate_name(key))[0][1]
     assert set(table.eedf) == {12.0, 24.0} and table.gas_label == "reid-ramp"
 
 
@@ -138,5 +142,5 @@ def test_a_table_of_the_first_format_still_reads(tmp_path):
                    "# next line: column names; the line after it: units\n"
                    "reduced_field_Td,alpha_N,alpha_N_stderr\nTd,m2,m2\n100.0,1e-21,2e-23\n200.0,3e-21,4e-23\n")
     back = read_table(old)
-    assert back.units["alpha_N"] == "m2" and back.metadata["gas"] == "Ar"
+    assert back.units["alpha_N"] == "m2" and back.metadata["gas"] == "Ar"  # as the old file says
     np.testing.assert_array_equal(back["alpha_N"], [1e-21, 3e-21])

@@ -44,8 +44,8 @@ def test_swarm_command_json_and_hdf5_agree(capsys, tmp_path):
                  "--max-events", "3e6", "--electrons", "1000", "--seed", "3", "--json", "--out", str(out)])
     assert code == 0
     data = json.loads(capsys.readouterr().out)
-    for name in ("mean_energy_eV", "drift_velocity_flux", "drift_velocity_bulk", "long_diffusion_N_flux",
-                 "long_diffusion_N_bulk", "trans_diffusion_N_flux", "trans_diffusion_N_bulk", "alpha_N", "eta_N"):
+    for name in ("mean_energy_eV", "drift_velocity_flux", "drift_velocity_bulk", "N_D_L_flux",
+                 "N_D_L_bulk", "N_D_T_flux", "N_D_T_bulk", "alpha_N", "eta_N"):
         assert set(data[name]) == {"value", "stderr"}, name
     # Reid ramp at 12 Td: mean energy 0.269 eV (Reid 1979, Aust. J. Phys. 32 231 — from memory); 1 % + 3 sigma
     energy = data["mean_energy_eV"]
@@ -79,7 +79,7 @@ def test_demo_runs_the_whole_job_and_says_where_each_output_went(capsys, tmp_pat
     names = _csv_names(tmp_path / "demo_rates.csv")
     assert list(rows[:, 0]) == list(DEMO_FIELDS_Td)
     # alpha/N rises with E/N in argon (Raizer 1991, Gas Discharge Physics, table 4.1 Townsend formula — from memory)
-    alpha = rows[:, names.index("alpha_N")]
+    alpha = rows[:, names.index("alpha_N[m^2]")]
     assert np.all(alpha > 0) and np.all(np.diff(alpha) > 0)
     assert "Caution" in out and "local electrical codes" in out
     assert re.search(r"regime: (quasi-static|effective-field|neither) \(omega/nu_m = ", out)

@@ -76,7 +76,8 @@ def test_table_csv_and_text_files(outputs_results, tmp_path, capsys):
     assert run(capsys, "table", outputs_results, "--mixture", "Ar", "--out", csv_path)[0] == 0
     assert run(capsys, "table", outputs_results, "--mixture", "Ar", "--out", text_path)[0] == 0
     from_csv, from_text = read_table(csv_path), read_table(text_path)
-    assert from_csv.units["alpha_N"] == "m2" and from_csv.units["reduced_field_Td"] == "Td"
+    assert from_csv.units["alpha_N"] == "m^2" and from_csv.units["reduced_field_Td"] == "Td"
+    assert from_text.units == from_csv.units and from_csv.units["N_D_L_bulk"] == "1/(m s)"
     np.testing.assert_array_equal(from_csv["mean_energy_eV"], from_text["mean_energy_eV"])
     loaded = np.loadtxt(text_path)  # the text variant is plain numpy.loadtxt input
     np.testing.assert_array_equal(loaded[:, 0], from_csv["reduced_field_Td"])
@@ -87,9 +88,8 @@ def test_table_to_stdout_against_mean_energy(outputs_results, capsys):
                        "--quantity", "alpha_N,drift_velocity_bulk")
     assert code == 0
     lines = [line for line in out.splitlines() if not line.startswith("#")]
-    assert lines[0] == ("mean_energy_eV,mean_energy_eV_stderr,reduced_field_Td,alpha_N,alpha_N_stderr,"
-                        "drift_velocity_bulk,drift_velocity_bulk_stderr")
-    assert "# units: mean_energy_eV = eV; mean_energy_eV_stderr = eV; reduced_field_Td = Td; alpha_N = m2;" in out
+    assert lines[0] == ("mean_energy_eV[eV],mean_energy_eV_stderr[eV],reduced_field_Td[Td],alpha_N[m^2],"
+                        "alpha_N_stderr[m^2],drift_velocity_bulk[m/s],drift_velocity_bulk_stderr[m/s]")
     energy = np.array([float(line.split(",")[0]) for line in lines[1:]])
     assert np.all(np.diff(energy) > 0)
 
@@ -168,7 +168,8 @@ def test_breakdown_with_steady_state_townsend_coefficients(tmp_path, capsys):
     data = json.loads(out)
     assert data["coefficients_used"] == "sst" and "avalanche.townsend" in data["source"]
     fields = np.array(data["coefficients"]["reduced_field_Td"])
-    alpha = np.array(data["coefficients"]["alpha_N_m2"])
+    alpha = np.array(data["coefficients"]["alpha_N"])
+    assert data["coefficients"]["units"]["alpha_N"] == "m^2"
     expected = paschen_curve(CoefficientTable(fields, alpha, np.zeros_like(alpha), temperature_K=300.0), 0.01,
                              parse_pd("1:3"))
     got = np.array([math.nan if v is None else v for v in data["breakdown_voltage_V"]])
@@ -198,8 +199,10 @@ def test_emission_command(outputs_results, tmp_path, capsys):
     for name in ("outputs_emission_240Td.png", "outputs_emission_240Td.pdf", "outputs_emission.csv"):
         assert (tmp_path / name).stat().st_size > 0
     rows = [line for line in (tmp_path / "outputs_emission.csv").read_text().splitlines() if not line.startswith("#")]
-    assert rows[1] == "Td,,,nm,eV,m3/s,m3/s,,"
-    assert len(rows) == 2 + 3  # Ar 1s2, Ar 1s4, N2 C state
+    assert rows[0] == ("reduced_field_Td[Td],species,level,wavelength_nm[nm],photon_energy_eV[eV],"
+                       "emission_coefficient[m^3/s],emission_coefficient_stderr[m^3/s],relative_rate[1],"
+                       "relative_power[1]")  # one header line, units in brackets
+    assert len(rows) == 1 + 3  # Ar 1s2, Ar 1s4, N2 C state
     code, out, _ = run(capsys, "emission", outputs_results, "--mixture", "Ar", "--json", "--out", tmp_path)
     data = json.loads(out)
     assert code == 0 and len(data["estimates"]) == 4 and data["estimates"][0]["note"] == APPROXIMATION_NOTE

@@ -45,8 +45,8 @@ def _assert_flux_equals_bulk(result):
     # Without ionization or attachment flux and bulk transport coefficients are equal (Robson R E 1991, Aust. J.
     # Phys. 44 685: they differ only through non-conservative collisions; from memory).
     for flux, bulk in (("drift_velocity_flux", "drift_velocity_bulk"),
-                       ("long_diffusion_N_flux", "long_diffusion_N_bulk"),
-                       ("trans_diffusion_N_flux", "trans_diffusion_N_bulk")):
+                       ("N_D_L_flux", "N_D_L_bulk"),
+                       ("N_D_T_flux", "N_D_T_bulk")):
         assert _agree(getattr(result, flux), getattr(result, bulk)), (flux, getattr(result, flux),
                                                                       getattr(result, bulk))
         assert getattr(result, bulk).relative_stderr < 0.03
@@ -120,7 +120,7 @@ def test_population_control_does_not_bias_a_growing_swarm():
     tight = _lucas_saelee(1.0, electrons=1024, events=8e7, seed=22, population_bounds=(0.9, 1.12))
     assert tight.anomalies["population_controls"] > 2 * wide.anomalies["population_controls"]
     for name in ("mean_energy_eV", "drift_velocity_flux", "drift_velocity_bulk", "ionization_rate_coefficient",
-                 "long_diffusion_N_bulk", "trans_diffusion_N_bulk", "alpha_N"):
+                 "N_D_L_bulk", "N_D_T_bulk", "alpha_N"):
         assert _agree(getattr(wide, name), getattr(tight, name), 3.5), name
     # The weights carry the growth: ln(n w) grows at the counted ν_ion − ν_att (exact bookkeeping identity).
     for result in (wide, tight):
@@ -137,8 +137,8 @@ def test_diffusion_windows_do_not_depend_on_the_skip():
     # not change the bulk coefficients (the position–energy correlations have built up).
     short = _lucas_saelee(1.0, electrons=1024, events=8e7, seed=31)
     long = _lucas_saelee(1.0, electrons=1024, events=8e7, seed=32, diffusion_skip=8.0, diffusion_segment=2.0)
-    for name in ("drift_velocity_bulk", "long_diffusion_N_bulk", "trans_diffusion_N_bulk",
-                 "long_diffusion_N_flux"):
+    for name in ("drift_velocity_bulk", "N_D_L_bulk", "N_D_T_bulk",
+                 "N_D_L_flux"):
         assert _agree(getattr(short, name), getattr(long, name), 3.5), name
 
 
@@ -160,9 +160,9 @@ def test_constant_attachment_frequency_is_exact():
     result = _ness_robson(a_A2, -0.5, 4e7, diffusion_skip=0.02)
     exact = maxwell_exact(1.0, 0.0)
     k_exact = a_A2 * 1e-20 * math.sqrt(2 * sc.e / sc.m_e)
-    w, d_l = exact["drift_velocity_bulk"], exact["long_diffusion_N_bulk"] / N_m3
+    w, d_l = exact["drift_velocity_bulk"], exact["N_D_L_bulk"] / N_m3
     expected = {"attachment_rate_coefficient": k_exact, "drift_velocity_flux": w, "drift_velocity_bulk": w,
-                "mean_energy_eV": exact["mean_energy_eV"], "long_diffusion_N_bulk": exact["long_diffusion_N_bulk"],
+                "mean_energy_eV": exact["mean_energy_eV"], "N_D_L_bulk": exact["N_D_L_bulk"],
                 "eta_N_simple": k_exact / w,
                 "eta_N": -float(townsend_coefficient(w, d_l, -N_m3 * k_exact)) / N_m3}
     for name, value in expected.items():
@@ -183,7 +183,7 @@ def test_attachment_growing_with_energy_cools_and_slows_the_bulk():
     assert conservative["mean_energy_eV"] - energy.value > 10 * energy.stderr
     flux, bulk = result.drift_velocity_flux, result.drift_velocity_bulk
     assert flux.value - bulk.value > 10 * math.hypot(flux.stderr, bulk.stderr)
-    assert result.long_diffusion_N_bulk.value < result.long_diffusion_N_flux.value
+    assert result.N_D_L_bulk.value < result.N_D_L_flux.value
     # Population control keeps a decaying swarm alive and does not bias it.
     tight = _ness_robson(5e-3, 0.5, 1e8, seed=4, population_bounds=(0.9, 1.12))
     for name in ("mean_energy_eV", "drift_velocity_bulk", "attachment_rate_coefficient"):

@@ -39,9 +39,9 @@ def maxwell_exact(reduced_field_Td: float, temperature_K: float, mass_amu: float
     vx2 = q * q * (2 * s + v2 / 3) / (1 - p * p)
     vz2 = v2 - 2 * vx2
     return {"drift_velocity_flux": w, "drift_velocity_bulk": w, "mean_energy_eV": 0.5 * m * v2 / sc.e,
-            "trans_diffusion_N_flux": N_m3 * vx2 / (q * nu), "trans_diffusion_N_bulk": N_m3 * vx2 / (q * nu),
-            "long_diffusion_N_flux": N_m3 * (vz2 - w * w) / (q * nu),
-            "long_diffusion_N_bulk": N_m3 * (vz2 - w * w) / (q * nu)}
+            "N_D_T_flux": N_m3 * vx2 / (q * nu), "N_D_T_bulk": N_m3 * vx2 / (q * nu),
+            "N_D_L_flux": N_m3 * (vz2 - w * w) / (q * nu),
+            "N_D_L_bulk": N_m3 * (vz2 - w * w) / (q * nu)}
 
 
 def test_maxwell_exact_reproduces_wannier():

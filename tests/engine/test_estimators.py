@@ -79,10 +79,10 @@ def test_swarm_estimates_of_synthetic_tallies():
     assert est["mean_energy_eV"].stderr == pytest.approx(np.std([4.0, 4.1, 3.9, 4.0], ddof=1) / 2)
     assert est["drift_velocity_flux"].value == pytest.approx(1e5)
     assert est["drift_velocity_bulk"].value == pytest.approx(1e5)
-    assert est["long_diffusion_N_bulk"].value == pytest.approx(0.1 * N)
-    assert est["trans_diffusion_N_bulk"].value == pytest.approx(0.2 * N)
-    assert est["long_diffusion_N_flux"].value == pytest.approx(0.3 * N)
-    assert est["trans_diffusion_N_flux"].value == pytest.approx(0.4 * N)
+    assert est["N_D_L_bulk"].value == pytest.approx(0.1 * N)
+    assert est["N_D_T_bulk"].value == pytest.approx(0.2 * N)
+    assert est["N_D_L_flux"].value == pytest.approx(0.3 * N)
+    assert est["N_D_T_flux"].value == pytest.approx(0.4 * N)
     nu_ion, nu_att = 30 / 1e-6, 10 / 1e-6
     assert est["ionization_rate_coefficient"].value == pytest.approx(nu_ion / N)
     assert est["ionization_rate_coefficient_counted"].value == pytest.approx(nu_ion / N)
@@ -92,7 +92,7 @@ def test_swarm_estimates_of_synthetic_tallies():
     assert est["alpha_N"].value == pytest.approx(float(townsend_coefficient(1e5, 0.1, nu_ion)) / N)
     assert est["eta_N"].value == pytest.approx(-float(townsend_coefficient(1e5, 0.1, -nu_att)) / N)
     assert 0 < est["eta_N"].value < est["eta_N_simple"].value
-    assert est["mobility_N"].value == pytest.approx(1e5 * N / FIELD)
+    assert est["N_mu"].value == pytest.approx(1e5 * N / FIELD)
     # D_T/μ in volts is the characteristic energy in eV.
     assert est["characteristic_energy_eV"].value == pytest.approx(0.2 * FIELD / 1e5)
     k = rate_coefficients(_tallies(), _context())
@@ -127,8 +127,11 @@ def test_result_forms(tmp_path):
               max_events=3e6, seed=2)
     data = json.loads(json.dumps(r.to_dict()))
     assert data["mean_energy_eV"] == {"value": r.mean_energy_eV.value, "stderr": r.mean_energy_eV.stderr}
-    assert set(data["rate_coefficients"]) == {"momentum transfer", "ramp"}
-    assert data["units"]["alpha_N"] == "m2"
+    assert data["processes"] == {"rate_coefficient_momentum_transfer": "momentum transfer",
+                                 "rate_coefficient_ramp": "ramp"}
+    assert data["rate_coefficient_ramp"]["value"] == r.rate_coefficients["ramp"].value
+    assert data["units"]["alpha_N"] == "m^2" and data["units"]["rate_coefficient_ramp"] == "m^3/s"
     table = r.format_table()
-    assert "mean energy" in table and "eV" in table and "±" in table and "k ramp" in table
+    assert "mean energy" in table and "eV" in table and "±" in table and "rate coefficient k of ramp" in table
+    assert "rate_coefficient_ramp" in table and "mean_energy_eV" in table
     assert r.stop_reason in ("precision", "max_events")

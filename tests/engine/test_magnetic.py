@@ -167,15 +167,15 @@ def test_maxwell_model_with_b_parallel_to_e():
     _close(result.mean_energy_eV, exact["mean_energy_eV"])
     for axis in (1, 2):
         assert abs(result.drift_velocity_vector[axis].value) < 3 * result.drift_velocity_vector[axis].stderr
-    reduced = exact["trans_diffusion_N_flux"] / (1 + (omega_c / nu_m) ** 2)
-    for tensor in (result.diffusion_tensor_N_flux, result.diffusion_tensor_N_bulk):
+    reduced = exact["N_D_T_flux"] / (1 + (omega_c / nu_m) ** 2)
+    for tensor in (result.N_D_tensor_flux, result.N_D_tensor_bulk):
         for axis in (1, 2):
             est = tensor[axis, axis]
             # diffusion: the 2 % of the existing Maxwell-model diffusion checks (test_engine), 3σ
             assert abs(est.value - reduced) < 3 * est.stderr + 0.02 * reduced, (axis, est, reduced)
         est = tensor[0, 0]
-        assert abs(est.value - exact["long_diffusion_N_flux"]) < 3 * est.stderr + 0.02 * exact[
-            "long_diffusion_N_flux"], est
+        assert abs(est.value - exact["N_D_L_flux"]) < 3 * est.stderr + 0.02 * exact[
+            "N_D_L_flux"], est
     # the same swarm without the field (statistically independent run): drift and energy agree within errors
     free = _run(0.0, 0.0, seed=2)
     for name in ("drift_velocity_flux", "mean_energy_eV"):
@@ -215,11 +215,11 @@ def test_magnetic_result_round_trips_through_json_and_hdf5(tmp_path):
     assert data["lorentz_angle_deg"]["value"] == pytest.approx(math.degrees(math.atan2(math.hypot(w[1], w[2]), w[0])),
                                                                rel=1e-12)
     assert w[1] > 0  # E×B drift along +ê_E×B (a force-free drift E×B/B², common practice)
-    assert np.shape(data["diffusion_tensor_N_flux"]["value"]) == (3, 3)
+    assert np.shape(data["N_D_tensor_flux"]["value"]) == (3, 3)
     back = load_result(save_result(tmp_path / "point.h5", result))
     for i in range(3):
         assert back.drift_velocity_vector[i] == result.drift_velocity_vector[i]
     assert back.lorentz_angle_deg == result.lorentz_angle_deg
-    assert np.array_equal(back.diffusion_tensor_N_bulk.value, result.diffusion_tensor_N_bulk.value)
+    assert np.array_equal(back.N_D_tensor_bulk.value, result.N_D_tensor_bulk.value)
     assert _tallies_equal(back, result)
     assert back.to_dict()["magnetic_field_T"] == data["magnetic_field_T"]

@@ -35,8 +35,8 @@ def test_rule_picks_the_worst_quantity_and_bounds_zero_ones():
     rule = StopRule(0.1, (), ("el", "ex", "ion"), ("elastic", "excitation", "ionization"), np.array([0, 10, 15.0]),
                     np.full(3, 1e-4), np.ones(3), 2.0)
     est = {name: Estimate(1.0, 0.01) for name in ("mean_energy_eV", "drift_velocity_flux", "drift_velocity_bulk",
-                                                   "long_diffusion_N_flux", "long_diffusion_N_bulk",
-                                                   "trans_diffusion_N_flux", "trans_diffusion_N_bulk")}
+                                                   "N_D_L_flux", "N_D_L_bulk",
+                                                   "N_D_T_flux", "N_D_T_bulk")}
     est["mean_energy_eV"] = Estimate(5.0, 0.05)
     est["drift_velocity_bulk"] = Estimate(4.0, 0.01)
     est["alpha_N"] = Estimate(0.0, 0.0)          # no ionization seen
@@ -71,8 +71,8 @@ def test_every_tested_quantity_reaches_its_target():
     assert "relaxing" in stages and stages[-1] == "sampling"
     assert states[-1]["quantity"] and states[-1]["events"] <= result.events
     assert result.stop_reason == "precision"
-    tested = ("mean_energy_eV", "drift_velocity_bulk", "long_diffusion_N_flux", "long_diffusion_N_bulk",
-              "trans_diffusion_N_flux", "trans_diffusion_N_bulk")
+    tested = ("mean_energy_eV", "drift_velocity_bulk", "N_D_L_flux", "N_D_L_bulk",
+              "N_D_T_flux", "N_D_T_bulk")
     for name in tested:
         assert result.estimates[name].relative_stderr < 0.1, name
     assert result.drift_velocity_flux.relative_stderr < 0.02

@@ -347,9 +347,9 @@ def test_einstein_relation_for_hard_spheres_at_low_field():
         warnings.simplefilter("ignore")
         result = swarm(mixture, 0.2, seed=12, electrons=2048, max_events=1e8, precision=1e-9)
     assert result.anomalies["frequency_above_bound"] == 0
-    w, d = result.drift_velocity_flux, result.trans_diffusion_N_flux
-    mobility_N = w.value / (0.2 * 1e-21)               # μN [1/(V m s)]
-    ratio = d.value / mobility_N                       # D_T/μ [V]
+    w, d = result.drift_velocity_flux, result.N_D_T_flux
+    N_mu = w.value / (0.2 * 1e-21)               # μN [1/(V m s)]
+    ratio = d.value / N_mu                       # D_T/μ [V]
     error = ratio * math.hypot(w.relative_stderr, d.relative_stderr)
     assert abs(ratio - kT_eV(300.0)) < 0.02 * kT_eV(300.0) + 1e-12, (ratio, error)
     assert abs(ratio - kT_eV(300.0)) < 3 * error, (ratio, error)

@@ -350,7 +350,8 @@ def test_swarm_command_takes_penning(capsys):
     data = json.loads(capsys.readouterr().out)
     assert data["inputs"]["mixture"]["penning"]["groups"] == {"Ne:2p": 0.5}
     key = "Penning Ne:2p manifold (2p5 3p, lumped) -> Ar"
-    assert key in data["rate_coefficients"] and "penning_fraction" in data
+    name = "rate_coefficient_Penning_Ne_2p_manifold_2p5_3p_lumped_Ar"
+    assert data["processes"][name] == key and name in data and "penning_fraction" in data
 
 
 @pytest.mark.parametrize("value, message", [("Ne", "must be GROUP:PROBABILITY"),

@@ -66,7 +66,7 @@ def test_swarm_plot_shows_the_file_data(argon, outputs_results, tmp_path):  # no
     results = open_results(outputs_results)
     rows = results.grid["mixture_index"] == 0
     drawn = lines_by_gid(figure)
-    for name in ("mean_energy_eV", "drift_velocity_flux", "drift_velocity_bulk", "long_diffusion_N_bulk", "alpha_N"):
+    for name in ("mean_energy_eV", "drift_velocity_flux", "drift_velocity_bulk", "N_D_L_bulk", "alpha_N"):
         fields, values = results.grid["reduced_field_Td"][rows], results.value(name)[rows]
         errors = results.stderr(name)[rows]
         shown = np.isfinite(values) & (values > 0)  # log axes: zero or undefined values are left out
@@ -114,7 +114,7 @@ def test_reference_overlay(argon, tmp_path):
 def test_quantity_selection(argon):
     drawn = lines_by_gid(plot_swarm_parameters(argon, ["drift_velocity_bulk", "rate_coefficients"]))
     assert "drift_velocity_bulk" in drawn and "drift_velocity_flux" not in drawn
-    assert "rate_coefficient:1s4 (3p5 4s [3/2]1, resonant)" in drawn
+    assert "rate_coefficient_1s4_3p5_4s_3_2_1_resonant" in drawn
     with pytest.raises(ConfigError, match="did you mean 'mean_energy_eV'"):
         plot_swarm_parameters(argon, ["mean_energy"])
 
@@ -123,8 +123,8 @@ def test_labels_are_our_own_and_do_not_overlap(argon):
     # several quantities at once: no two tick or axis labels of the figure overlap once drawn (the figure's own
     # renderer measures them), the series of the computed data is not named after the package, the title holds
     # no file name, and a log axis spanning less than two decades shows plain numbers ("6", not "6×10⁰")
-    figure = plot_swarm_parameters(argon, ["mean_energy_eV", "drift_velocity", "long_diffusion_N",
-                                           "trans_diffusion_N", "alpha_N", "eta_N", "rate_coefficients"])
+    figure = plot_swarm_parameters(argon, ["mean_energy_eV", "drift_velocity", "N_D_L",
+                                           "N_D_T", "alpha_N", "eta_N", "rate_coefficients"])
     renderer = FigureCanvasAgg(figure).get_renderer()
     figure.draw(renderer)
     for ax in figure.axes:
@@ -230,19 +230,19 @@ def test_no_text_overlaps_with_many_quantities_in_any_figure(argon):
     # lines, the phase panels and the Paschen plot (common practice for figures meant for papers).
     from overlap import overlaps
 
-    swarm = plot_swarm_parameters(argon, ["mean_energy_eV", "drift_velocity", "long_diffusion_N",
-                                          "trans_diffusion_N", "alpha_N", "eta_N", "rate_coefficients",
-                                          "ionization_rate_coefficient", "mobility_N"])
+    swarm = plot_swarm_parameters(argon, ["mean_energy_eV", "drift_velocity", "N_D_L",
+                                          "N_D_T", "alpha_N", "eta_N", "rate_coefficients",
+                                          "ionization_rate_coefficient", "N_mu"])
     assert overlaps(swarm) == []
     fields = np.array([50.0, 100.0, 200.0, 400.0])  # a short figure: long labels and a long legend, 2 rows
     data = {"mean_energy_eV": (np.array([3.0, 5.0, 7.0, 9.0]), np.full(4, 0.05)),
             "alpha_N": (3e-21 * (1 + fields / 1000), np.full(4, 1e-24)),
-            "mobility_N": (np.full(4, 1e24), np.full(4, 1e22)),
+            "N_mu": (np.full(4, 1e24), np.full(4, 1e22)),
             **{f"rate_coefficient:level {k} (3p5 4s)": (1e-16 * (k + 1) * fields / 100, np.full(4, 1e-18))
                for k in range(12)}}
     short = SwarmTable(fields, data, gas_label="Ar")
     assert overlaps(plot_swarm_parameters(short, ["rate_coefficients", "mean_energy_eV", "alpha_N",
-                                                  "mobility_N"])) == []
+                                                  "N_mu"])) == []
     wavelengths = [104.82, 105.2, 106.67, 106.9, 750.4, 751.5, 811.5, 811.8, 763.5]
     emission = plot_emission_spectrum(wavelengths, [0.4, 0.5, 1.0, 0.9, 0.3, 0.35, 0.6, 0.55, 0.7],
                                       [f"level {k}" for k in range(9)])

@@ -85,7 +85,7 @@ def test_headline_values_take_estimates_and_rate_coefficients():
     values = headline_values(stand_in(2))
     assert values["mean_energy_eV"] == (3.0, 0.03, "eV")
     assert values["drift_velocity_bulk"] == (2e4, 5.0, "m/s")
-    assert values["rate_coefficient:ramp"] == (2e-14, 1e-16, "m3/s")
+    assert values["rate_coefficient_ramp"] == (2e-14, 1e-16, "m^3/s")
     assert "alpha_N" not in values  # the stand-in has no such estimate
 
 
@@ -101,12 +101,12 @@ def test_a_complete_file_reads_back(tmp_path):
     assert list(res.grid["seed"]) == [p.seed for p in rf.points]
     assert list(res.grid["status"]) == ["ok"] * 6
     assert res.quantities[:2] == ["mean_energy_eV", "drift_velocity_bulk"]  # headline order, then rates
-    assert res.quantities[2:] == ["rate_coefficient:a/b", "rate_coefficient:ramp"]
-    assert res.units["mean_energy_eV"] == "eV" and res.units["rate_coefficient:ramp"] == "m3/s"
+    assert res.quantities[2:] == ["rate_coefficient_a_b", "rate_coefficient_ramp"]
+    assert res.units["mean_energy_eV"] == "eV" and res.units["rate_coefficient_ramp"] == "m^3/s"
     np.testing.assert_array_equal(res.value("mean_energy_eV"), 1.0 + np.arange(6))
     np.testing.assert_array_equal(res.stderr("mean_energy_eV"), 0.01 * (np.arange(6) + 1))
     table = res.table
-    np.testing.assert_array_equal(table["rate_coefficient:ramp"], 1e-14 * np.arange(6))
+    np.testing.assert_array_equal(table["rate_coefficient_ramp"], 1e-14 * np.arange(6))
     np.testing.assert_array_equal(table["reduced_field_Td"], res.grid["reduced_field_Td"])
     np.testing.assert_array_equal(res.point(4).curve, np.linspace(0, 4, 5))
     with pytest.raises(ConfigError, match="no quantity 'mean_energy' in the table \\(did you mean 'mean_energy_eV'"):
@@ -125,11 +125,18 @@ def test_the_file_describes_itself(tmp_path):
     assert res.runfile_text == RUN and res.config == rf.config()
     assert res.checksums == rf.checksums and set(res.checksums) == {"reid-ramp", "maxwell"}
     with h5py.File(path, "r") as f:
-        assert f["grid/reduced_field_Td"].attrs["units"] == "Td"
-        assert f["grid/frequency_Hz"].attrs["units"] == "Hz"
-        for part in ("value", "stderr"):
-            for column in f["table"][part].values():
-                assert column.attrs["units"] and column.attrs["quantity"]
+        assert f.attrs["kind"] == "sweep"
+        assert f["table/reduced_field_Td"].attrs["units"] == "Td"
+        assert f["table/frequency_Hz"].attrs["units"] == "Hz"
+        columns = [c for c in f["table"].values() if "quantity" in c.attrs]
+        assert {c.name.rsplit("/", 1)[1] for c in columns} == {
+            "mean_energy_eV", "mean_energy_eV_stderr", "drift_velocity_bulk", "drift_velocity_bulk_stderr",
+            "rate_coefficient_ramp", "rate_coefficient_ramp_stderr", "rate_coefficient_a_b",
+            "rate_coefficient_a_b_stderr"}
+        assert all(c.attrs["units"] for c in columns)
+        assert f["table/rate_coefficient_a_b"].attrs["process"] == "a/b"
+        stored = {d.attrs["species"] for d in f["crosssections"].values()}
+        assert stored == {"reid-ramp", "maxwell"}  # the sets used, in the file
         point = f["points/000000"]
         assert point.attrs["sweep_status"] == "ok" and point.attrs["sweep_seed"] == rf.points[0].seed
         assert point.attrs["sweep_worker"] == "here:1" and point.attrs["sweep_wall_seconds"] == 0.5
@@ -265,14 +272,14 @@ def test_other_files_are_rejected_clearly(tmp_path):
     other = tmp_path / "other.h5"
     with h5py.File(other, "w") as f:
         f.attrs["file_type"] = "something-else"
-    with pytest.raises(AvalancheError, match="is not an avalanche sweep results file"):
+    with pytest.raises(AvalancheError, match="is not an avalanche results file"):
         open_results(other)
     rf = parse_runfile(RUN, "file-test.toml")
     newer = tmp_path / "newer.h5"
     make_file(newer, rf, indices=(0,))
     with h5py.File(newer, "r+") as f:
         f.attrs["format_version"] = FORMAT_VERSION + 1
-    with pytest.raises(AvalancheError, match=f"has sweep format version {FORMAT_VERSION + 1}"):
+    with pytest.raises(AvalancheError, match=f"has results format version {FORMAT_VERSION + 1}"):
         open_results(newer)
     with pytest.raises(ConfigError, match="not found"):
         open_results(tmp_path / "absent.h5")
