@@ -41,7 +41,8 @@ _WIDTH_IN = 7.0
 _PANEL_HEIGHT_IN = 2.5
 
 _PRETTY_UNITS = {
-    "rad": "rad", "m/s": r"m s$^{-1}$", "1/(m s)": r"m$^{-1}$ s$^{-1}$", "m^2": r"m$^{2}$", "m^3/s": r"m$^{3}$ s$^{-1}$",
+    "rad": "rad",
+    "m/s": r"m s$^{-1}$", "1/(m s)": r"m$^{-1}$ s$^{-1}$", "m^2": r"m$^{2}$", "m^3/s": r"m$^{3}$ s$^{-1}$",
     "1/s": r"s$^{-1}$", "1/(V m s)": r"V$^{-1}$ m$^{-1}$ s$^{-1}$", "eV^-3/2": r"eV$^{-3/2}$", "1/m": r"m$^{-1}$",
 }
 
@@ -63,6 +64,7 @@ _PANEL_LABELS = {
     "alpha_N": "Townsend ionization coefficient α/N",
     "rate_coefficients": "rate coefficients k",
     "flux": "electron flux per released electron",
+    "drift_velocity_amplitude": "drift velocity amplitude W$_1$",
 }
 """Axis labels: the plain-words labels of :mod:`avalanche.quantities`, and those of the combined panels."""
 

@@ -36,6 +36,7 @@ from avalanche.plots import (
     save_figure,
 )
 from avalanche.plots.style import draw_errorbar, new_figure, set_log_y
+from avalanche.quantities import rate_name
 from avalanche.store.sweep_file import open_results
 
 
@@ -238,7 +239,7 @@ def test_no_text_overlaps_with_many_quantities_in_any_figure(argon):
     data = {"mean_energy_eV": (np.array([3.0, 5.0, 7.0, 9.0]), np.full(4, 0.05)),
             "alpha_N": (3e-21 * (1 + fields / 1000), np.full(4, 1e-24)),
             "N_mu": (np.full(4, 1e24), np.full(4, 1e22)),
-            **{f"rate_coefficient:level {k} (3p5 4s)": (1e-16 * (k + 1) * fields / 100, np.full(4, 1e-18))
+            **{rate_name(f"level {k} (3p5 4s)"): (1e-16 * (k + 1) * fields / 100, np.full(4, 1e-18))
                for k in range(12)}}
     short = SwarmTable(fields, data, gas_label="Ar")
     assert overlaps(plot_swarm_parameters(short, ["rate_coefficients", "mean_energy_eV", "alpha_N",
