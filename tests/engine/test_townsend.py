@@ -299,11 +299,17 @@ def _sst_against_tof(result):
 
     Relation: α = [W − √(W² − 4 D_L ν_i)]/(2 D_L) with the bulk time-of-flight W, D_L (Tagashira H, Sakai Y &
     Sakamoto S 1977, J. Phys. D 10 1051; Blevin H A & Fletcher J 1984, Aust. J. Phys. 37 593 — from memory). It is
-    the first-order hydrodynamic relation, so it holds within the combined standard errors only where the
-    higher-order transport terms are below them: 3 combined standard errors (hypot: the two runs are independent).
+    the hydrodynamic relation truncated after the diffusion term: it neglects α³D₃ and higher terms of
+    ν_i = αW − α²D_L + α³D₃ − … (Kondo K & Tagashira H 1990, J. Phys. D 23 1175 — from memory). The expansion is
+    in powers of α D_L/W with coefficients of order one (D₃ of order D_L²/W: common practice), so its truncation
+    error is of the order of the square of the first correction, c² · α with c = (ν/(N W) − α_TOF)/α_TOF, the
+    relative size of the diffusion term this run measures. Tolerance: that truncation bound plus 3 combined
+    standard errors (hypot: the two runs are independent). At 400 Td in argon c² is below the errors; at 1000 Td
+    (α D_L/W no longer small) it is not, and a precise run shows the difference.
     """
     sst, tof, simple = result.effective_alpha_N, result.comparison["alpha_N"], result.comparison["alpha_N_simple"]
-    assert abs(sst.value - tof.value) <= 3 * math.hypot(sst.stderr, tof.stderr), (sst, tof)
+    truncation = ((simple.value - tof.value) / tof.value) ** 2 * abs(tof.value)
+    assert abs(sst.value - tof.value) <= truncation + 3 * math.hypot(sst.stderr, tof.stderr), (sst, tof, simple)
     # ν/(N W) is a different number here: the diffusion correction exceeds the errors (ten or more of them).
     assert abs(sst.value - simple.value) > 5 * math.hypot(sst.stderr, simple.stderr), (sst, simple)
     # Ionizations per flux path and the growth of ln Γ measure the same α without attachment (continuity).
