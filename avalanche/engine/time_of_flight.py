@@ -101,6 +101,10 @@ IONIZING_KINDS = ("ionization", "penning")
 RELAXATION_MIN_CHUNKS = 8
 RELAXATION_MIN_ENERGY_TIMES = 3.0
 GROWTH_PER_CHUNK = 0.3
+PILOT_ELECTRONS_PER_REPLICA = 16
+"""Electrons per replica of the pilot relaxation (see :func:`_pilot_check`)."""
+PILOT_TRIGGER = 0.05
+"""The pilot relaxation starts when relaxing the full ensemble would take more than this fraction of max_events."""
 """A chunk is at most GROWTH_PER_CHUNK / |ν_eff| long, so the population changes by < ~35 % per chunk."""
 
 
@@ -268,6 +272,8 @@ class _Run:
                                 np.zeros((R, P), dtype=np.int64))
         self.eedf_max_eV = self.grid.energy_max_eV
         self.events = 0
+        self.chunk_scale = 1.0  # chunks this many times longer while the ensemble is below its target (pilot)
+        self.pilot = False
         self.anomalies = {"energy_grid_doublings": 0, "energy_grid_reductions": 0, "capacity_enlargements": 0,
                           "redone_chunks": 0, "shortened_chunks": 0, "frequency_above_bound": 0,
                           "population_controls": 0, "not_relaxed": 0}
@@ -315,7 +321,7 @@ class _Run:
         self.grid = EnergyGrid.build(self.table, energy_max_eV, self.settings.energy_cells)
 
     def chunk_duration(self, nu_eff: float) -> float:
-        dt = self.settings.events_per_chunk / self.grid.nu_star
+        dt = self.settings.events_per_chunk * self.chunk_scale / self.grid.nu_star
         if nu_eff != 0.0 and math.isfinite(nu_eff):
             dt = min(dt, GROWTH_PER_CHUNK / abs(nu_eff))
         return dt
@@ -537,6 +543,83 @@ def _energy_relaxation_time(run: _Run, mean_energy_eV: float, drift_velocity: fl
     return elastic
 
 
+def _recent_rates(series: _Series, chunks: int) -> tuple[float, float, float, float]:
+    """Pooled over the replicas and the last ``chunks`` chunks: (mean energy [eV], flux drift velocity [m/s], real
+    collision frequency [s⁻¹], trial events per electron-second [s⁻¹])."""
+    events = series.array("events")[-chunks:].sum()
+    exposure = series.array("exposure")[-chunks:].sum()
+    return (float(series.array("energy_sum")[-chunks:].sum() / events),
+            float(series.array("vz_sum")[-chunks:].sum() / events),
+            float(series.array("real")[-chunks:].sum() / exposure), float(events / exposure))
+
+
+def _relaxation_events(run: _Run, series: _Series, electrons: int) -> tuple[float, float]:
+    """(τ_ε [s], trial events) that relaxing ``electrons`` electrons over RELAXATION_MIN_ENERGY_TIMES energy
+    relaxation times takes, at the rates of the last chunks."""
+    energy, drift, frequency, trial = _recent_rates(series, RELAXATION_MIN_CHUNKS)
+    tau = _energy_relaxation_time(run, energy, drift, frequency)
+    return tau, RELAXATION_MIN_ENERGY_TIMES * tau * trial * electrons
+
+
+def _pilot_check(run: _Run, series: _Series) -> bool:
+    """Start the pilot relaxation when relaxing the full ensemble would be expensive; returns whether it started.
+
+    After the first RELAXATION_MIN_CHUNKS chunks the energy relaxation time τ_ε (:func:`_energy_relaxation_time`:
+    the time the field takes to supply the swarm's energy, at least ~M/(2m) elastic collisions in a rare gas) and
+    the trial-event rate give the events the relaxation test needs. When that exceeds PILOT_TRIGGER × max_events,
+    each replica is thinned to PILOT_ELECTRONS_PER_REPLICA electrons (unbiased population control,
+    :meth:`Ensemble.retarget`), which relax at a fraction of the cost; :func:`_leave_pilot` clones them back when
+    the test passes. The stationarity test and the number of energy relaxation times do not depend on the number
+    of electrons; chunks are made longer in proportion so that the work per chunk stays the same. Runs that relax
+    cheaply never take this path (their results are unchanged).
+    """
+    ens, s = run.ens, run.settings
+    if ens.target <= PILOT_ELECTRONS_PER_REPLICA:
+        return False
+    _, needed = _relaxation_events(run, series, int(ens.count.sum()))
+    if not (math.isfinite(needed) and needed > PILOT_TRIGGER * s.max_events):
+        return False
+    run.pilot = True
+    run.anomalies["pilot_electrons"] = PILOT_ELECTRONS_PER_REPLICA * ens.replicas
+    run.chunk_scale = ens.target / PILOT_ELECTRONS_PER_REPLICA
+    ens.retarget(PILOT_ELECTRONS_PER_REPLICA)
+    return True
+
+
+def _leave_pilot(run: _Run, series: _Series, tau: float) -> bool:
+    """Clone the relaxed pilot electrons up to the ensemble that sampling can afford; returns True.
+
+    The full target (``electrons``) when half of the remaining budget covers one position window (diffusion_skip +
+    diffusion_segment energy relaxation times) for every electron, else fewer (at least the pilot's): a swarm with
+    a long energy relaxation then samples with fewer electrons over a longer time, which costs the same per
+    event and gives finite bulk and diffusion estimates within the budget. ``anomalies["sampled_electrons"]``
+    records the size used.
+    """
+    ens, s = run.ens, run.settings
+    _, _, _, trial = _recent_rates(series, RELAXATION_MIN_CHUNKS)
+    full = s.electrons // s.replicas
+    window = s.diffusion_skip * (1.0 + s.diffusion_segment) * tau if math.isfinite(tau) and tau > 0 else 0.0
+    remaining = max(s.max_events - run.events, 0)
+    affordable = 0.5 * remaining / (trial * window * ens.replicas) if window > 0 else full
+    target = int(min(full, max(ens.target, math.floor(affordable))))
+    run.pilot = False
+    run.chunk_scale = full / target
+    ens.retarget(target)
+    run.anomalies["sampled_electrons"] = target * ens.replicas
+    return True
+
+
+def _relaxation_advice(run: _Run, series: _Series) -> str:
+    """What to change when the relaxation test did not pass in the budget: the events it needs at this point
+    (sampling is forced at half of max_events, hence the factor 2)."""
+    tau, needed = _relaxation_events(run, series, int(run.ens.count.sum()))
+    if not (math.isfinite(needed) and needed > 0):
+        return "raise max_events"
+    return (f"the energy relaxation time is about {tau:.3g} s and relaxing {int(run.ens.count.sum())} electrons "
+            f"needs about {needed:.3g} trial events: raise max_events to at least {2.0 * needed:.3g}, or lower "
+            "electrons")
+
+
 def _shrink_grid(run: _Run, recent_max_eV: float, factor: float) -> None:
     """Lower the grid top to ``factor`` × the largest energy met recently, if that is below half the top.
 
@@ -572,6 +655,7 @@ def _simulate(run: _Run, reduced_field_Td: float, progress=None) -> SwarmResult:
                     t_.target_density_m3, run.mixture.number_density_m3,
                     only=None if precision_on == "auto" else precision_on)
     mature_chunks = 0
+    resized = False  # the ensemble was resampled to a new size (pilot relaxation): position moments start again
     drive = run.drive  # AC: chunks end on a grid holding every period boundary; the relaxation test runs there
     started = time.perf_counter()
     phase_tallies = ac.PhaseTallies.zeros(s.replicas, drive.phase_bins, len(run.table.processes)) if drive else None
@@ -611,14 +695,18 @@ def _simulate(run: _Run, reduced_field_Td: float, progress=None) -> SwarmResult:
             # the budget and the wall-clock limit are checked after every chunk, also inside a period
             over_time = _over_time(s, started)
             forced = run.events >= 0.5 * s.max_events or over_time
+            if drive is None and not run.pilot and len(series) == RELAXATION_MIN_CHUNKS and not (ok and enough):
+                resized = _pilot_check(run, series)
             if (ok and enough) or forced:
                 if forced and not (ok and enough):
                     run.anomalies["not_relaxed"] = 1
                     limit = (f"max_wall_seconds = {s.max_wall_seconds:g}" if over_time
                              else f"half of max_events = {s.max_events:g}")
                     warnings.warn(f"E/N = {reduced_field_Td:g} Td: the swarm did not pass the relaxation test "
-                                  f"within {limit}; sampling starts anyway (raise max_events)", PhysicsWarning,
-                                  stacklevel=3)
+                                  f"within {limit}; sampling starts anyway ({_relaxation_advice(run, series)})",
+                                  PhysicsWarning, stacklevel=3)
+                if run.pilot:
+                    resized = _leave_pilot(run, series, tau)
                 sampling = True
                 relaxation_time = t
                 _shrink_grid(run, float(series.array("max_energy")[len(series) // 2:].max()), 1.5)
@@ -645,8 +733,9 @@ def _simulate(run: _Run, reduced_field_Td: float, progress=None) -> SwarmResult:
             if t_start + slack >= mature_from:
                 tallies.add_mature_chunk(sums, counts, dt, start[:, 2:5], end[:, 2:5], start_b, end_b)
                 mature_chunks += 1
-        if ens.control():
-            run.anomalies["population_controls"] += 1
+        if ens.control() or resized:
+            run.anomalies["population_controls"] += 0 if resized else 1
+            resized = False
             start = ens.moments()
             start_b = moments()
         else:
