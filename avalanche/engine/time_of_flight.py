@@ -105,6 +105,10 @@ PILOT_ELECTRONS_PER_REPLICA = 16
 """Electrons per replica of the pilot relaxation (see :func:`_pilot_check`)."""
 PILOT_TRIGGER = 0.05
 """The pilot relaxation starts when relaxing the full ensemble would take more than this fraction of max_events."""
+PILOT_CHECK_CHUNKS = 2
+"""The pilot decision is taken after this many chunks of the full ensemble."""
+PILOT_CHUNK_EVENTS = 100_000
+"""Pilot chunks are made long enough to hold about this many trial events (fewer, cheaper Python steps)."""
 """A chunk is at most GROWTH_PER_CHUNK / |ν_eff| long, so the population changes by < ~35 % per chunk."""
 
 
@@ -556,7 +560,7 @@ def _recent_rates(series: _Series, chunks: int) -> tuple[float, float, float, fl
 def _relaxation_events(run: _Run, series: _Series, electrons: int) -> tuple[float, float]:
     """(τ_ε [s], trial events) that relaxing ``electrons`` electrons over RELAXATION_MIN_ENERGY_TIMES energy
     relaxation times takes, at the rates of the last chunks."""
-    energy, drift, frequency, trial = _recent_rates(series, RELAXATION_MIN_CHUNKS)
+    energy, drift, frequency, trial = _recent_rates(series, min(len(series), RELAXATION_MIN_CHUNKS))
     tau = _energy_relaxation_time(run, energy, drift, frequency)
     return tau, RELAXATION_MIN_ENERGY_TIMES * tau * trial * electrons
 
@@ -564,14 +568,14 @@ def _relaxation_events(run: _Run, series: _Series, electrons: int) -> tuple[floa
 def _pilot_check(run: _Run, series: _Series) -> bool:
     """Start the pilot relaxation when relaxing the full ensemble would be expensive; returns whether it started.
 
-    After the first RELAXATION_MIN_CHUNKS chunks the energy relaxation time τ_ε (:func:`_energy_relaxation_time`:
+    After the first PILOT_CHECK_CHUNKS chunks the energy relaxation time τ_ε (:func:`_energy_relaxation_time`:
     the time the field takes to supply the swarm's energy, at least ~M/(2m) elastic collisions in a rare gas) and
     the trial-event rate give the events the relaxation test needs. When that exceeds PILOT_TRIGGER × max_events,
     each replica is thinned to PILOT_ELECTRONS_PER_REPLICA electrons (unbiased population control,
     :meth:`Ensemble.retarget`), which relax at a fraction of the cost; :func:`_leave_pilot` clones them back when
     the test passes. The stationarity test and the number of energy relaxation times do not depend on the number
-    of electrons; chunks are made longer in proportion so that the work per chunk stays the same. Runs that relax
-    cheaply never take this path (their results are unchanged).
+    of electrons; chunks are made longer so that each holds about PILOT_CHUNK_EVENTS trial events (at most the
+    full ensemble's chunk). Runs that relax cheaply never take this path (their results are unchanged).
     """
     ens, s = run.ens, run.settings
     if ens.target <= PILOT_ELECTRONS_PER_REPLICA:
@@ -581,7 +585,8 @@ def _pilot_check(run: _Run, series: _Series) -> bool:
         return False
     run.pilot = True
     run.anomalies["pilot_electrons"] = PILOT_ELECTRONS_PER_REPLICA * ens.replicas
-    run.chunk_scale = ens.target / PILOT_ELECTRONS_PER_REPLICA
+    pilot_events = PILOT_ELECTRONS_PER_REPLICA * ens.replicas * s.events_per_chunk
+    run.chunk_scale = min(ens.target / PILOT_ELECTRONS_PER_REPLICA, max(1.0, PILOT_CHUNK_EVENTS / pilot_events))
     ens.retarget(PILOT_ELECTRONS_PER_REPLICA)
     return True
 
@@ -596,7 +601,9 @@ def _leave_pilot(run: _Run, series: _Series, tau: float) -> bool:
     records the size used.
     """
     ens, s = run.ens, run.settings
-    _, _, _, trial = _recent_rates(series, RELAXATION_MIN_CHUNKS)
+    recent_tau, _ = _relaxation_events(run, series, 1)
+    tau = tau if math.isfinite(tau) and tau > 0 else recent_tau
+    _, _, _, trial = _recent_rates(series, min(len(series), RELAXATION_MIN_CHUNKS))
     full = s.electrons // s.replicas
     window = s.diffusion_skip * (1.0 + s.diffusion_segment) * tau if math.isfinite(tau) and tau > 0 else 0.0
     remaining = max(s.max_events - run.events, 0)
@@ -695,7 +702,7 @@ def _simulate(run: _Run, reduced_field_Td: float, progress=None) -> SwarmResult:
             # the budget and the wall-clock limit are checked after every chunk, also inside a period
             over_time = _over_time(s, started)
             forced = run.events >= 0.5 * s.max_events or over_time
-            if drive is None and not run.pilot and len(series) == RELAXATION_MIN_CHUNKS and not (ok and enough):
+            if drive is None and not run.pilot and len(series) == PILOT_CHECK_CHUNKS:
                 resized = _pilot_check(run, series)
             if (ok and enough) or forced:
                 if forced and not (ok and enough):
