@@ -103,10 +103,9 @@ RELAXATION_MIN_ENERGY_TIMES = 3.0
 GROWTH_PER_CHUNK = 0.3
 PILOT_ELECTRONS_PER_REPLICA = 16
 """Electrons per replica of the pilot relaxation (see :func:`_pilot_check`)."""
-PILOT_TRIGGER = 0.05
-"""The pilot relaxation starts when relaxing the full ensemble would take more than this fraction of max_events."""
-PILOT_CHECK_CHUNKS = 2
-"""The pilot decision is taken after this many chunks of the full ensemble."""
+PILOT_TRIGGER = 0.2
+"""The pilot relaxation starts when the full ensemble has not relaxed after this fraction of max_events (runs that
+relax within it are unchanged)."""
 PILOT_CHUNK_EVENTS = 100_000
 """Pilot chunks are made long enough to hold about this many trial events (fewer, cheaper Python steps)."""
 """A chunk is at most GROWTH_PER_CHUNK / |ν_eff| long, so the population changes by < ~35 % per chunk."""
@@ -136,6 +135,7 @@ class Settings:
     max_wall_seconds: float | None = None
     ac_method: str = "auto"
     precision_targets: tuple = ()
+    relaxation_pilot: bool = True
 
 
 AC_METHODS = ("auto", "exact", "quasi-static")
@@ -176,7 +176,7 @@ def make_settings(*, seed=0, precision=0.01, electrons=16384, max_events=1_000_0
                   scattering="isotropic", replicas=16, precision_on="auto", energy_cells=8192, energy_max_eV=None,
                   energy_limit_eV=1e5, initial_energy_eV=1.0, events_per_chunk=48.0, population_bounds=(0.6, 1.5),
                   eedf_bins=200, diffusion_skip=4.0, diffusion_segment=3.0, max_wall_seconds=None,
-                  ac_method="auto") -> Settings:
+                  ac_method="auto", relaxation_pilot=True) -> Settings:
     """Validate the keyword arguments of :func:`swarm`; raise :class:`ConfigError` naming the bad one."""
     replicas = _positive("replicas", replicas, integer=True)
     if replicas < 2:
@@ -196,6 +196,8 @@ def make_settings(*, seed=0, precision=0.01, electrons=16384, max_events=1_000_0
     precision, precision_targets = parse_precision(precision)
     precision_choices = ("auto", "alpha_N", *[name for name in ESTIMATE_UNITS if name != "alpha_N"])
     energy_cells = _positive("energy_cells", energy_cells, integer=True)
+    if not isinstance(relaxation_pilot, (bool, np.bool_)):
+        raise ConfigError(f"swarm(): argument relaxation_pilot = {relaxation_pilot!r} must be True or False")
     if energy_cells < 64:
         raise ConfigError(f"swarm(): argument energy_cells = {energy_cells} must be >= 64")
     return Settings(
@@ -212,7 +214,7 @@ def make_settings(*, seed=0, precision=0.01, electrons=16384, max_events=1_000_0
         diffusion_skip=_positive("diffusion_skip", diffusion_skip),
         diffusion_segment=_positive("diffusion_segment", diffusion_segment),
         max_wall_seconds=_positive("max_wall_seconds", max_wall_seconds, allow_none=True),
-        ac_method=_choice("ac_method", ac_method, AC_METHODS))
+        ac_method=_choice("ac_method", ac_method, AC_METHODS), relaxation_pilot=bool(relaxation_pilot))
 
 
 # ------------------------------------------------------------------------------------------------ the run
@@ -457,7 +459,9 @@ def swarm(mixture: Mixture | str, reduced_field_Td: float, magnetic_field_T: flo
         diffusion_segment (3 × the skip), max_wall_seconds (None: a wall-clock limit [s], always honoured: sampling
         starts and the run stops when it is spent, checked after every chunk), ac_method ("auto": in the
         quasi-static regime the AC cycle is computed from DC points, :mod:`avalanche.engine.quasistatic`; "exact"
-        tracks every period; "quasi-static" always uses DC points).
+        tracks every period; "quasi-static" always uses DC points), relaxation_pilot (True: a DC run that has not
+        relaxed after 20 % of max_events thins every replica to 16 electrons, relaxes them and clones them back to
+        the ensemble the remaining budget affords, see :func:`_pilot_check`; False: the full ensemble relaxes).
 
     Returns
     -------
@@ -565,23 +569,20 @@ def _relaxation_events(run: _Run, series: _Series, electrons: int) -> tuple[floa
     return tau, RELAXATION_MIN_ENERGY_TIMES * tau * trial * electrons
 
 
-def _pilot_check(run: _Run, series: _Series) -> bool:
-    """Start the pilot relaxation when relaxing the full ensemble would be expensive; returns whether it started.
+def _pilot_check(run: _Run) -> bool:
+    """Start the pilot relaxation; returns whether it started.
 
-    After the first PILOT_CHECK_CHUNKS chunks the energy relaxation time τ_ε (:func:`_energy_relaxation_time`:
-    the time the field takes to supply the swarm's energy, at least ~M/(2m) elastic collisions in a rare gas) and
-    the trial-event rate give the events the relaxation test needs. When that exceeds PILOT_TRIGGER × max_events,
-    each replica is thinned to PILOT_ELECTRONS_PER_REPLICA electrons (unbiased population control,
-    :meth:`Ensemble.retarget`), which relax at a fraction of the cost; :func:`_leave_pilot` clones them back when
-    the test passes. The stationarity test and the number of energy relaxation times do not depend on the number
-    of electrons; chunks are made longer so that each holds about PILOT_CHUNK_EVENTS trial events (at most the
-    full ensemble's chunk). Runs that relax cheaply never take this path (their results are unchanged).
+    Called when the full ensemble has spent PILOT_TRIGGER × max_events without passing the relaxation test (the
+    energy relaxation of a heavy rare gas at low E/N takes ~M/(2m) elastic collisions per electron, common
+    practice: ~3.6e4 in argon). Each replica is thinned to PILOT_ELECTRONS_PER_REPLICA electrons (unbiased
+    population control, :meth:`Ensemble.retarget`), which go on relaxing at a small fraction of the cost;
+    :func:`_leave_pilot` clones them back when the test passes. The stationarity test and the number of energy
+    relaxation times do not depend on the number of electrons; chunks are made longer so that each holds about
+    PILOT_CHUNK_EVENTS trial events (at most the full ensemble's chunk). Runs that relax within PILOT_TRIGGER of
+    their budget never take this path (their results are unchanged).
     """
     ens, s = run.ens, run.settings
     if ens.target <= PILOT_ELECTRONS_PER_REPLICA:
-        return False
-    _, needed = _relaxation_events(run, series, int(ens.count.sum()))
-    if not (math.isfinite(needed) and needed > PILOT_TRIGGER * s.max_events):
         return False
     run.pilot = True
     run.anomalies["pilot_electrons"] = PILOT_ELECTRONS_PER_REPLICA * ens.replicas
@@ -702,8 +703,9 @@ def _simulate(run: _Run, reduced_field_Td: float, progress=None) -> SwarmResult:
             # the budget and the wall-clock limit are checked after every chunk, also inside a period
             over_time = _over_time(s, started)
             forced = run.events >= 0.5 * s.max_events or over_time
-            if drive is None and not run.pilot and len(series) == PILOT_CHECK_CHUNKS:
-                resized = _pilot_check(run, series)
+            if (drive is None and s.relaxation_pilot and "pilot_electrons" not in run.anomalies and not (ok and enough)
+                    and run.events >= PILOT_TRIGGER * s.max_events):
+                resized = _pilot_check(run)
             if (ok and enough) or forced:
                 if forced and not (ok and enough):
                     run.anomalies["not_relaxed"] = 1
