@@ -65,7 +65,7 @@ from ..constants import BOLTZMANN_J_K, ELEMENTARY_CHARGE_C, EV_J, ATOMIC_MASS_UN
 from ..errors import AvalancheError, ConfigError, PhysicsWarning
 from ..gas.crosssections import _did_you_mean
 from ..gas.mixture import Mixture
-from . import ac
+from . import ac, checks
 from .drive import Drive, make_drive
 from .ensemble import Ensemble
 from .estimators import (
@@ -145,31 +145,11 @@ uses DC points."""
 
 
 def _positive(name: str, value, integer: bool = False, allow_none: bool = False):
-    if value is None and allow_none:
-        return None
-    ok = isinstance(value, (int, np.integer)) if integer else isinstance(value, (int, float, np.integer,
-                                                                                 np.floating))
-    if isinstance(value, bool) or not ok or not math.isfinite(float(value)) or value <= 0:
-        kind = "a positive integer" if integer else "a positive finite number"
-        raise ConfigError(f"swarm(): argument {name} = {value!r} must be {kind}")
-    return int(value) if integer else float(value)
+    return checks.positive("swarm()", name, value, integer=integer, allow_none=allow_none)
 
 
 def _choice(name: str, value, choices) -> str:
-    if value not in choices:
-        raise ConfigError(f"swarm(): argument {name} = {value!r} is not valid{_did_you_mean(str(value), choices)};"
-                          f" choose one of {list(choices)}")
-    return value
-
-
-def _seed(value) -> int | tuple[int, ...]:
-    if isinstance(value, (int, np.integer)) and not isinstance(value, bool) and value >= 0:
-        return int(value)
-    if isinstance(value, (tuple, list)) and value and all(
-            isinstance(v, (int, np.integer)) and not isinstance(v, bool) and v >= 0 for v in value):
-        return tuple(int(v) for v in value)
-    raise ConfigError(f"swarm(): argument seed = {value!r} must be a non-negative integer or a tuple of them "
-                      "(e.g. (master_seed, point_index))")
+    return checks.choice("swarm()", name, value, choices)
 
 
 def make_settings(*, seed=0, precision=0.01, electrons=16384, max_events=1_000_000_000, sharing="opb",
@@ -201,7 +181,8 @@ def make_settings(*, seed=0, precision=0.01, electrons=16384, max_events=1_000_0
     if energy_cells < 64:
         raise ConfigError(f"swarm(): argument energy_cells = {energy_cells} must be >= 64")
     return Settings(
-        seed=_seed(seed), precision=precision, precision_targets=precision_targets, electrons=electrons,
+        seed=checks.seed("swarm()", seed), precision=precision, precision_targets=precision_targets,
+        electrons=electrons,
         max_events=max_events, sharing=_choice("sharing", sharing, SHARING_RULES),
         scattering=_choice("scattering", scattering, SCATTERING_MODELS), replicas=replicas,
         precision_on=_choice("precision_on", precision_on, precision_choices), energy_cells=energy_cells,
