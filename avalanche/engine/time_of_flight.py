@@ -101,6 +101,7 @@ IONIZING_KINDS = ("ionization", "penning")
 RELAXATION_MIN_CHUNKS = 8
 RELAXATION_MIN_ENERGY_TIMES = 3.0
 GROWTH_PER_CHUNK = 0.3
+"""A chunk is at most GROWTH_PER_CHUNK / |ν_eff| long, so the population changes by < ~35 % per chunk."""
 PILOT_ELECTRONS_PER_REPLICA = 16
 """Electrons per replica of the pilot relaxation (see :func:`_pilot_check`)."""
 PILOT_TRIGGER = 0.2
@@ -108,7 +109,6 @@ PILOT_TRIGGER = 0.2
 relax within it are unchanged)."""
 PILOT_CHUNK_EVENTS = 100_000
 """Pilot chunks are made long enough to hold about this many trial events (fewer, cheaper Python steps)."""
-"""A chunk is at most GROWTH_PER_CHUNK / |ν_eff| long, so the population changes by < ~35 % per chunk."""
 
 
 @dataclass(frozen=True)
