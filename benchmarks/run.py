@@ -83,12 +83,13 @@ class Budget:
     memory_electrons: int
     warmup_events: float
     run_sweeps: bool
+    convergence_events: float = 1e9
 
 
 FULL = Budget(reid_events=2e8, argon_events=1e8, c_events=2e8, thread_events=2e8, memory_electrons=1_000_000,
               warmup_events=2e6, run_sweeps=True)
 QUICK = Budget(reid_events=2e7, argon_events=1e7, c_events=2e7, thread_events=2e7, memory_electrons=1_000_000,
-               warmup_events=1e6, run_sweeps=False)
+               warmup_events=1e6, run_sweeps=False, convergence_events=1e7)
 
 
 class NotAvailable(Exception):
@@ -240,6 +241,20 @@ def per_core_rate(result) -> float:
     return result.events / result.cpu_seconds
 
 
+def real_collision_rows(label: str, result, state: dict) -> list[Row]:
+    """The null fraction of a run's sampled trial events and its real collisions per CPU second (the sampled
+    fraction of real events times the run's trial events per CPU second), beside the Reid ramp's trial rate."""
+    events = float(result.tallies["events"].sum())
+    real = float(result.tallies["real_collisions"].sum())
+    if not events > 0:
+        return [Row(f"  {label}: real collisions/s per core", "n/a (no sampled chunk)")]
+    real_rate = real / events * per_core_rate(result)
+    reid = state.get("reid_rate")
+    beside = f" (Reid ramp trial events/s: {reid:.3g}, ratio {real_rate / reid:.2g})" if reid else ""
+    return [Row(f"  {label}: null fraction of trial events", f"{1.0 - real / events:.3f}"),
+            Row(f"  {label}: real collisions/s per core", f"{real_rate:.3g}{beside}")]
+
+
 def engine_energy_max_eV(result) -> float | None:
     """The top of the engine's energy grid at the end of a run, if its result reports it."""
     value = (getattr(result, "anomalies", None) or {}).get("final_energy_max_eV")
@@ -274,7 +289,8 @@ def figure_argon(state: dict, budget: Budget) -> list[Row]:
     result, _ = run_engine(mixture, ARGON_FIELD_Td, budget.argon_events, warmup=budget.warmup_events)
     rate = per_core_rate(result)
     state["argon_rate"] = rate
-    return [Row("avalanche events/s per core, argon 300 Td", f"{rate:.3g}")]
+    return [Row("avalanche events/s per core, argon 300 Td", f"{rate:.3g}"),
+            *real_collision_rows("argon 300 Td", result, state)]
 
 
 def figure_c_loop(state: dict, budget: Budget) -> list[Row]:
@@ -413,6 +429,7 @@ def figure_air(state: dict, budget: Budget) -> list[Row]:
     ratio = per_core_rate(result) / state["argon_rate"]
     target, verdict = judge("air_ratio", ratio)
     return [Row("avalanche events/s per core, air 300 Td", f"{per_core_rate(result):.3g}"),
+            *real_collision_rows("air 300 Td", result, state),
             Row("air / argon events per second", f"{ratio:.3g}", target, verdict)]
 
 
@@ -628,12 +645,18 @@ def _convergence_mixture(gas: str):
         raise NotAvailable(f"{gas} cross sections (the set does not load)") from None
 
 
+def _limiting_error(result) -> str:
+    """The relative standard error of the quantity that limited a run (``stopped_by``), as text."""
+    name = getattr(result, "stopped_by", None)
+    estimate = result.estimates.get(name) or result.rate_coefficients.get(name) if name else None
+    return f"{100 * estimate.relative_stderr:.2g} % on {name}" if estimate is not None else "n/a"
+
+
 def figure_convergence(state: dict, budget: Budget) -> list[Row]:
     """CPU seconds on one core to reach 1 % on every reported nonzero quantity, each point beside the 10 s target
-    (the ratio is the measured time over the target); left out of --quick (minutes at full budgets)."""
+    (the ratio is the measured time over the target). Full mode: the engine's default budget (1e9 events);
+    --quick: 1e7 events per point, so a point that needs more shows MISS with the error it reached."""
     swarm = engine_swarm()
-    if not budget.run_sweeps:
-        raise Skipped("full mode only (each point runs until 1 % or its default budget)")
     precision = CONVERGENCE_PRECISION
     rows = []
     for gas, field_Td in CONVERGENCE_POINTS:
@@ -648,10 +671,11 @@ def figure_convergence(state: dict, budget: Budget) -> list[Row]:
             warnings.simplefilter("ignore")
             swarm(mixture, field_Td, seed=1, precision=0.5, max_events=int(budget.warmup_events),
                   **_thread_arguments(swarm, 1))  # compile / load the kernels outside the timing
-            result = swarm(mixture, field_Td, seed=1, precision=precision, **_thread_arguments(swarm, 1))
+            result = swarm(mixture, field_Td, seed=1, precision=precision, max_events=int(budget.convergence_events),
+                           **_thread_arguments(swarm, 1))
         target, verdict = judge("converge_seconds", result.cpu_seconds)
-        how = (f"stop: {result.stop_reason}, limited by {getattr(result, 'stopped_by', '?')}, "
-               f"{result.events:.3g} events")
+        how = (f"stop: {result.stop_reason}, limited by {getattr(result, 'stopped_by', '?')} "
+               f"({_limiting_error(result)}), {result.events:.3g} events, converged {result.converged}")
         rows.append(Row(label, f"{result.cpu_seconds:.3g} (ratio {result.cpu_seconds / 10.0:.2g}; {how})",
                         target, verdict if result.stop_reason == "precision" else "MISS"))
     return rows

@@ -17,10 +17,8 @@ class Ensemble:
 
     def __init__(self, settings, growing: bool = True):
         self.replicas = settings.replicas
-        self.target = settings.electrons // settings.replicas
-        lower, upper = settings.population_bounds
-        self.lower = max(1, int(math.floor(lower * self.target)))
-        self.upper = max(self.target + 1, int(math.ceil(upper * self.target)))
+        self.bounds = settings.population_bounds
+        self._set_target(settings.electrons // settings.replicas)
         children = np.random.SeedSequence(settings.seed).spawn(self.replicas)
         streams = [child.spawn(2) for child in children]
         self.rng = np.array([s[0].generate_state(4, np.uint64) for s in streams], dtype=np.uint64)
@@ -44,6 +42,12 @@ class Ensemble:
             self.vz[r, :self.target] = speed * cos_t
 
     _STATE = ("x", "y", "z", "vx", "vy", "vz")
+
+    def _set_target(self, target: int) -> None:
+        lower, upper = self.bounds
+        self.target = target
+        self.lower = max(1, int(math.floor(lower * target)))
+        self.upper = max(target + 1, int(math.ceil(upper * target)))
 
     def _allocate(self, capacity: int) -> None:
         for name in self._STATE + ("birth",):
@@ -114,17 +118,37 @@ class Ensemble:
             for r in range(self.replicas):
                 arr[r, :self.count[r]] = 0.0
 
+    def retarget(self, target: int) -> None:
+        """Set the target population per replica to ``target`` (the bounds scale with it) and resample every replica
+        to exactly ``target`` electrons: a uniformly random subset when it has more, random clones when it has fewer.
+
+        The replica's weight is multiplied by n/target, as in :meth:`control`, so every ensemble mean stays unbiased.
+        Used by the pilot relaxation of :func:`avalanche.swarm`: a few electrons per replica relax, then are cloned
+        to the full ensemble (clones share their parent's state and part from it at their next collisions, each
+        replica with its own generator, so the replicas stay independent).
+        """
+        target = int(target)
+        if target < 2:
+            raise AvalancheError(f"internal: a replica needs at least 2 electrons, not {target}")
+        self._set_target(target)
+        while self.capacity < int(math.ceil(1.4 * self.upper)):
+            self.enlarge()
+        self._resample(force=True)
+
     def control(self) -> int:
         """Population control of every replica; returns how many replicas were resampled."""
+        return self._resample(force=False)
+
+    def _resample(self, force: bool) -> int:
         changed = 0
         for r, gen in enumerate(self.control_rng):
             n = int(self.count[r])
             if n == 0:
                 raise AvalancheError("a replica lost all its electrons (attachment faster than the chunk "
                                      "schedule); raise electrons or lower events_per_chunk")
-            if self.lower <= n <= self.upper:
+            if (self.lower <= n <= self.upper and not force) or n == self.target:
                 continue
-            if n > self.upper:
+            if n > self.target:
                 index = np.sort(gen.choice(n, self.target, replace=False))
             else:
                 index = np.concatenate((np.arange(n), gen.integers(0, n, self.target - n)))

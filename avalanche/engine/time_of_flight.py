@@ -66,7 +66,7 @@ from ..errors import AvalancheError, ConfigError, PhysicsWarning
 from ..gas.crosssections import _did_you_mean
 from ..gas.mixture import Mixture
 from ..quantities import current_name
-from . import ac
+from . import ac, checks
 from .drive import Drive, make_drive
 from .ensemble import Ensemble
 from .estimators import (
@@ -103,6 +103,13 @@ RELAXATION_MIN_CHUNKS = 8
 RELAXATION_MIN_ENERGY_TIMES = 3.0
 GROWTH_PER_CHUNK = 0.3
 """A chunk is at most GROWTH_PER_CHUNK / |ν_eff| long, so the population changes by < ~35 % per chunk."""
+PILOT_ELECTRONS_PER_REPLICA = 16
+"""Electrons per replica of the pilot relaxation (see :func:`_pilot_check`)."""
+PILOT_TRIGGER = 0.2
+"""The pilot relaxation starts when the full ensemble has not relaxed after this fraction of max_events (runs that
+relax within it are unchanged)."""
+PILOT_CHUNK_EVENTS = 100_000
+"""Pilot chunks are made long enough to hold about this many trial events (fewer, cheaper Python steps)."""
 
 
 @dataclass(frozen=True)
@@ -129,6 +136,7 @@ class Settings:
     max_wall_seconds: float | None = None
     ac_method: str = "auto"
     precision_targets: tuple = ()
+    relaxation_pilot: bool = True
 
 
 AC_METHODS = ("auto", "exact", "quasi-static")
@@ -138,38 +146,18 @@ uses DC points."""
 
 
 def _positive(name: str, value, integer: bool = False, allow_none: bool = False):
-    if value is None and allow_none:
-        return None
-    ok = isinstance(value, (int, np.integer)) if integer else isinstance(value, (int, float, np.integer,
-                                                                                 np.floating))
-    if isinstance(value, bool) or not ok or not math.isfinite(float(value)) or value <= 0:
-        kind = "a positive integer" if integer else "a positive finite number"
-        raise ConfigError(f"swarm(): argument {name} = {value!r} must be {kind}")
-    return int(value) if integer else float(value)
+    return checks.positive("swarm()", name, value, integer=integer, allow_none=allow_none)
 
 
 def _choice(name: str, value, choices) -> str:
-    if value not in choices:
-        raise ConfigError(f"swarm(): argument {name} = {value!r} is not valid{_did_you_mean(str(value), choices)};"
-                          f" choose one of {list(choices)}")
-    return value
-
-
-def _seed(value) -> int | tuple[int, ...]:
-    if isinstance(value, (int, np.integer)) and not isinstance(value, bool) and value >= 0:
-        return int(value)
-    if isinstance(value, (tuple, list)) and value and all(
-            isinstance(v, (int, np.integer)) and not isinstance(v, bool) and v >= 0 for v in value):
-        return tuple(int(v) for v in value)
-    raise ConfigError(f"swarm(): argument seed = {value!r} must be a non-negative integer or a tuple of them "
-                      "(e.g. (master_seed, point_index))")
+    return checks.choice("swarm()", name, value, choices)
 
 
 def make_settings(*, seed=0, precision=0.01, electrons=16384, max_events=1_000_000_000, sharing="opb",
                   scattering="isotropic", replicas=16, precision_on="auto", energy_cells=8192, energy_max_eV=None,
                   energy_limit_eV=1e5, initial_energy_eV=1.0, events_per_chunk=48.0, population_bounds=(0.6, 1.5),
                   eedf_bins=200, diffusion_skip=4.0, diffusion_segment=3.0, max_wall_seconds=None,
-                  ac_method="auto") -> Settings:
+                  ac_method="auto", relaxation_pilot=True) -> Settings:
     """Validate the keyword arguments of :func:`swarm`; raise :class:`ConfigError` naming the bad one."""
     replicas = _positive("replicas", replicas, integer=True)
     if replicas < 2:
@@ -189,10 +177,13 @@ def make_settings(*, seed=0, precision=0.01, electrons=16384, max_events=1_000_0
     precision, precision_targets = parse_precision(precision)
     precision_choices = ("auto", "alpha_N", *[name for name in ESTIMATE_UNITS if name != "alpha_N"])
     energy_cells = _positive("energy_cells", energy_cells, integer=True)
+    if not isinstance(relaxation_pilot, (bool, np.bool_)):
+        raise ConfigError(f"swarm(): argument relaxation_pilot = {relaxation_pilot!r} must be True or False")
     if energy_cells < 64:
         raise ConfigError(f"swarm(): argument energy_cells = {energy_cells} must be >= 64")
     return Settings(
-        seed=_seed(seed), precision=precision, precision_targets=precision_targets, electrons=electrons,
+        seed=checks.seed("swarm()", seed), precision=precision, precision_targets=precision_targets,
+        electrons=electrons,
         max_events=max_events, sharing=_choice("sharing", sharing, SHARING_RULES),
         scattering=_choice("scattering", scattering, SCATTERING_MODELS), replicas=replicas,
         precision_on=_choice("precision_on", current_name(precision_on) if isinstance(precision_on, str)
@@ -206,7 +197,7 @@ def make_settings(*, seed=0, precision=0.01, electrons=16384, max_events=1_000_0
         diffusion_skip=_positive("diffusion_skip", diffusion_skip),
         diffusion_segment=_positive("diffusion_segment", diffusion_segment),
         max_wall_seconds=_positive("max_wall_seconds", max_wall_seconds, allow_none=True),
-        ac_method=_choice("ac_method", ac_method, AC_METHODS))
+        ac_method=_choice("ac_method", ac_method, AC_METHODS), relaxation_pilot=bool(relaxation_pilot))
 
 
 # ------------------------------------------------------------------------------------------------ the run
@@ -270,6 +261,8 @@ class _Run:
                                 np.zeros((R, P), dtype=np.int64))
         self.eedf_max_eV = self.grid.energy_max_eV
         self.events = 0
+        self.chunk_scale = 1.0  # chunks this many times longer while the ensemble is below its target (pilot)
+        self.pilot = False
         self.anomalies = {"energy_grid_doublings": 0, "energy_grid_reductions": 0, "capacity_enlargements": 0,
                           "redone_chunks": 0, "shortened_chunks": 0, "frequency_above_bound": 0,
                           "population_controls": 0, "not_relaxed": 0}
@@ -317,7 +310,7 @@ class _Run:
         self.grid = EnergyGrid.build(self.table, energy_max_eV, self.settings.energy_cells)
 
     def chunk_duration(self, nu_eff: float) -> float:
-        dt = self.settings.events_per_chunk / self.grid.nu_star
+        dt = self.settings.events_per_chunk * self.chunk_scale / self.grid.nu_star
         if nu_eff != 0.0 and math.isfinite(nu_eff):
             dt = min(dt, GROWTH_PER_CHUNK / abs(nu_eff))
         return dt
@@ -449,7 +442,9 @@ def swarm(mixture: Mixture | str, reduced_field_Td: float, magnetic_field_T: flo
         diffusion_segment (3 × the skip), max_wall_seconds (None: a wall-clock limit [s], always honoured: sampling
         starts and the run stops when it is spent, checked after every chunk), ac_method ("auto": in the
         quasi-static regime the AC cycle is computed from DC points, :mod:`avalanche.engine.quasistatic`; "exact"
-        tracks every period; "quasi-static" always uses DC points).
+        tracks every period; "quasi-static" always uses DC points), relaxation_pilot (True: a DC run that has not
+        relaxed after 20 % of max_events thins every replica to 16 electrons, relaxes them and clones them back to
+        the ensemble the remaining budget affords, see :func:`_pilot_check`; False: the full ensemble relaxes).
 
     Returns
     -------
@@ -540,6 +535,83 @@ def _energy_relaxation_time(run: _Run, mean_energy_eV: float, drift_velocity: fl
     return elastic
 
 
+def _recent_rates(series: _Series, chunks: int) -> tuple[float, float, float, float]:
+    """Pooled over the replicas and the last ``chunks`` chunks: (mean energy [eV], flux drift velocity [m/s], real
+    collision frequency [s⁻¹], trial events per electron-second [s⁻¹])."""
+    events = series.array("events")[-chunks:].sum()
+    exposure = series.array("exposure")[-chunks:].sum()
+    return (float(series.array("energy_sum")[-chunks:].sum() / events),
+            float(series.array("vz_sum")[-chunks:].sum() / events),
+            float(series.array("real")[-chunks:].sum() / exposure), float(events / exposure))
+
+
+def _relaxation_events(run: _Run, series: _Series, electrons: int) -> tuple[float, float]:
+    """(τ_ε [s], trial events) that relaxing ``electrons`` electrons over RELAXATION_MIN_ENERGY_TIMES energy
+    relaxation times takes, at the rates of the last chunks."""
+    energy, drift, frequency, trial = _recent_rates(series, min(len(series), RELAXATION_MIN_CHUNKS))
+    tau = _energy_relaxation_time(run, energy, drift, frequency)
+    return tau, RELAXATION_MIN_ENERGY_TIMES * tau * trial * electrons
+
+
+def _pilot_check(run: _Run) -> bool:
+    """Start the pilot relaxation; returns whether it started.
+
+    Called when the full ensemble has spent PILOT_TRIGGER × max_events without passing the relaxation test (the
+    energy relaxation of a heavy rare gas at low E/N takes ~M/(2m) elastic collisions per electron, common
+    practice: ~3.6e4 in argon). Each replica is thinned to PILOT_ELECTRONS_PER_REPLICA electrons (unbiased
+    population control, :meth:`Ensemble.retarget`), which go on relaxing at a small fraction of the cost;
+    :func:`_leave_pilot` clones them back when the test passes. The stationarity test and the number of energy
+    relaxation times do not depend on the number of electrons; chunks are made longer so that each holds about
+    PILOT_CHUNK_EVENTS trial events (at most the full ensemble's chunk). Runs that relax within PILOT_TRIGGER of
+    their budget never take this path (their results are unchanged).
+    """
+    ens, s = run.ens, run.settings
+    if ens.target <= PILOT_ELECTRONS_PER_REPLICA:
+        return False
+    run.pilot = True
+    run.anomalies["pilot_electrons"] = PILOT_ELECTRONS_PER_REPLICA * ens.replicas
+    pilot_events = PILOT_ELECTRONS_PER_REPLICA * ens.replicas * s.events_per_chunk
+    run.chunk_scale = min(ens.target / PILOT_ELECTRONS_PER_REPLICA, max(1.0, PILOT_CHUNK_EVENTS / pilot_events))
+    ens.retarget(PILOT_ELECTRONS_PER_REPLICA)
+    return True
+
+
+def _leave_pilot(run: _Run, series: _Series, tau: float) -> bool:
+    """Clone the relaxed pilot electrons up to the ensemble that sampling can afford; returns True.
+
+    The full target (``electrons``) when half of the remaining budget covers one position window (diffusion_skip +
+    diffusion_segment energy relaxation times) for every electron, else fewer (at least the pilot's): a swarm with
+    a long energy relaxation then samples with fewer electrons over a longer time, which costs the same per
+    event and gives finite bulk and diffusion estimates within the budget. ``anomalies["sampled_electrons"]``
+    records the size used.
+    """
+    ens, s = run.ens, run.settings
+    recent_tau, _ = _relaxation_events(run, series, 1)
+    tau = tau if math.isfinite(tau) and tau > 0 else recent_tau
+    _, _, _, trial = _recent_rates(series, min(len(series), RELAXATION_MIN_CHUNKS))
+    full = s.electrons // s.replicas
+    window = s.diffusion_skip * (1.0 + s.diffusion_segment) * tau if math.isfinite(tau) and tau > 0 else 0.0
+    remaining = max(s.max_events - run.events, 0)
+    affordable = 0.5 * remaining / (trial * window * ens.replicas) if window > 0 else full
+    target = int(min(full, max(ens.target, math.floor(affordable))))
+    run.pilot = False
+    run.chunk_scale = full / target
+    ens.retarget(target)
+    run.anomalies["sampled_electrons"] = target * ens.replicas
+    return True
+
+
+def _relaxation_advice(run: _Run, series: _Series) -> str:
+    """What to change when the relaxation test did not pass in the budget: the events it needs at this point
+    (sampling is forced at half of max_events, hence the factor 2)."""
+    tau, needed = _relaxation_events(run, series, int(run.ens.count.sum()))
+    if not (math.isfinite(needed) and needed > 0):
+        return "raise max_events"
+    return (f"the energy relaxation time is about {tau:.3g} s and relaxing {int(run.ens.count.sum())} electrons "
+            f"needs about {needed:.3g} trial events: raise max_events to at least {2.0 * needed:.3g}, or lower "
+            "electrons")
+
+
 def _shrink_grid(run: _Run, recent_max_eV: float, factor: float) -> None:
     """Lower the grid top to ``factor`` × the largest energy met recently, if that is below half the top.
 
@@ -575,6 +647,7 @@ def _simulate(run: _Run, reduced_field_Td: float, progress=None) -> SwarmResult:
                     t_.target_density_m3, run.mixture.number_density_m3,
                     only=None if precision_on == "auto" else precision_on)
     mature_chunks = 0
+    resized = False  # the ensemble was resampled to a new size (pilot relaxation): position moments start again
     drive = run.drive  # AC: chunks end on a grid holding every period boundary; the relaxation test runs there
     started = time.perf_counter()
     phase_tallies = ac.PhaseTallies.zeros(s.replicas, drive.phase_bins, len(run.table.processes)) if drive else None
@@ -614,14 +687,19 @@ def _simulate(run: _Run, reduced_field_Td: float, progress=None) -> SwarmResult:
             # the budget and the wall-clock limit are checked after every chunk, also inside a period
             over_time = _over_time(s, started)
             forced = run.events >= 0.5 * s.max_events or over_time
+            if (drive is None and s.relaxation_pilot and "pilot_electrons" not in run.anomalies and not (ok and enough)
+                    and run.events >= PILOT_TRIGGER * s.max_events):
+                resized = _pilot_check(run)
             if (ok and enough) or forced:
                 if forced and not (ok and enough):
                     run.anomalies["not_relaxed"] = 1
                     limit = (f"max_wall_seconds = {s.max_wall_seconds:g}" if over_time
                              else f"half of max_events = {s.max_events:g}")
                     warnings.warn(f"E/N = {reduced_field_Td:g} Td: the swarm did not pass the relaxation test "
-                                  f"within {limit}; sampling starts anyway (raise max_events)", PhysicsWarning,
-                                  stacklevel=3)
+                                  f"within {limit}; sampling starts anyway ({_relaxation_advice(run, series)})",
+                                  PhysicsWarning, stacklevel=3)
+                if run.pilot:
+                    resized = _leave_pilot(run, series, tau)
                 sampling = True
                 relaxation_time = t
                 _shrink_grid(run, float(series.array("max_energy")[len(series) // 2:].max()), 1.5)
@@ -648,8 +726,9 @@ def _simulate(run: _Run, reduced_field_Td: float, progress=None) -> SwarmResult:
             if t_start + slack >= mature_from:
                 tallies.add_mature_chunk(sums, counts, dt, start[:, 2:5], end[:, 2:5], start_b, end_b)
                 mature_chunks += 1
-        if ens.control():
-            run.anomalies["population_controls"] += 1
+        if ens.control() or resized:
+            run.anomalies["population_controls"] += 0 if resized else 1
+            resized = False
             start = ens.moments()
             start_b = moments()
         else:

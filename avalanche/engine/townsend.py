@@ -61,6 +61,8 @@ from ..errors import AvalancheError, ConfigError, PhysicsWarning
 from ..gas.crosssections import _did_you_mean
 from ..gas.mixture import Mixture
 from ..kernels import steady_state as S
+from ..kernels.population import resample_population
+from . import checks
 from .results import _json_float, _lookup, _plain, format_rows
 from .tables import COLD_GAS_GROUPS, EnergyGrid, ProcessTable, extrapolation_notice
 from .townsend_estimators import TALLY_FIELDS, townsend_estimates
@@ -104,30 +106,12 @@ class TownsendSettings:
 
 
 def _fail(name, value, requirement):
-    raise ConfigError(f"townsend(): argument {name} = {value!r} must be {requirement}")
+    checks.fail("townsend()", name, value, requirement)
 
 
 def _number(name, value, integer=False, allow_none=False, minimum=None):
-    if value is None and allow_none:
-        return None
-    if isinstance(value, float) and integer and value.is_integer():
-        value = int(value)
-    kinds = (int, np.integer) if integer else (int, float, np.integer, np.floating)
-    if isinstance(value, bool) or not isinstance(value, kinds) or not math.isfinite(float(value)) or value <= 0:
-        _fail(name, value, "a positive integer" if integer else "a positive finite number")
-    if minimum is not None and value < minimum:
-        _fail(name, value, f">= {minimum}")
-    return int(value) if integer else float(value)
-
-
-def _seed(value):
-    def ok(v):
-        return isinstance(v, (int, np.integer)) and not isinstance(v, bool) and v >= 0
-    if ok(value):
-        return int(value)
-    if isinstance(value, (tuple, list)) and value and all(ok(v) for v in value):
-        return tuple(int(v) for v in value)
-    _fail("seed", value, "a non-negative integer or a tuple of them (e.g. (master_seed, point_index))")
+    return checks.positive("townsend()", name, value, integer=integer, allow_none=allow_none, minimum=minimum,
+                           integral_float=True)
 
 
 def _initial_energy(value, distribution):
@@ -162,14 +146,12 @@ def make_townsend_settings(*, seed=0, precision=0.02, electrons=4096, max_events
     for name, value, choices in (("sharing", sharing, SHARING_RULES), ("scattering", scattering, SCATTERING_MODELS),
                                  ("precision_on", precision_on, ("auto", "alpha_N", "eta_N", "effective_alpha_N",
                                                                  "mean_energy_eV"))):
-        if value not in choices:
-            raise ConfigError(f"townsend(): argument {name} = {value!r} is not valid"
-                              f"{_did_you_mean(str(value), choices)}; choose one of {list(choices)}")
+        checks.choice("townsend()", name, value, choices)
     tolerance = _number("relaxation_tolerance", relaxation_tolerance)
     if tolerance >= 0.5:
         _fail("relaxation_tolerance", relaxation_tolerance, "a fraction below 0.5 (e.g. 0.03)")
     return TownsendSettings(
-        seed=_seed(seed), precision=_number("precision", precision), electrons=electrons,
+        seed=checks.seed("townsend()", seed), precision=_number("precision", precision), electrons=electrons,
         max_events=_number("max_events", max_events, integer=True), sharing=sharing, scattering=scattering,
         replicas=replicas, planes=_number("planes", planes, integer=True, minimum=10),
         distance_m=_number("distance_m", distance_m, allow_none=True),
@@ -478,15 +460,12 @@ class _Passes:
                 log_weight[r] = -np.inf
                 self.count[r] = 0
                 continue
-            if n > M:
-                index = np.sort(gen.choice(n, M, replace=False))
-            else:
-                index = np.concatenate((np.arange(n), gen.integers(0, n, M - n)))
+            index, factor = resample_population(gen, n, M)
             for src, dst in (("bank_vx", "vx"), ("bank_vy", "vy"), ("bank_vz", "vz")):
                 getattr(self, dst)[r, :M] = getattr(self, src)[r, index]
             self.z[r, :M] = z_next
             self.count[r] = M
-            log_weight[r] += math.log(n / M)
+            log_weight[r] += math.log(factor)
 
 
 def _zero_tallies(replicas: int, planes: int) -> dict:
