@@ -130,6 +130,18 @@ _TABLE = (
     ("reduced_magnetic_field_Hx", "B/N", "Hx", "reduced magnetic field B/N", "magnetic field over N"),
     ("field_angle_deg", "θ_EB", "deg", "angle between E and B θ_EB", "angle between the electric and magnetic "
      "fields"),
+    ("mean_gain", "G", "1", "mean gain G", "electrons reaching the anode per primary electron (avalanches in gaps)"),
+    ("polya_theta", "θ", "1", "Pólya parameter θ", "shape parameter of the Pólya fit of the gain distribution"),
+    ("local_field_gain", "G_LFA", "1", "local-field gain G_LFA",
+     "exp of the integral of (α − η) from the package's own α(E/N) table along the same field line"),
+    ("local_field_ratio", "G/G_LFA", "1", "gain over local-field gain G/G_LFA",
+     "simulated mean gain divided by the local-field-approximation gain"),
+    ("collected_driven", "n_d", "1", "electrons collected by the driven electrode n_d", "per primary"),
+    ("collected_grounded", "n_g", "1", "electrons collected by the grounded electrode n_g", "per primary"),
+    ("collected_outside", "n_o", "1", "electrons leaving the modelled region n_o", "per primary"),
+    ("voltage_V", "U", "V", "voltage U", "voltage of the driven electrode (amplitude for an AC drive)"),
+    ("pressure_Pa", "p", "Pa", "gas pressure p", "pressure of the gas"),
+    ("wire_radius_m", "a", "m", "wire radius a", "radius of the inner electrode of a coaxial gap"),
     ("temperature_K", "T", "K", "gas temperature T", "temperature of the gas"),
     ("number_density_m3", "N", "1/m^3", "gas number density N", "molecules per cubic metre"),
 )

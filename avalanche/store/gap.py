@@ -29,8 +29,7 @@ import numpy as np
 from .._version import __version__
 from ..engine.results import Estimate
 from ..errors import AvalancheError
-from .sweep_file import FILE_TYPE as SWEEP_FILE_TYPE
-from .sweep_file import FORMAT_VERSION as SWEEP_FORMAT_VERSION
+from .layout import create_layout, table_columns
 from .sweep_file import ResultsWriter, open_results
 
 FILE_TYPE = "avalanche gap run"
@@ -167,11 +166,12 @@ class GapSweepWriter(ResultsWriter):
 
     * root attributes ``mode`` = "gap", ``caution`` (the high-voltage caution) and ``space_charge`` (the note that
       it is neglected), besides the usual provenance;
-    * ``/grid/voltage_V``, ``pressure_Pa``, ``wire_radius_m``, ``frequency_Hz`` (units in ``units``),
-      ``seed``, ``mixture_index``, ``mixture``, ``composition_json``, and ``reduced_field_Td`` (NaN: not a
-      coordinate of a gap sweep, kept so that :func:`avalanche.open_results` reads the file);
-    * ``/table/value/<q>``, ``/table/stderr/<q>`` for q in mean_gain, polya_theta, local_field_gain,
-      local_field_ratio, collected_driven, collected_grounded, collected_outside (units "1");
+    * the results layout of every sweep (:mod:`avalanche.store.layout`): ``/table`` with the coordinates
+      ``voltage_V``, ``pressure_Pa``, ``wire_radius_m``, ``frequency_Hz``, ``seed``, ``mixture_index`` (and
+      ``reduced_field_Td``, NaN: not a coordinate of a gap sweep, kept so that :func:`avalanche.open_results`
+      reads the file), and the pairs ``q``, ``q_stderr`` for q in mean_gain, polya_theta, local_field_gain,
+      local_field_ratio, collected_driven, collected_grounded, collected_outside (names and units from
+      :mod:`avalanche.quantities`);
     * ``/points/<index:06d>/``: the single-run layout of :func:`write_gap_group` plus the ``sweep_*`` attributes.
     """
 
@@ -181,41 +181,32 @@ class GapSweepWriter(ResultsWriter):
     def _create(self) -> None:
         from ..gaps.results import SAFETY_NOTE, SPACE_CHARGE_NOTE
 
-        f, rf = self.file, self.runfile
+        rf = self.runfile
         points = rf.points
-        f.attrs.update({"file_type": SWEEP_FILE_TYPE, "format_version": SWEEP_FORMAT_VERSION,
-                        "package_version": __version__, "created_utc": datetime.now(UTC).isoformat(timespec="seconds"),
-                        "name": rf.name, "description": rf.description, "mode": rf.mode, "master_seed": rf.seed,
-                        "n_points": len(points), "runfile_source": rf.source, "runfile_sha256": rf.text_sha256,
-                        "config_sha256": rf.config_sha256, "caution": SAFETY_NOTE,
-                        "space_charge": SPACE_CHARGE_NOTE, "electrodes_json": _json(rf.electrodes)})
-        f.create_dataset("runfile", data=rf.text, dtype=h5py.string_dtype()).attrs["sha256"] = rf.text_sha256
-        f.create_dataset("config", data=rf.config_json(), dtype=h5py.string_dtype()).attrs["sha256"] = \
-            rf.config_sha256
-        f.create_group("crosssections").attrs.update(rf.checksums)
-        grid = f.create_group("grid")
-        grid.create_dataset("mixture_index", data=np.array([p.mixture_index for p in points], dtype=np.int64))
-        grid.create_dataset("mixture", data=[m.label for m in rf.mixtures], dtype=h5py.string_dtype())
-        grid.create_dataset("composition_json", data=[m.key for m in rf.mixtures], dtype=h5py.string_dtype())
-        grid.create_dataset("seed", data=np.array([p.seed for p in points], dtype=np.int64))
-        for name in GAP_SWEEP_COLUMNS:
-            grid.create_dataset(name, data=np.array([getattr(p, name) for p in points], dtype=float))\
-                .attrs["units"] = name.rsplit("_", 1)[1]
-        grid.create_dataset("reduced_field_Td", data=np.full(len(points), np.nan)).attrs.update(
-            {"units": "Td", "note": "not a coordinate of a gap sweep"})
-        table = f.create_group("table")
-        table.create_group("value")
-        table.create_group("stderr")
-        f.create_group("points")
-        f.flush()
+        grid = {"mixture_index": np.array([p.mixture_index for p in points], dtype=np.int64),
+                "reduced_field_Td": np.full(len(points), np.nan),
+                "frequency_Hz": np.array([p.frequency_Hz for p in points], dtype=float),
+                "seed": np.array([p.seed for p in points], dtype=np.int64)}
+        grid.update({name: np.array([getattr(p, name) for p in points], dtype=float)
+                     for name in GAP_SWEEP_COLUMNS if name != "frequency_Hz"})
+        mixtures = [rf.build_mixture(i) for i in range(len(rf.mixtures))]
+        sets = {c.name: c.cross_sections for m in mixtures for c in m.components}
+        create_layout(self.file, "sweep", {
+            "name": rf.name, "description": rf.description, "mode": rf.mode, "master_seed": rf.seed,
+            "runfile_source": rf.source, "runfile_sha256": rf.text_sha256, "config_sha256": rf.config_sha256,
+            "caution": SAFETY_NOTE, "space_charge": SPACE_CHARGE_NOTE, "electrodes_json": _json(rf.electrodes)},
+            grid=grid, labels=[m.label for m in rf.mixtures], compositions=[m.key for m in rf.mixtures],
+            config_json=rf.config_json(), runfile_text=rf.text, sets=sets, checksums=rf.checksums)
+        self.file["table"]["reduced_field_Td"].attrs["note"] = "not a coordinate of a gap sweep (NaN)"
+        self.file.flush()
 
     def _write_point(self, group: h5py.Group, result) -> None:
         """A point's payload: its gap result, and its rows of the table (written before the point's status)."""
         write_gap_group(group, result)
         index = int(group.name.rsplit("/", 1)[1])
         for quantity, (value, stderr) in _headline(result).items():
-            self._column("value", quantity, "1")[index] = value
-            self._column("stderr", quantity, "1")[index] = stderr
+            value_column, stderr_column = table_columns(self.file["table"], quantity)
+            value_column[index], stderr_column[index] = value, stderr
 
 
 def open_gap_sweep(path):
@@ -235,6 +226,6 @@ def open_gap_sweep(path):
                              "avalanche.open_results")
     names = [name for name in GAP_SWEEP_COLUMNS if name not in results.grid.dtype.names]
     with h5py.File(results.path, "r") as f:
-        columns = [f["grid"][name][()] for name in names]
+        columns = [f["table"][name][()] for name in names]
     results.grid = recfunctions.append_fields(results.grid, names, columns, usemask=False)
     return results

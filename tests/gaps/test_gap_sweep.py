@@ -91,7 +91,7 @@ def test_a_two_voltage_sweep_gives_the_gains_of_direct_calls(tmp_path):
         assert f.attrs["mode"] == "gap" and "High voltages" in f.attrs["caution"]
         assert "neglected" in f.attrs["space_charge"]
         assert f["runfile"][()].decode() == RUNFILE and json.loads(f.attrs["electrodes_json"])["gap_m"] == 60e-6
-        assert f["grid/voltage_V"].attrs["units"] == "V" and dict(f["crosssections"].attrs)
+        assert f["table/voltage_V"].attrs["units"] == "V" and dict(f["crosssections"].attrs)
     assert av.open_results(rf.output).value("mean_gain")[0] == gains[0]
 
 
