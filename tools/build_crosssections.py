@@ -64,7 +64,8 @@ HAYASHI_AR = ("M. Hayashi (2003) Bibliography of electron and photon cross secti
               "published in the 20th century: argon, report NIFS-DATA-72 (National Institute for Fusion Science, "
               "Toki): the Ar set (momentum transfer as corrected to fig. 1 of that report)")
 YANGUAS_GIL = ("A. Yanguas-Gil, J. Cotrino and L. L. Alves (2005) J. Phys. D: Appl. Phys. 38, 1588, "
-               "doi:10.1088/0022-3727/38/10/014: an update of argon inelastic cross sections for plasma discharges (the "
+               "doi:10.1088/0022-3727/38/10/014: an update of argon inelastic cross sections for plasma discharges "
+               "(the "
                "Ar set of the Lisbon group)")
 ALVES = ("L. L. Alves (2014) J. Phys.: Conf. Ser. 565, 012007, doi:10.1088/1742-6596/565/1/012007: the Lisbon "
          "group's complete cross-section sets, each validated against measured swarm parameters")
@@ -91,8 +92,9 @@ LOUREIRO = ("J. Loureiro and C. M. Ferreira (1986) J. Phys. D: Appl. Phys. 19, 1
 ISOLA = ("L. M. Isola, B. J. Gomez and V. Guerra (2010) J. Phys. D: Appl. Phys. 43, 015202, "
          "doi:10.1088/0022-3727/43/1/015202: partial ionization to N2+(B); the N2+(X) table of the set is the total of "
          "Rapp & Englander-Golden (1965) minus this partial one")
-GOUSSET = ("G. Gousset, C. M. Ferreira, M. Pinheiro, P. A. Sa, M. Touzeau, M. Vialle and J. Loureiro (1991) J. Phys. D: "
-           "Appl. Phys. 24, 290, doi:10.1088/0022-3727/24/3/010, and L. L. Alves, P. Coche, M. A. Ridenti and V. Guerra "
+GOUSSET = ("G. Gousset, C. M. Ferreira, M. Pinheiro, P. A. Sa, M. Touzeau, M. Vialle and J. Loureiro (1991) "
+           "J. Phys. D: Appl. Phys. 24, 290, doi:10.1088/0022-3727/24/3/010, and L. L. Alves, P. Coche, "
+           "M. A. Ridenti and V. Guerra "
            "(2016) Eur. Phys. J. D 70, 124, doi:10.1140/epjd/e2016-70102-1: the O2 set of the Lisbon group, compiled "
            "from A. V. Phelps (1985) Technical Report 28, JILA Information Center, University of Colorado, extended to "
            "1 keV")
@@ -323,11 +325,13 @@ RECIPES = {
         "species": {"name": "Ar", "formula": "Ar", "mass_amu": 39.948, "ionization_energy_eV": 15.75961,
                     "description": "Argon, the swarm-validated set of the Lisbon group (Yanguas-Gil, Cotrino & Alves "
                                    "2005): 4s, 4p, 3d, 5s, 5p, 4d, 6s levels resolved"},
-        "sources": [YANGUAS_GIL, ALVES, PHELPS_AR_MT, KHAKOO, CHILTON, HAYASHI_AR_3D, WEBER, DRAWIN, RAPP_LISBON, PUECH],
+        "sources": [YANGUAS_GIL, ALVES, PHELPS_AR_MT, KHAKOO, CHILTON, HAYASHI_AR_3D, WEBER, DRAWIN, RAPP_LISBON,
+                    PUECH],
         "notes": ("The default argon set. Elastic momentum transfer (the set's ELASTIC block: Phelps's effective cross "
                   "section less the inelastic ones, as the source states), 37 excitations of resolved or paired levels "
                   "and total ionization, all as tabulated to 1 keV; the authors adjusted them against measured swarm "
-                  "parameters. Labels: the four 4s levels keep our earlier names (Paschen 1s5-1s2 with the Racah name), "
+                  "parameters. Labels: the four 4s levels keep our earlier names (Paschen 1s5-1s2 with the Racah "
+                  "name), "
                   "the 4p levels carry their Paschen name (2p10-2p1, matched by threshold to the level list of Puech "
                   "& Torchin 1986) beside the Racah name of the set, the others the set's Racah name; every level is "
                   "in the group Ar*. The two resonant 4s levels carry the wavelength h c / threshold. Every cross "
