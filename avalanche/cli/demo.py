@@ -25,7 +25,7 @@ from pathlib import Path
 
 from ..errors import ConfigError
 
-DEMO_FIELDS_Td = (100.0, 200.0, 300.0, 500.0, 800.0, 1200.0, 1800.0)
+DEMO_FIELDS_Td = (100.0, 200.0, 300.0, 500.0, 800.0, 1200.0)
 """Reduced fields of the demo sweep [Td]: from the lamp's running field to beyond its Paschen minimum."""
 DEMO_GAMMA = 0.01
 """Secondary-electron yield of the demo's Paschen curve (a round value for metal cathodes in argon; common
