@@ -14,7 +14,7 @@ Scenario (our own): the fill gas of an argon lamp cell, 300 K and 1 kPa. The dem
 6. computes the Paschen curve of a uniform argon gap from steady-state Townsend α/N (γ = :data:`DEMO_GAMMA`), with
    its caution;
 
-and prints where each output went. It takes a few minutes on 2 cores.
+and prints where each output went. It takes about five minutes on 2 cores.
 """
 
 from __future__ import annotations
