@@ -22,7 +22,10 @@ import logging
 import os
 import sys
 import warnings
+from functools import lru_cache
 from pathlib import Path
+
+import scipy.constants as sc
 
 ROOT = Path(__file__).resolve().parents[1]
 sys.path.insert(0, str(ROOT))
@@ -60,6 +63,46 @@ OPAL = ("C. B. Opal, W. K. Peterson and E. C. Beaty (1971) J. Chem. Phys. 55, 41
 HAYASHI_AR = ("M. Hayashi (2003) Bibliography of electron and photon cross sections with atoms and molecules "
               "published in the 20th century: argon, report NIFS-DATA-72 (National Institute for Fusion Science, "
               "Toki): the Ar set (momentum transfer as corrected to fig. 1 of that report)")
+YANGUAS_GIL = ("A. Yanguas-Gil, J. Cotrino and L. L. Alves (2005) J. Phys. D: Appl. Phys. 38, 1588, "
+               "doi:10.1088/0022-3727/38/10/014: an update of argon inelastic cross sections for plasma discharges "
+               "(the "
+               "Ar set of the Lisbon group)")
+ALVES = ("L. L. Alves (2014) J. Phys.: Conf. Ser. 565, 012007, doi:10.1088/1742-6596/565/1/012007: the Lisbon "
+         "group's complete cross-section sets, each validated against measured swarm parameters")
+PHELPS_AR_MT = ("A. V. Phelps et al., the effective momentum transfer of C. Yamabe, S. J. Buckman and A. V. Phelps "
+                "(1983) Phys. Rev. A 27, 1345, doi:10.1103/PhysRevA.27.1345, less the inelastic cross sections (the "
+                "elastic momentum transfer of the Lisbon Ar set)")
+KHAKOO = ("M. A. Khakoo et al. (2004) J. Phys. B: At. Mol. Opt. Phys. 37, 247, doi:10.1088/0953-4075/37/1/017: "
+          "3p5 4s excitation (the resonant levels multiplied by 0.5 in the Lisbon set)")
+CHILTON = ("J. E. Chilton, J. B. Boffard, R. S. Schappe and C. C. Lin (1998) Phys. Rev. A 57, 267, "
+           "doi:10.1103/PhysRevA.57.267: 3p5 4p excitation")
+HAYASHI_AR_3D = ("M. Hayashi (2003) report NIFS-DATA-72 (National Institute for Fusion Science, Toki): 3d and 5s "
+                 "excitation, as taken by the Lisbon Ar set")
+WEBER = "T. Weber et al. (2003) Phys. Rev. A 68, 032719, doi:10.1103/PhysRevA.68.032719: 3p5 5p excitation"
+DRAWIN = ("H. W. Drawin (1967) report EUR-CEA-FC-383 (Fontenay-aux-Roses): formulae for the 4d and 6s excitation, "
+          "as evaluated by the Lisbon Ar set")
+RAPP_LISBON = RAPP + " (argon, as taken by the Lisbon Ar set)"
+PUECH = ("V. Puech and L. Torchin (1986) J. Phys. D: Appl. Phys. 19, 2309, doi:10.1088/0022-3727/19/12/011: level list "
+         "with Paschen designations, used only to name the 4s and 4p levels by matching thresholds (no cross section "
+         "is taken from it)")
+LOUREIRO = ("J. Loureiro and C. M. Ferreira (1986) J. Phys. D: Appl. Phys. 19, 17, doi:10.1088/0022-3727/19/1/007: "
+            "coupled electron energy and vibrational distribution functions in stationary N2 discharges (the N2 set of "
+            "the Lisbon group, compiled mostly from L. C. Pitchford and A. V. Phelps 1982 Bull. Am. Phys. Soc. 27, 109 "
+            "and K. Tachibana and A. V. Phelps 1979 J. Chem. Phys. 71, 3544, extended to 1 keV)")
+ISOLA = ("L. M. Isola, B. J. Gomez and V. Guerra (2010) J. Phys. D: Appl. Phys. 43, 015202, "
+         "doi:10.1088/0022-3727/43/1/015202: partial ionization to N2+(B); the N2+(X) table of the set is the total of "
+         "Rapp & Englander-Golden (1965) minus this partial one")
+GOUSSET = ("G. Gousset, C. M. Ferreira, M. Pinheiro, P. A. Sa, M. Touzeau, M. Vialle and J. Loureiro (1991) "
+           "J. Phys. D: Appl. Phys. 24, 290, doi:10.1088/0022-3727/24/3/010, and L. L. Alves, P. Coche, "
+           "M. A. Ridenti and V. Guerra "
+           "(2016) Eur. Phys. J. D 70, 124, doi:10.1140/epjd/e2016-70102-1: the O2 set of the Lisbon group, compiled "
+           "from A. V. Phelps (1985) Technical Report 28, JILA Information Center, University of Colorado, extended to "
+           "1 keV")
+WAKIYA = ("K. Wakiya (1978) J. Phys. B 11, 3913, doi:10.1088/0022-3700/11/22/018: a1Delta_g excitation to 200 eV, as "
+          "taken by the Lisbon O2 set")
+LISBON_NOTE = ("The Lisbon sets ship without the rotational groups their authors provide separately (J -> J+2 "
+               "transitions of Gerjuoy & Stein 1955), which matter below about 1 Td (N2) and 10 Td (O2) as the set's "
+               "own header states; transitions between excited vibrational levels are left out as well.")
 DOI_NOTE = "DOIs were written from memory and checked against nothing but the citation in the carrier's block headers."
 
 
@@ -77,6 +120,52 @@ N2_ELECTRONIC = (
 def _vib(n: int, states=("X(v=0)", "X(v={})")) -> dict:
     return {"level_type": "vibrational", "superelastic": True, "statistical_weights": [1.0, 1.0],
             "initial_state": states[0], "final_state": states[1].format(n)}
+
+
+AR_4S_LABELS = {
+    "4s[3/2]3P2o": "1s5 (3p5 4s [3/2]2, metastable)", "4s[3/2]3P1o": "1s4 (3p5 4s [3/2]1, resonant)",
+    "4s'[1/2]3P0o": "1s3 (3p5 4s' [1/2]0, metastable)", "4s'[1/2]1P1o": "1s2 (3p5 4s' [1/2]1, resonant)",
+}
+"""Our labels of the four 3p5 4s levels (kept from the earlier argon file, so Penning groups such as ``"Ar:1s"`` and
+result keys stay valid): Paschen name as in Puech & Torchin (1986), the Racah name of the Lisbon block, and the
+levels' character (J = 0, 2 metastable, J = 1 resonant: common practice)."""
+AR_RESONANT = ("4s[3/2]3P1o", "4s'[1/2]1P1o")
+"""The two 3p5 4s levels that radiate to the ground state: their resonance wavelength is h c / threshold."""
+
+
+@lru_cache(maxsize=1)
+def _paschen_names() -> dict[float, str]:
+    """Threshold [eV] → Paschen name (1s…, 2p…) of the argon levels of Puech & Torchin (1986), read from the
+    carrier's copy of their block headers."""
+    names = {}
+    for t in read_blocks("Ar/others/Cross section (puech).e-Ar"):
+        header = t.attrs["header"]
+        if _keyword(header) == "EXCITATION":
+            name = _reaction(header, "EXCITATION").split("Ar(", 1)[1].strip()
+            if name[:2] in ("1s", "2p") and name[2:].isdigit():
+                names[_threshold(header, "EXCITATION")] = name
+    return names
+
+
+def _argon_level(header: dict, threshold_eV: float) -> dict:
+    """Label and metadata of one excitation of the Lisbon argon set, from its PROCESS line."""
+    state = header["PROCESS"].split("-> E +", 1)[1].rsplit(",", 1)[0].strip().replace("\u00b0", "o")
+    racah = state.removeprefix("Ar(").removesuffix(")")
+    entry = {"level_type": "electronic", "initial_state": "Ar(3p6 1S0)", "final_state": state, "group": "Ar*"}
+    if racah in AR_4S_LABELS:
+        entry["label"] = AR_4S_LABELS[racah]
+        if racah in AR_RESONANT:  # lambda = h c / E, scipy.constants (CODATA)
+            entry["wavelength_nm"] = round(sc.h * sc.c / (threshold_eV * sc.electron_volt) * 1e9, 2)
+        entry["source"] = KHAKOO
+        return entry
+    paschen = [name for energy, name in _paschen_names().items() if abs(energy - threshold_eV) < 0.002]
+    if racah.startswith("4p") and len(paschen) == 1:
+        entry.update(label=f"{paschen[0]} ({racah})", source=CHILTON)
+    else:
+        entry["label"] = racah
+        entry["source"] = (WEBER if racah.startswith("5p") else DRAWIN if racah[:2] in ("4d", "6s")
+                           else HAYASHI_AR_3D)
+    return entry
 
 
 # Recipe: (keyword, reaction line of the block, our entry). The entry gives kind, label and any extra fields; the
@@ -231,9 +320,103 @@ RECIPES = {
             ("IONIZATION", "Ar -> Ar^+", {"kind": "ionization", "label": "total ionization"}),
         ],
     },
+    "Ar": {
+        "file": "Ar/others/Cross section (ist).e-Ar", "set": "lisbon",
+        "species": {"name": "Ar", "formula": "Ar", "mass_amu": 39.948, "ionization_energy_eV": 15.75961,
+                    "description": "Argon, the swarm-validated set of the Lisbon group (Yanguas-Gil, Cotrino & Alves "
+                                   "2005): 4s, 4p, 3d, 5s, 5p, 4d, 6s levels resolved"},
+        "sources": [YANGUAS_GIL, ALVES, PHELPS_AR_MT, KHAKOO, CHILTON, HAYASHI_AR_3D, WEBER, DRAWIN, RAPP_LISBON,
+                    PUECH],
+        "notes": ("The default argon set. Elastic momentum transfer (the set's ELASTIC block: Phelps's effective cross "
+                  "section less the inelastic ones, as the source states), 37 excitations of resolved or paired levels "
+                  "and total ionization, all as tabulated to 1 keV; the authors adjusted them against measured swarm "
+                  "parameters. Labels: the four 4s levels keep our earlier names (Paschen 1s5-1s2 with the Racah "
+                  "name), "
+                  "the 4p levels carry their Paschen name (2p10-2p1, matched by threshold to the level list of Puech "
+                  "& Torchin 1986) beside the Racah name of the set, the others the set's Racah name; every level is "
+                  "in the group Ar*. The two resonant 4s levels carry the wavelength h c / threshold. Every cross "
+                  "section is read from the published tables. Ionization energy in the header (Penning energies "
+                  "use it): NIST Atomic Spectra Database 15.75961 eV (from memory); the set's ionization threshold is "
+                  "15.76 eV. Mass: standard atomic weight (common practice). " + DOI_NOTE),
+        "blocks": [
+            ("ELASTIC", "Ar", {"kind": "elastic", "label": "momentum transfer", "source": PHELPS_AR_MT}),
+            ("EXCITATION", "*", {"kind": "excitation", "namer": _argon_level}),
+            ("IONIZATION", "Ar -> Ar+", {"kind": "ionization", "label": "total ionization", "source": RAPP_LISBON}),
+        ],
+    },
+    "N2@lisbon": {
+        "file": "N2/others/Cross section (ist).e-N2", "set": "lisbon",
+        "species": {"name": "N2", "formula": "N2", "mass_amu": 28.0134, "ionization_energy_eV": 15.581,
+                    "description": "Nitrogen, the swarm-validated set of the Lisbon group (Loureiro & Ferreira 1986)"},
+        "sources": [LOUREIRO, ALVES, CARTWRIGHT, ZIPF, ISOLA, RAPP],
+        "notes": ("Effective momentum transfer (elastic part derived on loading), vibrational excitation v=0-1 to "
+                  "v=0-10 (superelastic pairs with weights 1, as the set's <-> blocks state), 13 electronic "
+                  "excitations and the ionization to N2+(X) and N2+(B) (their sum is the total of Rapp & "
+                  "Englander-Golden 1965). The authors state agreement with measured swarm parameters for 1-1000 Td. "
+                  + LISBON_NOTE + " Ionization energy in the header: NIST Chemistry WebBook 15.581 eV (from memory); "
+                  "the set's ionization threshold is 15.6 eV. " + DOI_NOTE),
+        "blocks": [
+            ("EFFECTIVE", "N2", {"kind": "effective", "label": "momentum transfer"}),
+            *[("EXCITATION", f"N2 -> N2 (v=0 - v={n})", {"kind": "excitation", "label": f"vibration v=0-{n}",
+                                                         **_vib(n)})
+              for n in range(1, 11)],
+            *[("EXCITATION", reaction, {"kind": "excitation", "label": label, "level_type": "electronic",
+                                        "initial_state": "X1Sigma_g+", "final_state": label,
+                                        **({"source": CARTWRIGHT} if cartwright else {})})
+              for reaction, label, cartwright in (
+                  ("N2 -> N2[A3SIGu+(v=0-4)]", "A3Sigma_u+ (v=0-4)", False),
+                  ("N2 -> N2 [A3SIGu+(v=5-9)]", "A3Sigma_u+ (v=5-9)", False),
+                  ("N2 -> N2 [A3SIGu+(v=10+)]", "A3Sigma_u+ (v>=10)", False),
+                  ("N2 -> N2(B3PIg)", "B3Pi_g", True), ("N2 -> N2(W3DELu)", "W3Delta_u", True),
+                  ("N2 -> N2(B3SIGu-)", "B'3Sigma_u-", True), ("N2 -> N2(a'1SIGu-)", "a'1Sigma_u-", True),
+                  ("N2 -> N2(a1PIg)", "a1Pi_g", True), ("N2 -> N2(w1DELu)", "w1Delta_u", True),
+                  ("N2 -> N2(C3PIu)", "C3Pi_u", False), ("N2 -> N2(E3SIGg+)", "E3Sigma_g+", False),
+                  ('N2 -> N2(a"1SIGg+)', "a''1Sigma_g+", False))],
+            ("EXCITATION", "N2 -> N2(sing-sup)", {"kind": "excitation", "label": "sum of singlets", "source": ZIPF,
+                                                  "level_type": "electronic"}),
+            ("IONIZATION", "N2 -> N2+(X)", {"kind": "ionization", "label": "ionization to N2+(X)"}),
+            ("IONIZATION", "N2 -> N2+(B)", {"kind": "ionization", "label": "ionization to N2+(B)", "source": ISOLA}),
+        ],
+    },
+    "O2@lisbon": {
+        "file": "O2/others/Cross section (ist).e-O2", "set": "lisbon",
+        "species": {"name": "O2", "formula": "O2", "mass_amu": 31.9988, "ionization_energy_eV": 12.0697,
+                    "description": "Oxygen, the swarm-validated set of the Lisbon group (Gousset et al. 1991, Alves "
+                                   "et al. 2016)"},
+        "sources": [GOUSSET, ALVES, WAKIYA],
+        "notes": ("Effective momentum transfer (elastic part derived on loading), dissociative attachment, vibrational "
+                  "excitation v=0-1 to v=0-4 (superelastic pairs), a1Delta_g, b1Sigma_g+, the 4.5, 6.0, 8.4, 9.97 and "
+                  "14.7 eV losses and total ionization. The set has no three-body attachment (e + O2 + M): at high "
+                  "pressure and low E/N it underestimates attachment; use the default O2 set there. The authors state "
+                  "agreement with measured swarm parameters for 10-1000 Td. " + LISBON_NOTE + " Ionization energy in "
+                  "the header: NIST Chemistry WebBook 12.0697 eV (from memory); the set's ionization threshold is "
+                  "12.1 eV. " + DOI_NOTE),
+        "blocks": [
+            ("ATTACHMENT", "O2 -> O- + O", {"kind": "attachment", "label": "dissociative attachment O2 -> O- + O"}),
+            ("EFFECTIVE", "O2", {"kind": "effective", "label": "momentum transfer"}),
+            *[("EXCITATION", f"O2 -> O2(v=0 - v={n})", {"kind": "excitation", "label": f"vibration v=0-{n}",
+                                                        **_vib(n)})
+              for n in range(1, 5)],
+            ("EXCITATION", "O2 -> O2(a1Dg)", {"kind": "excitation", "label": "a1Delta_g", "level_type": "electronic",
+                                              "source": f"{GOUSSET}; above 40 eV {WAKIYA}"}),
+            ("EXCITATION", "O2 -> O2(b1Sg+)", {"kind": "excitation", "label": "b1Sigma_g+",
+                                               "level_type": "electronic"}),
+            ("EXCITATION", "O2 -> O2(A3Su+,C3Du,c1Su-)", {"kind": "excitation", "label": "4.5 eV (A3Sigma_u+, "
+                                                          "C3Delta_u, c1Sigma_u- bound states)",
+                                                          "level_type": "electronic"}),
+            ("EXCITATION", "O2 -> O(3P)+O(3P)", {"kind": "excitation", "label": "6.0 eV (dissociation to O(3P) + "
+                                                 "O(3P))", "level_type": "electronic"}),
+            ("EXCITATION", "O2 -> O(3P)+O(1D)", {"kind": "excitation", "label": "8.4 eV (dissociation to O(3P) + "
+                                                 "O(1D))", "level_type": "electronic"}),
+            ("EXCITATION", "O2 -> O2(9.97eV)", {"kind": "excitation", "label": "9.97 eV", "level_type": "electronic"}),
+            ("EXCITATION", "O2 -> O2(14.7eV)", {"kind": "excitation", "label": "14.7 eV", "level_type": "electronic"}),
+            ("IONIZATION", "O2 -> O2+", {"kind": "ionization", "label": "total ionization"}),
+        ],
+    },
 }
 OUTPUT_NAME = {"N2": "N2.toml", "O2": "O2.toml", "CO2": "CO2.toml", "H2O": "H2O.toml", "Ar@phelps": "Ar@phelps.toml",
-               "Ar@hayashi": "Ar@hayashi.toml"}
+               "Ar@hayashi": "Ar@hayashi.toml", "Ar": "Ar.toml", "N2@lisbon": "N2@lisbon.toml",
+               "O2@lisbon": "O2@lisbon.toml"}
 OPAL_SPECIES = ("N2", "O2", "Ar", "H2O", "CO2")
 """Species whose ionization gets the Opal-Peterson-Beaty w of the carrier's constants table."""
 KEYWORDS = ("EFFECTIVE", "ELASTIC", "EXCITATION", "IONIZATION", "ATTACHMENT")
@@ -304,7 +487,10 @@ def build(name: str) -> str:
             header = t.attrs["header"]
             if _keyword(header) == keyword and "@skip" not in header:
                 state = _reaction(header, keyword).split("->", 1)[1].strip()
-                blocks.append((keyword, _reaction(header, keyword), dict(entry, label=state, final_state=state)))
+                namer = entry.get("namer")
+                extra = namer(header, _threshold(header, keyword)) if namer else {"label": state, "final_state": state}
+                blocks.append((keyword, _reaction(header, keyword),
+                               {k: v for k, v in {**entry, **extra}.items() if k != "namer"}))
     for keyword, reaction, entry in blocks:
         entry = dict(entry)
         table = _find(tables, keyword, reaction, entry.pop("comment", None), f"{name} ({recipe['file']})")

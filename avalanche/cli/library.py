@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import re
+
 import numpy as np
 
 from ..gas.crosssections import CrossSectionSet, load_set
@@ -52,9 +54,36 @@ def describe_set(xs: CrossSectionSet, provenance: bool = True, library_name: str
     return "\n".join(lines)
 
 
-@command("gases", "list the gas library: species, processes, energy range, provenance",
+def short_source(xs: CrossSectionSet, width: int = 100) -> str:
+    """The first source of a set's provenance, cut before its DOI (or its description after a colon) to ``width``
+    characters: authors, year and publication, for one-line listings."""
+    sources = xs.provenance.get("sources", [])
+    if not xs.set_name and "from memory" in xs.provenance.get("notes", ""):
+        return "written for avalanche from the literature, values from memory (see its provenance)"
+    if not sources:
+        return "no source given"
+    text = re.split(r", doi:|: (?=[a-z])", sources[0], maxsplit=1)[0]
+    return text if len(text) <= width else text[:width - 1] + "…"
+
+
+def data_set_index(names: list[str]) -> list[str]:
+    """One line per data set of the shipped library, grouped by species, the default first: how to select it
+    (``SPECIES`` or ``SPECIES@SET``) and its source."""
+    lines = ["Data sets (select with SPECIES for the default, SPECIES@SET for an alternative):"]
+    for name in names:
+        xs = get_set(name)
+        if xs.formula == "model":
+            continue
+        spelling = name if xs.set_name == "" or "@" in name else f"{name} (= {name}@{xs.set_name}, the default)"
+        lines.append(f"  {spelling:<38s} {short_source(xs)}")
+    return lines
+
+
+@command("gases", "list the gas library: data sets with their sources, processes, energy range, provenance",
          configure=lambda p: p.add_argument("--brief", action="store_true", help="omit provenance lines"))
 def _gases(args) -> int:
+    print("\n".join(data_set_index(available_gases())))
+    print()
     for name in available_gases():
         print(describe_set(get_set(name), provenance=not args.brief, library_name=name))
         print()

@@ -7,7 +7,20 @@ import math
 
 from .common import magnetic_field_value, magnetic_selection
 from .registry import SAFETY_NOTE, command, print_json
-from .units import one_reduced_field_Td, pressure_Pa
+from .units import one_reduced_field_Td, pressure_Pa, temperature_K
+
+
+def _vibrational_temperature(text: str) -> float:
+    """``--vibrational-temperature``: a temperature [K] (``2000`` or ``2000K``); a bad value is argparse's one-line
+    usage error naming the option and the value."""
+    import argparse
+
+    from ..errors import ConfigError
+
+    try:
+        return temperature_K(text, "--vibrational-temperature")
+    except ConfigError as exc:
+        raise argparse.ArgumentTypeError(str(exc)) from None
 
 
 def _mixture_arguments(p) -> None:
@@ -19,6 +32,9 @@ def _mixture_arguments(p) -> None:
     density.add_argument("--density", type=float, metavar="M3", help="gas number density [m^-3]")
     p.add_argument("--penning", default=None, metavar="GROUP:R",
                    help='Penning transfer probabilities, e.g. "Ne:0.3" or "Ne:1s:0.2,Ne:2p->Ar:0.5" (default none)')
+    p.add_argument("--vibrational-temperature", type=_vibrational_temperature, default=None, metavar="T",
+                   help="temperature of the vibrational level populations, e.g. 2000K (default: the gas "
+                        "temperature); sets with superelastic vibrational pairs (N2, O2) use it")
 
 
 def mixture_from_args(args):
@@ -28,7 +44,8 @@ def mixture_from_args(args):
 
     penning = parse_penning(args.penning) if args.penning else None
     return Mixture(args.gas, temperature_K=args.temperature, pressure_Pa=args.pressure,
-                   number_density_m3=args.density, penning=penning)
+                   number_density_m3=args.density, penning=penning,
+                   vibrational_temperature_K=args.vibrational_temperature)
 
 
 def point_arguments(p, precision: float, electrons_help: str) -> None:

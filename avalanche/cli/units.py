@@ -49,6 +49,21 @@ def pressure_Pa(text: str, option: str = "--pressure") -> float:
     return _with_unit(text, option, PRESSURE_UNITS_Pa, "1000, 10torr, 1atm or 5kPa")
 
 
+TEMPERATURE_UNITS_K = {"K": 1.0}
+"""Temperature units accepted after a number; a bare number is in K."""
+
+
+def temperature_K(text: str, option: str = "--vibrational-temperature") -> float:
+    """A temperature [K] from ``text``: a number, optionally followed by ``K`` (``2000``, ``2000K``, ``2000 K``).
+
+    Raises
+    ------
+    ConfigError
+        For text that is not a positive number with an optional ``K`` (naming the option).
+    """
+    return _with_unit(text, option, TEMPERATURE_UNITS_K, "2000 or 2000K")
+
+
 def length_m(text: str, option: str = "--length") -> float:
     """A length [m] from ``text``: a number in m, or a number with a unit of :data:`LENGTH_UNITS_m`."""
     return _with_unit(text, option, LENGTH_UNITS_m, "0.01, 2mm or 25um")

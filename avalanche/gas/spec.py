@@ -50,11 +50,13 @@ class MixtureSpec:
         return json.dumps(data, sort_keys=True)
 
     def build(self, temperature_K: float, pressure_Pa: float | None = None,
-              number_density_m3: float | None = None) -> Mixture:
-        """The :class:`~avalanche.gas.mixture.Mixture` of this composition at the given state."""
+              number_density_m3: float | None = None, vibrational_temperature_K: float | None = None) -> Mixture:
+        """The :class:`~avalanche.gas.mixture.Mixture` of this composition at the given state
+        (``vibrational_temperature_K``: that of the vibrational level populations, default the gas temperature)."""
         sets = {name: model_gas(name, **params) for name, params in self.parameters.items()}
         return Mixture(dict(self.composition), temperature_K=temperature_K, pressure_Pa=pressure_Pa,
-                       number_density_m3=number_density_m3, sets=sets, penning=self.penning or None)
+                       number_density_m3=number_density_m3, sets=sets, penning=self.penning or None,
+                       vibrational_temperature_K=vibrational_temperature_K)
 
 
 def species_label(name: str) -> str:

@@ -45,7 +45,7 @@ _SECTIONS = {
     "format_version": None,
     "sweep": {"name", "description", "mode", "seed", "output"},
     "gas": {"mixture", "mixtures", "balance", "fractions", "temperature_K", "pressure_Pa", "number_density_m3",
-            "parameters", "penning"},
+            "parameters", "penning", "vibrational_temperature_K"},
     "grid": {"reduced_field_Td", "frequencies_Hz", "magnetic_field_T", "reduced_magnetic_field_Hx", "field_angle_deg"},
     "engine": None,  # keywords of avalanche.engine.time_of_flight.swarm, checked in _engine_options
     "cluster": {"kind", "jobs", "cores", "processes", "memory", "walltime", "queue", "account", "options"},
@@ -189,6 +189,7 @@ class RunFile:
     magnetic_field: tuple[float, ...] = (0.0,)
     magnetic_unit: str = "T"
     field_angle_deg: tuple[float, ...] = (90.0,)
+    vibrational_temperature_K: float | None = None
 
     @property
     def magnetic(self) -> bool:
@@ -212,7 +213,8 @@ class RunFile:
 
     def build_mixture(self, mixture_index: int) -> Mixture:
         """The :class:`~avalanche.gas.mixture.Mixture` of ``mixtures[mixture_index]`` at the run file's state."""
-        return self.mixtures[mixture_index].build(self.temperature_K, self.pressure_Pa, self.number_density_m3)
+        return self.mixtures[mixture_index].build(self.temperature_K, self.pressure_Pa, self.number_density_m3,
+                                                  self.vibrational_temperature_K)
 
     @cached_property
     def mixture_checksums(self) -> tuple[dict[str, str], ...]:
@@ -237,7 +239,9 @@ class RunFile:
             "reduced_field_Td": list(self.reduced_field_Td), "frequencies_Hz": list(self.frequencies_Hz),
             "engine": dict(sorted(self.engine.items())),
         } | ({"magnetic": {"unit": self.magnetic_unit, "values": list(self.magnetic_field),
-                           "field_angle_deg": list(self.field_angle_deg)}} if self.magnetic else {})
+                           "field_angle_deg": list(self.field_angle_deg)}} if self.magnetic else {}) \
+          | ({"vibrational_temperature_K": self.vibrational_temperature_K}
+             if self.vibrational_temperature_K is not None else {})
 
     def config_json(self) -> str:
         """:meth:`config` as canonical JSON text."""
@@ -362,6 +366,10 @@ def runfile_from_data(data: dict, text: str, source: str = "<run file>", base: s
     temperature_K = check.number(gas, "[gas]", "temperature_K", default=300.0)
     pressure_Pa = check.number(gas, "[gas]", "pressure_Pa", default=None)
     number_density_m3 = check.number(gas, "[gas]", "number_density_m3", default=None)
+    vibrational_temperature_K = check.number(gas, "[gas]", "vibrational_temperature_K", default=None)
+    if vibrational_temperature_K is not None and vibrational_temperature_K < 0:
+        check.fail("[gas]", "vibrational_temperature_K", vibrational_temperature_K,
+                   "must be a temperature >= 0 K (the vibrational level populations), e.g. 2000")
 
     grid = sections["grid"]
     if "reduced_field_Td" not in grid:
@@ -386,7 +394,7 @@ def runfile_from_data(data: dict, text: str, source: str = "<run file>", base: s
                       output=output, mixtures=mixtures, temperature_K=temperature_K, pressure_Pa=pressure_Pa,
                       number_density_m3=number_density_m3, reduced_field_Td=fields, frequencies_Hz=frequencies,
                       engine=engine, cluster=cluster, magnetic_field=magnetic_field, magnetic_unit=magnetic_unit,
-                      field_angle_deg=angles)
+                      field_angle_deg=angles, vibrational_temperature_K=vibrational_temperature_K)
     for i, mix in enumerate(mixtures):  # loads every cross-section set: unknown gases and bad states fail here
         try:
             runfile.build_mixture(i)

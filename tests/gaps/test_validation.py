@@ -208,10 +208,10 @@ def test_coaxial_gain_against_the_local_field_integral():
     N = mixture.number_density_m3
     en_wire, en_start = 120.0, 75.0
     # α/N [m²] of argon (300 K, 1 atm) from avalanche.swarm at 1 % precision: the package's own table, made by
-    # avalanche.gaps.local_field.alpha_table_from_swarm(Mixture("Ar"), (75.0, 120.0), seed=1, precision=0.01,
-    # max_events=1_000_000_000) (several minutes, so stored here; η/N = 0 in argon)
-    table = ([62.44897959183675, 87.42857142857144, 122.4], [9.416099453831877e-23, 3.159141535945005e-22,
-                                                              8.108930701074381e-22])
+    # avalanche.gaps.local_field.alpha_table_from_swarm(Mixture("Ar"), (75.0, 120.0), seed=1,
+    # precision={"alpha_N": 0.01, "default": 1.0}, max_events=1_000_000_000) with the default argon set (Yanguas-Gil
+    # et al. 2005) (several minutes, so stored here; η/N = 0 in argon)
+    table = ([62.44897959183675, 87.42857142857144, 122.4], [2.21134093e-22, 5.48549641e-22, 1.17166079e-21])
     ratios = {}
     for name, a, b, primaries in (("thick", 0.5e-3, 5e-3, 150), ("thin", 10e-6, 5e-3, 300)):
         V = en_wire * TOWNSEND_V_m2 * N * a * math.log(b / a)

@@ -70,7 +70,10 @@ def test_the_shipped_argon_ionization_energy_matches_its_threshold():
 
     argon = get_set("Ar")
     assert argon.ionization_energy_eV == pytest.approx(15.75961, abs=1e-4)  # NIST ASD (from memory)
-    assert min(p.threshold_eV for p in argon.processes if p.kind == "ionization") == argon.ionization_energy_eV
+    # the published table starts at its own rounded threshold (15.76 eV, Yanguas-Gil et al. 2005); the format
+    # accepts a header within 1e-3 eV of it (README, "Validation")
+    threshold = min(p.threshold_eV for p in argon.processes if p.kind == "ionization")
+    assert threshold == pytest.approx(argon.ionization_energy_eV, abs=1e-3)
 
 
 def test_table_files_that_are_not_tables_are_not_echoed(write_set, set_text, tmp_path):

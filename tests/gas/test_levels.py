@@ -144,7 +144,8 @@ def test_detailed_balance_of_the_rates_in_a_maxwellian():
 
 def test_named_data_sets():
     assert data_sets("N2")[0] == "phelps"  # the default set first
-    assert "phelps" in data_sets("Ar")
+    assert data_sets("Ar") == ["lisbon", "hayashi", "phelps"]  # the default (file Ar.toml) first
+    assert data_sets("N2") == ["phelps", "lisbon"] and data_sets("O2") == ["phelps", "lisbon"]
     assert get_set("N2@phelps") is get_set("N2")
     assert get_set("Ar@phelps").set_name == "phelps"
     with pytest.raises(ConfigError, match="unknown data set 'phelp' of N2 \\(did you mean 'phelps'"):
@@ -156,7 +157,7 @@ def test_mixture_chooses_a_set_by_name():
     by_mapping = Mixture({"Ar": 1.0}, sets={"Ar": "phelps"})
     assert by_spelling.components[0].cross_sections is by_mapping.components[0].cross_sections
     assert by_spelling.components[0].cross_sections.set_name == "phelps"
-    assert Mixture("Ar").components[0].cross_sections.set_name == ""  # the default argon set is unchanged
+    assert Mixture("Ar").components[0].cross_sections.set_name == "lisbon"  # the default argon set
     with pytest.raises(ConfigError, match="vibrational_temperature_K = -1.0 is negative"):
         Mixture("N2", vibrational_temperature_K=-1.0)
 
@@ -178,7 +179,7 @@ reduced_field_Td = [100.0]
 """
     run = parse_runfile(text)
     names = [run.build_mixture(i).components[0].cross_sections.set_name for i in range(2)]
-    assert names == ["", "phelps"]
+    assert names == ["lisbon", "phelps"]
     assert run.mixtures[0].key != run.mixtures[1].key  # different seeds and rows in the results file
 
 

@@ -82,3 +82,19 @@ def test_recombination_photon_wavelength_neon():
     # with CODATA constants from scipy.constants)
     assert photon_wavelength_nm(21.56) == pytest.approx(57.5, abs=0.05)
     assert photon_wavelength_nm(21.56) == pytest.approx(sc.h * sc.c / (21.56 * sc.e) * 1e9, rel=1e-12, abs=0)
+
+
+def test_gases_command_lists_every_data_set_with_its_source(capsys):
+    # Every shipped file is listed once in the index, the defaults with their set name, each beside the first source
+    # of its provenance (the published set's authors and year: Yanguas-Gil et al. 2005 for the default argon).
+    from avalanche.cli.main import main
+
+    assert main(["gases", "--brief"]) == 0
+    index = capsys.readouterr().out.split("\n\n", 1)[0].splitlines()[1:]
+    names = [line.split()[0] for line in index]
+    assert names == [n for n in available_gases() if get_set(n).formula != "model"]
+    by_name = {line.split()[0]: line for line in index}
+    assert "(= Ar@lisbon, the default)" in by_name["Ar"] and "Yanguas-Gil" in by_name["Ar"]
+    assert "Loureiro and C. M. Ferreira (1986)" in by_name["N2@lisbon"]
+    assert "Lawton and A. V. Phelps (1978)" in by_name["O2"]
+    assert "from memory" in by_name["He"]

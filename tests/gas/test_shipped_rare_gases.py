@@ -163,11 +163,15 @@ def test_argon_momentum_transfer_near_its_maximum():
 
 
 def test_argon_total_excitation_magnitude():
-    # Recommended argon total excitation peaks at about 1.5-2e-20 m² between 20 and 50 eV (Yanguas-Gil et al.
-    # 2005 J. Phys. D 38 1588, from memory).
+    # Total excitation of the default argon set (Yanguas-Gil, Cotrino & Alves 2005) against the independent
+    # compilation of Hayashi (2003, report NIFS-DATA-72), both read from their published tables: the peaks agree
+    # within 25 % (the spread between evaluations of the 4s-4p cross sections that both papers discuss) and lie
+    # between 20 and 50 eV. An earlier recollection of 1.5-2e-20 m² for this peak (from memory) is contradicted by
+    # both published tables (1.05e-20 and 1.08e-20 m²).
     energy = np.linspace(11.0, 1000.0, 9891)
     total = sum(p.sigma_m2(energy) for p in _process(get_set("Ar"), "excitation"))
-    assert 1.4e-20 <= total.max() <= 2.0e-20
+    reference = sum(p.sigma_m2(energy) for p in _process(get_set("Ar@hayashi"), "excitation"))
+    assert total.max() == pytest.approx(reference.max(), rel=0.25, abs=0)
     assert 20.0 <= energy[np.argmax(total)] <= 50.0
 
 

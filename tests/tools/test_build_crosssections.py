@@ -18,7 +18,7 @@ def _build_module():
     return module
 
 
-@pytest.mark.parametrize("name", ["O2", "Ar@phelps"])
+@pytest.mark.parametrize("name", ["O2", "Ar@phelps", "Ar", "N2@lisbon"])
 def test_build_reproduces_the_shipped_file(name, tmp_path):
     build = _build_module()
     assert build.main([name, "--out", str(tmp_path)]) == 0
