@@ -31,7 +31,7 @@ reduced_field_Td = [6, 12, 24]
 
 [engine]
 precision = 0.05
-max_events = 1e6
+max_events = 4e6
 electrons = 500
 '''
 """Three tiny points of the Reid ramp model gas (Reid 1979, Aust. J. Phys. 32 231)."""
