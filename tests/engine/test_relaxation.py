@@ -74,6 +74,6 @@ def test_argon_at_1_Td_converges_within_the_default_budget():
     assert result.anomalies["pilot_electrons"] == 4 * PILOT_ELECTRONS_PER_REPLICA
     assert result.anomalies["not_relaxed"] == 0 and result.converged, result.convergence_notes
     assert result.stop_reason == "precision"
-    for name in ("mean_energy_eV", "drift_velocity_flux", "drift_velocity_bulk", "long_diffusion_N_bulk",
-                 "trans_diffusion_N_bulk", "long_diffusion_N_flux", "trans_diffusion_N_flux"):
+    for name in ("mean_energy_eV", "drift_velocity_flux", "drift_velocity_bulk", "N_D_L_bulk",
+                 "N_D_T_bulk", "N_D_L_flux", "N_D_T_flux"):
         assert math.isfinite(result.estimates[name].value), name
