@@ -251,6 +251,9 @@ def plot_swarm_parameters(table: SwarmTable, quantities: Sequence[str] | None = 
     figure, axes = new_figure(len(panels))
     fields = table.reduced_field_Td
     for ax, (panel, members) in zip(axes, order, strict=True):
+        legend_title = None
+        if panel == "rate_coefficients" and len(members) > RATE_PANEL_MAX:
+            members, legend_title = _largest_rates(table, members)
         series = [table.get(name) for name in members]
         log_y = use_log([values for values, _ in series])
         for name, (values, errors) in zip(members, series, strict=True):
@@ -273,9 +276,27 @@ def plot_swarm_parameters(table: SwarmTable, quantities: Sequence[str] | None = 
         ax.set_ylabel(axis_label(label(panel), unit))
         if not ax.has_data():
             ax.text(0.5, 0.5, "no finite values", transform=ax.transAxes, ha="center")
-        add_legend(ax)
+        add_legend(ax, **({"title": legend_title, "title_fontsize": 6} if legend_title else {}))
     figure.suptitle(_title(table))
     return figure
+
+
+RATE_PANEL_MAX = 10
+"""Most rate coefficients drawn on the ``rate_coefficients`` panel: the largest ones (a set with dozens of levels
+would give an unreadable panel; a named process is always drawn when asked for by its own name)."""
+
+
+def _largest_rates(table, members: list[str]) -> tuple[list[str], str]:
+    """The :data:`RATE_PANEL_MAX` rate coefficients with the largest peak value over the table, in table order,
+    and a legend title saying how many were left out."""
+    peaks = []
+    for name in members:
+        values = np.asarray(table.get(name)[0], dtype=float)
+        finite = values[np.isfinite(values)]
+        peaks.append(finite.max() if finite.size else -np.inf)
+    keep = set(np.argsort(peaks)[::-1][:RATE_PANEL_MAX].tolist())
+    kept = [name for k, name in enumerate(members) if k in keep]
+    return kept, f"largest {len(kept)} of {len(members)}"
 
 
 def _title(table: SwarmTable) -> str:
