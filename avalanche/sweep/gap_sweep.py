@@ -45,6 +45,7 @@ from .runfile import (
     _mixtures,
     _output_path,
     parse_runfile,
+    section_tables,
 )
 
 GAP_MODE = "gap"
@@ -324,21 +325,7 @@ def parse_gap_runfile(text: str, source: str = "<run file>", base: str | Path | 
     folder_given = base is not None
     base = Path(base) if base is not None else Path.cwd()
     check = _Checker(source)
-    check.keys(data, set(_SECTIONS), "the top level of a gap run file")
-    version = data.get("format_version", RUNFILE_FORMAT_VERSION)
-    if version != RUNFILE_FORMAT_VERSION:
-        raise ConfigError(f"{source}: format_version = {version!r} is not supported; this avalanche reads run "
-                          f"files of format_version {RUNFILE_FORMAT_VERSION}")
-    tables = {}
-    for name, allowed in _SECTIONS.items():
-        if name == "format_version":
-            continue
-        value = data.get(name, {})
-        if not isinstance(value, dict):
-            raise ConfigError(f"{source}: '{name}' must be a table [{name}], got {value!r}")
-        if allowed is not None and name != "cluster":
-            check.keys(value, allowed, f"[{name}]")
-        tables[name] = value
+    tables = section_tables(data, check, _SECTIONS, "the top level of a gap run file")
     for name, example in (("gas", "mixture = \"Ar\""), ("electrodes", "geometry = \"coaxial\""),
                           ("grid", "voltage_V = [500, 600]")):
         if name not in data:

@@ -324,25 +324,36 @@ def parse_runfile(text: str, source: str = "<run file>", base: str | Path | None
     return runfile_from_data(data, text, source, base)
 
 
+def section_tables(data: dict, check: _Checker, sections: dict, where: str) -> dict:
+    """The tables of a run file read as TOML: only the keys of ``sections`` at the top level, a supported
+    ``format_version``, every other section a table (absent: empty) whose keys are those ``sections`` allows
+    (None: checked elsewhere). Returns section name → table; shared by swarm and gap run files."""
+    source = check.source
+    check.keys(data, set(sections), where)
+    version = data.get("format_version", RUNFILE_FORMAT_VERSION)
+    if version != RUNFILE_FORMAT_VERSION:
+        raise ConfigError(f"{source}: format_version = {version!r} is not supported; this avalanche reads run "
+                          f"files of format_version {RUNFILE_FORMAT_VERSION}")
+    tables = {}
+    for name, allowed in sections.items():
+        if name == "format_version":
+            continue
+        value = data.get(name, {})
+        if not isinstance(value, dict):
+            raise ConfigError(f"{source}: '{name}' must be a table [{name}], got {value!r}")
+        if allowed is not None:
+            check.keys(value, allowed, f"[{name}]")
+        tables[name] = value
+    return tables
+
+
 def runfile_from_data(data: dict, text: str, source: str = "<run file>", base: str | Path | None = None) -> RunFile:
     """Validate a run file already read as TOML (``data``; ``text`` is kept as the run's record), as
     :func:`parse_runfile` does; ``avalanche check`` calls it on parts of a file to report every problem."""
     folder_given = base is not None
     base = Path(base) if base is not None else Path.cwd()
     check = _Checker(source)
-    check.keys(data, set(_SECTIONS), "the top level")
-    version = data.get("format_version", RUNFILE_FORMAT_VERSION)
-    if version != RUNFILE_FORMAT_VERSION:
-        raise ConfigError(f"{source}: format_version = {version!r} is not supported; this avalanche reads run "
-                          f"files of format_version {RUNFILE_FORMAT_VERSION}")
-    sections = {}
-    for name in ("sweep", "gas", "grid", "engine", "cluster"):
-        value = data.get(name, {})
-        if not isinstance(value, dict):
-            raise ConfigError(f"{source}: '{name}' must be a table [{name}], got {value!r}")
-        if _SECTIONS[name] is not None:
-            check.keys(value, _SECTIONS[name], f"[{name}]")
-        sections[name] = value
+    sections = section_tables(data, check, _SECTIONS, "the top level")
     if "gas" not in data:
         raise ConfigError(f"{source}: missing table [gas]; name the gas, e.g. [gas] mixture = \"Ar\"")
     if "grid" not in data:
