@@ -197,7 +197,7 @@ def periodic_stationary(series, drive: Drive, now: float) -> tuple[bool, float, 
         return False, math.nan, math.nan, math.nan
     ok = True
     values = {}
-    for num, den in (("energy_sum", "events"), ("real", "exposure"), ("net", "exposure"), ("power", "events")):
+    for num, den in (("energy_sum", "weights"), ("real", "exposure"), ("net", "exposure"), ("power", "weights")):
         n, d = series.array(num), series.array(den)
         qa = _ratio(n[a].sum(axis=0), d[a].sum(axis=0))
         qb = _ratio(n[b].sum(axis=0), d[b].sum(axis=0))

@@ -7,20 +7,23 @@ leave-one-replica-out jackknife error (Efron B & Tibshirani R J 1993, An Introdu
 exactly std/√R; for the ratios and nonlinear functions here (drift and diffusion, α from the steady-state relation
 near its limit 4 D_L ν → W²) it avoids the bias and the NaN that a mean of noisy per-replica values would give.
 
-Definitions (field along −z, so the electrons drift along +z and W > 0; sums over trial events are time
-averages of the swarm because the trial events are Poisson in time)
+Definitions (field along −z, so the electrons drift along +z and W > 0; sums over trial events, each weighted by
+w = ν*/ν*(t) where the trial frequency depends on energy, are time averages of the swarm because the trial events
+are a Poisson process of rate ν*(t) in time)
 
-* mean energy ⟨ε⟩ = Σε / n_events; flux drift velocity W_flux = ⟨v_z⟩ = Σv_z / n_events.
+* mean energy ⟨ε⟩ = Σ w ε / Σ w; flux drift velocity W_flux = ⟨v_z⟩ = Σ w v_z / Σ w, w = ν*/ν*(t).
 * bulk drift velocity W_bulk = d⟨z⟩/dt and bulk diffusion N D_L = N ½ d var(z)/dt, N D_T = N ¼ d[var(x) +
   var(y)]/dt, from the changes of the ensemble's moments during each sampled chunk (between population-control
   steps) summed over the chunks and divided by their total time.
 * flux diffusion N D_L = N (⟨z v_z⟩ − ⟨z⟩⟨v_z⟩), N D_T = N ½ ⟨x v_x + y v_y⟩ (⟨v_x⟩ = ⟨v_y⟩ = 0 by symmetry).
   Positions are taken relative to the replica's mean at the chunk start, which leaves these covariances
   unchanged and keeps the sums small.
-* rate coefficient of process k: k_k = C_k / (N_k ∫ n dt) [m³ s⁻¹], C_k its real collisions and N_k the density
-  of its target species (per target molecule); totals are frequencies divided by the total density N.
+* rate coefficient of process k: k_k = C_k / (N_k ∫ n dt) [m³ s⁻¹], C_k its expected collisions Σ ν_k(ε)/ν*(t)
+  over the trial events (below) and N_k the density of its target species (per target molecule); the counted
+  C_k (collisions that happened) gives ``rate_coefficients(..., counted=True)``; totals are frequencies divided by
+  the total density N.
 * ν_ion, ν_att: ionization and attachment frequencies per electron [s⁻¹]; ν_eff = ν_ion − ν_att. The direct
-  parts are expected-value estimates, Σ ν_k(ε)/ν* over the trial events divided by ∫ n dt (unbiased because the
+  parts are expected-value estimates, Σ ν_k(ε)/ν*(t) over the trial events divided by ∫ n dt (unbiased because the
   trial events are a Poisson process of rate ν* in time; Skullerud 1968, J. Phys. D 1 1567); the counted
   estimates (collisions that happened / ∫ n dt) are kept as ``*_rate_coefficient_counted``. ν_ion counts
   direct ionization and Penning transfer (the "penning" pseudo-processes, :mod:`avalanche.gas.penning`):
@@ -48,7 +51,7 @@ averages of the swarm because the trial events are Poisson in time)
   Theory for Charged Particles in Gases, World Scientific, ch. on transport in E×B fields, from memory); bulk
   tensor D_ij = ½ d cov(r_i, r_j)/dt; Lorentz angle θ_L = angle between W and ê_E, atan2(√(W_E×B² + W_3²), W_E);
   the transverse flux N D_T is then ½ (D_E×B,E×B + D_33) of the flux tensor (centred with ⟨v_⊥⟩ ≠ 0).
-* EEDF f(ε) per bin: the fraction of trial events in the bin divided by ∫_bin ε^½ dε, so that ∫ f ε^½ dε = 1
+* EEDF f(ε) per bin: the weighted fraction of trial events in the bin divided by ∫_bin ε^½ dε, so that ∫ f ε^½ dε = 1
   over the histogram plus the overflow [eV^-3/2].
 """
 
@@ -162,24 +165,25 @@ def per_replica_quantities(t: SwarmTallies, ctx: EstimatorContext) -> dict[str, 
     penning = counts[:, kinds == "penning"].sum(axis=1)
     ionization = counts[:, kinds == "ionization"].sum(axis=1) + penning
     attachment = counts[:, kinds == "attachment"].sum(axis=1)
-    excitation = counts[:, kinds == "excitation"].sum(axis=1)
-    # expected-value estimators (Σ ν(ε)/ν* over trial events, Skullerud 1968) for the direct part; Penning counted
-    nu_ion = _ratio(t["expected_ionizations"] + penning, exposure)
-    nu_att = _ratio(t["expected_attachments"], exposure)
+    excitation = t["expected_process_counts"][:, kinds == "excitation"].sum(axis=1)
+    # expected-value estimators (Σ ν(ε)/ν*(t) over trial events, Skullerud 1968) for the direct part; Penning counted
+    expected = t["expected_process_counts"]
+    nu_ion = _ratio(expected[:, kinds == "ionization"].sum(axis=1) + penning, exposure)
+    nu_att = _ratio(expected[:, kinds == "attachment"].sum(axis=1), exposure)
     nu_eff = nu_ion - nu_att
     w_bulk = _ratio(t["z_mean_increment_m"], t["mature_time_s"])
     dl_bulk = 0.5 * _ratio(t["z_var_increment_m2"], t["mature_time_s"])
     dt_bulk = 0.25 * _ratio(t["xy_var_increment_m2"], t["mature_time_s"])
-    w_mature = _ratio(t["mature_vz_sum"], t["mature_events"])
-    dl_flux = _ratio(t["mature_zvz_sum"] - w_mature * t["mature_z_sum"], t["mature_events"])
-    dt_flux = 0.5 * _ratio(t["mature_xyv_sum"], t["mature_events"])
+    w_mature = _ratio(t["mature_vz_sum"], t["mature_event_weights"])
+    dl_flux = _ratio(t["mature_zvz_sum"] - w_mature * t["mature_z_sum"], t["mature_event_weights"])
+    dt_flux = 0.5 * _ratio(t["mature_xyv_sum"], t["mature_event_weights"])
     if t.magnetic:  # the drift has transverse components: the centred tensor's transverse diagonal
         flux = _flux_tensor(t)
         dt_flux = 0.5 * (flux[:, 1, 1] + flux[:, 2, 2])
     mobility_N = w_bulk * N / ctx.field_V_m
     q = {
-        "mean_energy_eV": _ratio(t["energy_sum_eV"], t["events"]),
-        "drift_velocity_flux": _ratio(t["vz_sum"], t["events"]),
+        "mean_energy_eV": _ratio(t["energy_sum_eV"], t["event_weights"]),
+        "drift_velocity_flux": _ratio(t["vz_sum"], t["event_weights"]),
         "drift_velocity_bulk": w_bulk,
         "N_D_L_flux": N * dl_flux,
         "N_D_L_bulk": N * dl_bulk,
@@ -207,7 +211,7 @@ def per_replica_quantities(t: SwarmTallies, ctx: EstimatorContext) -> dict[str, 
 
 def _flux_tensor(t: SwarmTallies) -> np.ndarray:
     """Symmetrised flux diffusion tensor D_ij = ⟨r_i v_j⟩ − ⟨r_i⟩⟨v_j⟩ [m²/s], (R, 3, 3), frame components."""
-    n = t["mature_events"].astype(float)[:, None, None]
+    n = t["mature_event_weights"][:, None, None]
     with np.errstate(invalid="ignore", divide="ignore"):
         mean_r = t["mature_position_sum"][:, :, None] / n
         mean_v = t["mature_velocity_sum"][:, None, :] / n
@@ -217,7 +221,7 @@ def _flux_tensor(t: SwarmTallies) -> np.ndarray:
 
 def _magnetic_quantities(t: SwarmTallies, ctx: EstimatorContext) -> dict[str, np.ndarray]:
     """The vector and tensor quantities of a magnetic-field run for each set of sums in ``t``."""
-    w = _ratio(t["velocity_sum"], t["events"].astype(float)[:, None])
+    w = _ratio(t["velocity_sum"], t["event_weights"][:, None])
     magnitude = np.sqrt(np.sum(w * w, axis=1))
     return {
         "drift_velocity_vector": w,
@@ -242,18 +246,28 @@ def magnetic_estimates(t: SwarmTallies, ctx: EstimatorContext) -> dict[str, Arra
     return out
 
 
-def _rates(t: SwarmTallies, ctx: EstimatorContext) -> np.ndarray:
-    return _ratio(t["process_counts"], t["exposure_s"][:, None] * np.asarray(ctx.target_density_m3)[None, :])
+def _rates(t: SwarmTallies, ctx: EstimatorContext, counted: bool) -> np.ndarray:
+    # expected-value sums, except for the Penning pseudo-processes (zero frequency: only their counts exist)
+    penning = np.asarray(ctx.process_kinds) == "penning"
+    events = (t["process_counts"].astype(float) if counted
+              else np.where(penning[None, :], t["process_counts"], t["expected_process_counts"]))
+    return _ratio(events, t["exposure_s"][:, None] * np.asarray(ctx.target_density_m3)[None, :])
 
 
-def rate_coefficients(t: SwarmTallies, ctx: EstimatorContext) -> dict[str, Estimate]:
-    """Rate coefficient per target molecule of every process [m³/s], keyed by ``ctx.process_keys``."""
-    value, error = jackknife(_rates(pooled(t), ctx), _rates(leave_one_out(t), ctx))
+def rate_coefficients(t: SwarmTallies, ctx: EstimatorContext, counted: bool = False) -> dict[str, Estimate]:
+    """Rate coefficient per target molecule of every process [m³/s], keyed by ``ctx.process_keys``.
+
+    Expected-value estimates (Σ ν_k(ε)/ν*(t) over trial events / (N_k ∫ n dt), Skullerud 1968) unless
+    ``counted``: the collisions that happened / (N_k ∫ n dt). Both are unbiased; for a process with a small share of
+    the collisions the expected value is far less noisy (every trial event in its energy range contributes, not only
+    the rare ones that select it). Penning pseudo-processes are counted in both.
+    """
+    value, error = jackknife(_rates(pooled(t), ctx, counted), _rates(leave_one_out(t), ctx, counted))
     return {key: Estimate(float(value[k]), float(error[k])) for k, key in enumerate(ctx.process_keys)}
 
 
 def _eedf(t: SwarmTallies, weight: np.ndarray) -> np.ndarray:
-    return _ratio(t["eedf_counts"], t["events"].astype(float)[:, None] * weight[None, :])
+    return _ratio(t["eedf_counts"], t["event_weights"][:, None] * weight[None, :])
 
 
 def energy_distribution(t: SwarmTallies, ctx: EstimatorContext) -> EnergyDistribution:
@@ -261,8 +275,8 @@ def energy_distribution(t: SwarmTallies, ctx: EstimatorContext) -> EnergyDistrib
     edges = np.asarray(ctx.energy_edges_eV, dtype=float)
     weight = (2.0 / 3.0) * (edges[1:] ** 1.5 - edges[:-1] ** 1.5)
     value, error = jackknife(_eedf(pooled(t), weight), _eedf(leave_one_out(t), weight))
-    events = float(t["events"].sum())
-    overflow = float(t["eedf_overflow"].sum()) / events if events > 0 else 0.0
+    weights = float(t["event_weights"].sum())  # every weighted trial event is in a bin or above the last one
+    overflow = max(weights - float(t["eedf_counts"].sum()), 0.0) / weights if weights > 0 else 0.0
     return EnergyDistribution(energy_edges_eV=edges, value=value, stderr=error, overflow_fraction=overflow)
 
 

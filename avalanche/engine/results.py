@@ -138,6 +138,9 @@ class SwarmResult:
         Rate coefficient per target molecule of every process [m³/s]; keys are the process labels, or
         "<species>:<label>" in a mixture of several species. Each is also an attribute under its quantity name
         ``rate_coefficient_<process>`` (:func:`avalanche.quantities.rate_name`), the name used in files.
+        Expected-value estimates (Skullerud 1968), see :mod:`avalanche.engine.estimators`.
+    rate_coefficients_counted : dict of str to Estimate
+        The same from the collisions that happened (same keys; DC runs), the check of the expected values.
     eedf : EnergyDistribution
     events : int
         Trial collision events simulated (real and null, including chunks that were redone).
@@ -203,6 +206,7 @@ class SwarmResult:
     regime: dict | None = None
     phase_tallies: object | None = None
     magnetic: dict | None = None
+    rate_coefficients_counted: dict = field(default_factory=dict)
     converged: bool = True
     convergence_notes: list = field(default_factory=list)
     stopped_by: str = ""

@@ -38,7 +38,7 @@ TRIAL_MARGIN = 1e-3
 THERMAL_MARGIN_SPEEDS = 8.0
 """At T > 0 the tables reach up to the relative energy ½ m_e (v_max + THERMAL_MARGIN_SPEEDS √(kT/M))², v_max the
 speed at the top of the electron grid: a Maxwellian target is faster than 8 √(kT/M) with probability ~1e-13."""
-COLD_GAS_GROUPS = (np.zeros(0), np.zeros(0, dtype=np.int64), np.zeros(0, dtype=np.int64), np.zeros(0),
+COLD_GAS_GROUPS = (np.zeros((0, 0)), np.zeros(0, dtype=np.int64), np.zeros(0, dtype=np.int64), np.zeros(0),
                    np.zeros((0, 0)))
 """The kernels' ``thermal_groups`` argument of a cold gas (no target group: targets at rest)."""
 EXTRAPOLATION_WARNING = 0.01
@@ -271,14 +271,64 @@ def near_equilibrium_energy_eV(table: ProcessTable, number_density_m3: float, re
     return energy
 
 
-def _expected_tables(table: ProcessTable, nu: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-    """The kernel's expected-value tables from the per-process frequencies ``nu`` (P, n_cells + 1) [s⁻¹]: the
-    summed direct-ionization and attachment frequencies per node, (n_cells + 1, 2), and their energy floors [eV]."""
-    ionizing = table.action == K.ACTION_IONIZATION
-    attaching = table.action == K.ACTION_ATTACHMENT
-    expected = np.ascontiguousarray(np.stack((nu[ionizing].sum(axis=0), nu[attaching].sum(axis=0)), axis=1))
-    floor = float(table.loss_eV[ionizing].min()) if ionizing.any() else 0.0
-    return expected, np.array([floor, 0.0])
+TRIAL_INTERVAL_RATIO = 1.3
+"""Energy-dependent trial frequency: an interval of grid cells grows while the largest bound of the collision
+frequency over its cells is within this factor of the smallest (see :func:`trial_intervals`)."""
+TRIAL_INTERVAL_MIN_CELLS = 8
+"""The narrowest interval, in grid cells (fewer edges to cross where the frequency changes fast)."""
+TRIAL_RATE_FLOOR = 1e-3
+"""No interval's trial frequency lies below this fraction of the largest (bounded event weights ν*/ν*_j)."""
+
+
+def trial_intervals(bound: np.ndarray, ratio: float = TRIAL_INTERVAL_RATIO,
+                    min_cells: int = TRIAL_INTERVAL_MIN_CELLS) -> np.ndarray:
+    """Split the grid cells into intervals of similar collision frequency: the first cell of each interval.
+
+    ``bound`` (n_cells,) is an upper bound of the collision frequency on each cell [s⁻¹]. Walking up the cells,
+    an interval ends before the cell that would make max/min of its bounds exceed ``ratio``, once it holds
+    ``min_cells`` cells. Its trial frequency is then the largest bound in it, so that the null events it wastes
+    are at most a fraction 1 − 1/ratio of its trial events where the frequency is as tabulated, while the
+    number of edges a flight crosses stays small (common practice: a piecewise-constant bound of ν(ε) over energy
+    intervals keeps the null-collision method exact, Skullerud 1968, with fewer null events).
+    """
+    starts = [0]
+    low = high = float(bound[0])
+    for c in range(1, bound.size):
+        b = float(bound[c])
+        new_low, new_high = min(low, b), max(high, b)
+        if c - starts[-1] >= min_cells and new_high > ratio * max(new_low, 0.0) and new_high > 0:
+            starts.append(c)
+            low = high = b
+        else:
+            low, high = new_low, new_high
+    return np.array(starts, dtype=np.int64)
+
+
+def _interval_tables(bound_groups: np.ndarray, starts: np.ndarray, n_cells: int, cell_eV: float, scale: float):
+    """From per-cell, per-group bounds ``bound_groups`` (n_cells, S) and the interval starts: the per-interval band
+    widths (J, S) (the groups' largest bound in the interval, times ``scale``, floored so that no interval's rate
+    falls below TRIAL_RATE_FLOOR of the largest), the edges in v² [m² s⁻²] and the interval of every cell."""
+    ends = np.append(starts[1:], n_cells)
+    bands = np.array([bound_groups[a:b].max(axis=0) for a, b in zip(starts, ends, strict=True)]) * scale
+    totals = bands.sum(axis=1)
+    floor = TRIAL_RATE_FLOOR * totals.max()
+    for j in np.flatnonzero(totals < floor):
+        bands[j] = bands[j] * (floor / totals[j]) if totals[j] > 0 else floor / bands.shape[1]
+    edges = np.append(starts * cell_eV, np.inf) / K.ENERGY_PER_SPEED2_eV
+    cell_interval = np.repeat(np.arange(starts.size, dtype=np.int64), ends - starts)
+    return np.ascontiguousarray(bands), edges, cell_interval
+
+
+def _threshold_cells(table: ProcessTable, n_cells: int, cell_eV: float):
+    """The kernel's ``expected`` tables: for every cell, the processes whose threshold lies inside it (the cell
+    [c Δε, (c + 1) Δε) with c Δε < threshold ≤ (c + 1) Δε), as (cell_start, entry_process, entry_threshold_eV)."""
+    loss = np.asarray(table.loss_eV, dtype=float)
+    picked = np.flatnonzero((loss > 0) & (loss < n_cells * cell_eV))
+    cells = np.ceil(loss[picked] / cell_eV).astype(np.int64) - 1
+    order = np.argsort(cells, kind="stable")
+    picked, cells = picked[order], cells[order]
+    cell_start = np.searchsorted(cells, np.arange(n_cells + 1)).astype(np.int64)
+    return cell_start, picked.astype(np.int64), loss[picked].astype(float)
 
 
 @dataclass(frozen=True, eq=False)
@@ -303,33 +353,44 @@ class EnergyGrid:
     nu_total: np.ndarray
     nu_cumulative: np.ndarray
     thermal_groups: tuple = COLD_GAS_GROUPS
-    expected_nu: np.ndarray = field(default_factory=lambda: np.zeros((0, 2)))
-    """(n_cells + 1, 2): total direct-ionization and attachment frequencies at the electron-grid nodes [s⁻¹], for
-    the kernel's expected-value tallies (see :func:`avalanche.kernels.advance_chunk`)."""
-    expected_floor_eV: np.ndarray = field(default_factory=lambda: np.zeros(2))
-    """(2,): the lowest ionization threshold [eV] (0 when there is none) and 0 (attachment)."""
+    nu_nodes: np.ndarray = field(default_factory=lambda: np.zeros((0, 0)))
+    """(n_cells + 1, P): every process's collision frequency at the electron-grid nodes [s⁻¹] (targets at rest), for
+    the expected-value estimates (:meth:`expected_counts`)."""
+    trial: tuple = ()
+    """The kernel's energy-dependent trial frequency (rates (J,) [s⁻¹], v² edges (J + 1,) [m² s⁻²], interval of
+    each cell (n_cells,)), see :func:`avalanche.kernels.advance_chunk`; :attr:`constant_trial` is the one-interval
+    form."""
+    interval_groups: tuple = COLD_GAS_GROUPS
+    """``thermal_groups`` with one row of band edges per trial-frequency interval (T > 0; cold gas: empty)."""
+    expected: tuple = ()
+    """The kernel's threshold cells (cell_start, entry_process, entry_threshold_eV), see :func:`_threshold_cells`."""
 
     @classmethod
     def build(cls, table: ProcessTable, energy_max_eV: float, n_cells: int) -> EnergyGrid:
         nodes = np.linspace(0.0, energy_max_eV, n_cells + 1)
+        cell_eV = energy_max_eV / n_cells
         groups = target_groups(table)
         if groups:
             margin_eV = K.ENERGY_PER_SPEED2_eV * (THERMAL_MARGIN_SPEEDS * max(g[2] for g in groups)) ** 2
-            cell_eV = energy_max_eV / n_cells
             extra = math.ceil(((math.sqrt(energy_max_eV) + math.sqrt(margin_eV)) ** 2 - energy_max_eV) / cell_eV) + 1
             nodes = np.concatenate((nodes, energy_max_eV + cell_eV * np.arange(1, extra + 1)))
         nu = table.frequencies(nodes)
         cumulative = np.ascontiguousarray(np.cumsum(nu, axis=0).T)
         total = np.ascontiguousarray(cumulative[:, -1])
-        expected_nu, expected_floor_eV = _expected_tables(table, nu[:, :n_cells + 1])
         peak = float(total.max())
         if not peak > 0:
             raise ConfigError("the mixture's collision frequency is zero on the whole energy grid; check the "
                               "cross sections (every process zero?)")
+        common = dict(energy_max_eV=float(energy_max_eV), n_cells=int(n_cells), nu_total=total,
+                      nu_cumulative=cumulative, nu_nodes=np.ascontiguousarray(nu[:, :n_cells + 1].T),
+                      expected=_threshold_cells(table, n_cells, cell_eV))
+        starts_of = trial_intervals
         if not groups:
-            return cls(energy_max_eV=float(energy_max_eV), n_cells=int(n_cells), nu_star=peak * (1.0 + TRIAL_MARGIN),
-                       nu_total=total, nu_cumulative=cumulative, expected_nu=expected_nu,
-                       expected_floor_eV=expected_floor_eV)
+            cell_bound = np.maximum(total[:n_cells], total[1:n_cells + 1])[:, None]
+            bands, edges, cell_interval = _interval_tables(cell_bound, starts_of(cell_bound[:, 0]), n_cells, cell_eV,
+                                                           1.0 + TRIAL_MARGIN)
+            rates = np.ascontiguousarray(bands[:, 0])
+            return cls(nu_star=float(rates.max()), trial=(rates, edges, cell_interval), **common)
         group_nu = np.array([nu[first:last].sum(axis=0) for first, last, _ in groups])
         bands = (1.0 + TRIAL_MARGIN) * group_nu.max(axis=1)
         upper = np.cumsum(bands)
@@ -339,12 +400,28 @@ class EnergyGrid:
         low = np.floor(np.maximum(root[:-1] - reach, 0.0) ** 2 / cell_eV).astype(np.int64)
         high = np.minimum(np.ceil((root[1:] + reach) ** 2 / cell_eV).astype(np.int64) + 1, nodes.size)
         local = np.minimum((1.0 + TRIAL_MARGIN) * np.array([window_max(v, low, high) for v in group_nu]).T, bands)
-        thermal_groups = (upper, np.array([g[0] for g in groups], dtype=np.int64),
-                          np.array([g[1] for g in groups], dtype=np.int64), np.array([g[2] for g in groups]),
-                          np.ascontiguousarray(local))
-        return cls(energy_max_eV=float(energy_max_eV), n_cells=int(n_cells), nu_star=float(upper[-1]),
-                   nu_total=total, nu_cumulative=cumulative, thermal_groups=thermal_groups, expected_nu=expected_nu,
-                   expected_floor_eV=expected_floor_eV)
+        rest = (np.array([g[0] for g in groups], dtype=np.int64), np.array([g[1] for g in groups], dtype=np.int64),
+                np.array([g[2] for g in groups]), np.ascontiguousarray(local))
+        interval_bands, edges, cell_interval = _interval_tables(local, starts_of(local.sum(axis=1)), n_cells,
+                                                                cell_eV, 1.0)
+        interval_upper = np.ascontiguousarray(np.cumsum(interval_bands, axis=1))
+        rates = np.ascontiguousarray(interval_upper[:, -1])
+        return cls(nu_star=float(upper[-1]), thermal_groups=(upper[None, :].copy(), *rest),
+                   trial=(rates, edges, cell_interval), interval_groups=(interval_upper, *rest), **common)
+
+    @property
+    def constant_trial(self) -> tuple:
+        """The kernel's ``trial`` argument of a constant trial frequency ν* (one interval)."""
+        return (np.array([self.nu_star]), np.array([0.0, np.inf]), np.zeros(self.n_cells, dtype=np.int64))
+
+    def expected_counts(self, node_time: np.ndarray, below_threshold: np.ndarray) -> np.ndarray:
+        """Expected collisions per replica and process (R, P) from the kernel's expected-value tallies:
+        Σ_c node_time[c] ν_k(ε_c) minus, in the cell of the threshold, the part below it (see
+        :func:`avalanche.kernels.advance_chunk`)."""
+        cell_start, entry_process, _ = self.expected
+        counts = np.empty((node_time.shape[0], self.nu_nodes.shape[1]))
+        K.expected_counts(node_time, below_threshold, self.nu_nodes, cell_start, entry_process, counts)
+        return counts
 
     @property
     def inv_cell_eV(self) -> float:

@@ -1,8 +1,9 @@
 """Raw per-replica sums of a swarm run, from which every estimate derives (:mod:`avalanche.engine.estimators`).
 
 A :class:`SwarmTallies` holds, for each independent replica, sums over the sampled chunks: counts, sums of the
-pre-collision state at trial events, collision counts per process, exposure ∫ n dt, the energy histogram, and
-the increments of the ensemble's position moments during chunks. Means and standard errors are derived, never
+pre-collision state at trial events (each weighted by ν*/ν*(t), 1 for a constant trial frequency), collision
+counts per process and their expected values, exposure ∫ n dt, the energy histogram, and the increments of the
+ensemble's position moments during chunks. Means and standard errors are derived, never
 stored, so the tallies of a continued run add up (:meth:`SwarmTallies.accumulate`), and independent runs with
 different seeds combine by stacking their replicas (:func:`combine`).
 """
@@ -20,9 +21,11 @@ from .magnetic import to_frame_tensors, to_frame_vectors
 # name: (dtype, trailing shape key, units, description). Shape keys: "" → (R,), "P" → (R, P), "B" → (R, B).
 FIELDS: dict[str, tuple[type, str, str, str]] = {
     "events": (np.int64, "", "1", "trial events (real and null) in sampled chunks"),
+    "event_weights": (np.float64, "", "1", "sum of nu*/nu*(t) over those trial events (their number for a constant "
+                      "trial frequency nu*): nu* times the electron-time they sample"),
     "real_collisions": (np.int64, "", "1", "real collisions in sampled chunks"),
-    "energy_sum_eV": (np.float64, "", "eV", "sum of the electron energy at trial events"),
-    "vz_sum": (np.float64, "", "m/s", "sum of v_z at trial events"),
+    "energy_sum_eV": (np.float64, "", "eV", "weighted sum of the electron energy at trial events"),
+    "vz_sum": (np.float64, "", "m/s", "weighted sum of v_z at trial events"),
     "exposure_s": (np.float64, "", "s", "electron-time exposure, integral of n dt (unweighted)"),
     "sampled_time_s": (np.float64, "", "s", "simulated time of the sampled chunks"),
     "created": (np.int64, "", "1", "electrons created by ionization"),
@@ -30,14 +33,16 @@ FIELDS: dict[str, tuple[type, str, str, str]] = {
     "eedf_overflow": (np.int64, "", "1", "trial events above the last energy bin"),
     "process_counts": (np.int64, "P", "1", "real collisions per process"),
     "extrapolated_counts": (np.int64, "P", "1", "real collisions beyond the process's table"),
-    "eedf_counts": (np.int64, "B", "1", "trial events per energy bin"),
-    "expected_ionizations": (np.float64, "", "1", "sum of nu_ion(eps)/nu* at trial events (expected ionizations)"),
-    "expected_attachments": (np.float64, "", "1", "sum of nu_att(eps)/nu* at trial events (expected attachments)"),
+    "eedf_counts": (np.float64, "B", "1", "weighted trial events per energy bin"),
+    "expected_process_counts": (np.float64, "P", "1", "sum of nu_k(eps)/nu*(t) over trial events: the expected "
+                                "collisions of each process"),
     "mature_events": (np.int64, "", "1", "trial events in chunks sampled for position moments"),
-    "mature_vz_sum": (np.float64, "", "m/s", "sum of v_z at those events"),
-    "mature_zvz_sum": (np.float64, "", "m2/s", "sum of (z - z_ref) v_z at those events"),
-    "mature_z_sum": (np.float64, "", "m", "sum of (z - z_ref) at those events"),
-    "mature_xyv_sum": (np.float64, "", "m2/s", "sum of (x - x_ref) v_x + (y - y_ref) v_y at those events"),
+    "mature_event_weights": (np.float64, "", "1", "sum of nu*/nu*(t) over those trial events"),
+    "mature_vz_sum": (np.float64, "", "m/s", "weighted sum of v_z at those events"),
+    "mature_zvz_sum": (np.float64, "", "m2/s", "weighted sum of (z - z_ref) v_z at those events"),
+    "mature_z_sum": (np.float64, "", "m", "weighted sum of (z - z_ref) at those events"),
+    "mature_xyv_sum": (np.float64, "", "m2/s", "weighted sum of (x - x_ref) v_x + (y - y_ref) v_y at those "
+                       "events"),
     "mature_time_s": (np.float64, "", "s", "simulated time of the chunks sampled for position moments"),
     "z_mean_increment_m": (np.float64, "", "m", "sum over those chunks of the change of <z> during the chunk"),
     "z_var_increment_m2": (np.float64, "", "m2", "sum of the change of var(z) during the chunk"),
@@ -96,10 +101,12 @@ class SwarmTallies:
         return self.arrays[name]
 
     def add_chunk(self, sums: np.ndarray, counts: np.ndarray, hist: np.ndarray, process_counts: np.ndarray,
-                  extrapolated: np.ndarray, duration_s: float) -> None:
-        """Add one sampled chunk's kernel outputs (see :func:`avalanche.kernels.advance_chunk`)."""
+                  extrapolated: np.ndarray, duration_s: float, expected_counts: np.ndarray) -> None:
+        """Add one sampled chunk's kernel outputs (see :func:`avalanche.kernels.advance_chunk`) and its expected
+        collisions per process (R, P) (:meth:`avalanche.engine.tables.EnergyGrid.expected_counts`)."""
         a = self.arrays
         a["events"] += counts[:, K.COUNT_EVENTS]
+        a["event_weights"] += sums[:, K.SUM_WEIGHTS]
         a["real_collisions"] += counts[:, K.COUNT_REAL]
         a["created"] += counts[:, K.COUNT_CREATED]
         a["removed"] += counts[:, K.COUNT_REMOVED]
@@ -107,8 +114,7 @@ class SwarmTallies:
         a["energy_sum_eV"] += sums[:, K.SUM_ENERGY]
         a["vz_sum"] += sums[:, K.SUM_VZ]
         a["exposure_s"] += sums[:, K.SUM_EXPOSURE]
-        a["expected_ionizations"] += sums[:, K.SUM_EXPECTED_IONIZATIONS]
-        a["expected_attachments"] += sums[:, K.SUM_EXPECTED_ATTACHMENTS]
+        a["expected_process_counts"] += expected_counts
         a["sampled_time_s"] += duration_s
         a["process_counts"] += process_counts
         a["extrapolated_counts"] += extrapolated
@@ -128,6 +134,7 @@ class SwarmTallies:
         """
         a = self.arrays
         a["mature_events"] += counts[:, K.COUNT_EVENTS]
+        a["mature_event_weights"] += sums[:, K.SUM_WEIGHTS]
         a["mature_vz_sum"] += sums[:, K.SUM_VZ]
         a["mature_zvz_sum"] += sums[:, K.SUM_ZVZ]
         a["mature_z_sum"] += sums[:, K.SUM_Z]

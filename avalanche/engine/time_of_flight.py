@@ -137,9 +137,14 @@ class Settings:
     ac_method: str = "auto"
     precision_targets: tuple = ()
     relaxation_pilot: bool = True
+    trial_frequency: str = "piecewise"
 
 
 AC_METHODS = ("auto", "exact", "quasi-static")
+TRIAL_FREQUENCIES = ("piecewise", "constant")
+"""``trial_frequency`` of :func:`swarm`: "piecewise" bounds the collision frequency by a constant over each of a
+few energy intervals (DC fields without B; :func:`avalanche.engine.tables.trial_intervals`), "constant" by one
+constant over all energies (always so with AC drives and magnetic fields)."""
 """``ac_method`` of :func:`swarm`: "auto" computes the cycle from DC points when the drive is quasi-static
 (:mod:`avalanche.engine.quasistatic`) and tracks it exactly otherwise; "exact" always tracks; "quasi-static" always
 uses DC points."""
@@ -157,7 +162,7 @@ def make_settings(*, seed=0, precision=0.01, electrons=16384, max_events=1_000_0
                   scattering="isotropic", replicas=16, precision_on="auto", energy_cells=8192, energy_max_eV=None,
                   energy_limit_eV=1e5, initial_energy_eV=1.0, events_per_chunk=48.0, population_bounds=(0.6, 1.5),
                   eedf_bins=200, diffusion_skip=4.0, diffusion_segment=3.0, max_wall_seconds=None,
-                  ac_method="auto", relaxation_pilot=True) -> Settings:
+                  ac_method="auto", relaxation_pilot=True, trial_frequency="piecewise") -> Settings:
     """Validate the keyword arguments of :func:`swarm`; raise :class:`ConfigError` naming the bad one."""
     replicas = _positive("replicas", replicas, integer=True)
     if replicas < 2:
@@ -197,7 +202,8 @@ def make_settings(*, seed=0, precision=0.01, electrons=16384, max_events=1_000_0
         diffusion_skip=_positive("diffusion_skip", diffusion_skip),
         diffusion_segment=_positive("diffusion_segment", diffusion_segment),
         max_wall_seconds=_positive("max_wall_seconds", max_wall_seconds, allow_none=True),
-        ac_method=_choice("ac_method", ac_method, AC_METHODS), relaxation_pilot=bool(relaxation_pilot))
+        ac_method=_choice("ac_method", ac_method, AC_METHODS), relaxation_pilot=bool(relaxation_pilot),
+        trial_frequency=_choice("trial_frequency", trial_frequency, TRIAL_FREQUENCIES))
 
 
 # ------------------------------------------------------------------------------------------------ the run
@@ -209,6 +215,9 @@ class _ChunkOutput:
     hist: np.ndarray
     process_counts: np.ndarray
     extrapolated: np.ndarray
+    node_time: np.ndarray
+    below_threshold: np.ndarray
+    expected_counts: np.ndarray | None = None  # (R, P), from the two above after the chunk
 
 
 def ensure_compiled() -> None:
@@ -220,11 +229,13 @@ def ensure_compiled() -> None:
                     1.0, 1, 1.0, np.ones(2), np.ones((2, 1)), np.zeros(1, dtype=np.int64), np.zeros(1),
                     np.zeros(1), np.ones(1), np.zeros(1), np.zeros(1, dtype=np.int64), np.zeros(1, dtype=np.int64),
                     np.zeros(1), np.full(1, np.inf), np.zeros((1, 3)), True, 1.0, np.zeros((1, K.N_SUMS)),
-                    np.zeros((1, K.N_COUNTS), dtype=np.int64), i2.copy(), i2.copy(), i2.copy(), np.zeros(1),
+                    np.zeros((1, K.N_COUNTS), dtype=np.int64), z2.copy(), i2.copy(), i2.copy(), np.zeros(1),
                     np.zeros(1), np.full(1, -1, dtype=np.int64), 0.0, *(np.zeros(0),) * 4,
                     np.zeros((1, 0, K.N_PHASE_SUMS)),
                     np.zeros((1, 0, K.N_PHASE_COUNTS), dtype=np.int64), np.zeros((1, 0, 1), dtype=np.int64),
-                    COLD_GAS_GROUPS, np.zeros(3), np.zeros((2, 2)), np.zeros(2))
+                    COLD_GAS_GROUPS, np.zeros(3), (np.ones(1), np.array([0.0, np.inf]), np.zeros(1, dtype=np.int64)),
+                    (np.zeros(2, dtype=np.int64), np.zeros(0, dtype=np.int64), np.zeros(0)), np.zeros((1, 2)),
+                    np.zeros((1, 1, 2)))
 
 
 class _Run:
@@ -257,8 +268,13 @@ class _Run:
         self.grid = EnergyGrid.build(self.table, start, settings.energy_cells)
         R, P, B = settings.replicas, len(self.table.processes), settings.eedf_bins
         self.out = _ChunkOutput(np.zeros((R, K.N_SUMS)), np.zeros((R, K.N_COUNTS), dtype=np.int64),
-                                np.zeros((R, B), dtype=np.int64), np.zeros((R, P), dtype=np.int64),
-                                np.zeros((R, P), dtype=np.int64))
+                                np.zeros((R, B)), np.zeros((R, P), dtype=np.int64),
+                                np.zeros((R, P), dtype=np.int64), np.zeros((R, settings.energy_cells + 1)),
+                                np.zeros((R, P, 2)))
+        # a piecewise-constant trial frequency over energy intervals in a DC field without B (the kernel solves the
+        # flight's exit from an interval in closed form only there); constant otherwise
+        self.variable_trial = drive is None and magnetic is None and settings.trial_frequency == "piecewise"
+        self.trial_rate = None  # trial events per electron-second of the last chunk (variable trial frequency)
         self.eedf_max_eV = self.grid.energy_max_eV
         self.events = 0
         self.chunk_scale = 1.0  # chunks this many times longer while the ensemble is below its target (pilot)
@@ -281,13 +297,16 @@ class _Run:
                             o.sums, o.counts, o.hist, o.process_counts, o.extrapolated, t.penning_probability,
                             t.penning_energy_eV, t.penning_slot, self.period_s, *self.wave, self.phase_out.sums,
                             self.phase_out.counts,
-                            self.phase_out.process, g.thermal_groups, self.magnetic_kernel, g.expected_nu,
-                            g.expected_floor_eV)
+                            self.phase_out.process, *self.trial_arguments(), o.node_time, o.below_threshold)
             self.events += int(o.counts[:, K.COUNT_EVENTS].sum())
             self.anomalies["frequency_above_bound"] += int(o.counts[:, K.COUNT_ABOVE_BOUND].sum())
             above = bool(o.counts[:, K.COUNT_ABOVE_GRID].any())
             full = bool(o.counts[:, K.COUNT_OVERFLOW].any())
             if not (above or full):
+                o.expected_counts = g.expected_counts(o.node_time, o.below_threshold)
+                exposure = float(o.sums[:, K.SUM_EXPOSURE].sum())
+                if self.variable_trial and exposure > 0:
+                    self.trial_rate = float(o.counts[:, K.COUNT_EVENTS].sum()) / exposure
                 return o, t1
             self.ens.restore(saved)
             self.anomalies["redone_chunks"] += 1
@@ -301,6 +320,13 @@ class _Run:
                 t1 = t0 + 0.5 * (t1 - t0)
                 self.anomalies["shortened_chunks"] += 1
 
+    def trial_arguments(self) -> tuple:
+        """The kernel's (thermal_groups, magnetic, trial, expected) arguments of this run's grid."""
+        g = self.grid
+        if self.variable_trial:
+            return g.interval_groups, self.magnetic_kernel, g.trial, g.expected
+        return g.thermal_groups, self.magnetic_kernel, g.constant_trial, g.expected
+
     def resize_grid(self, energy_max_eV: float) -> None:
         if energy_max_eV > self.settings.energy_limit_eV:
             raise AvalancheError(
@@ -310,7 +336,7 @@ class _Run:
         self.grid = EnergyGrid.build(self.table, energy_max_eV, self.settings.energy_cells)
 
     def chunk_duration(self, nu_eff: float) -> float:
-        dt = self.settings.events_per_chunk * self.chunk_scale / self.grid.nu_star
+        dt = self.settings.events_per_chunk * self.chunk_scale / (self.trial_rate or self.grid.nu_star)
         if nu_eff != 0.0 and math.isfinite(nu_eff):
             dt = min(dt, GROWTH_PER_CHUNK / abs(nu_eff))
         return dt
@@ -353,7 +379,7 @@ def _stationary(series: _Series, now: float) -> tuple[bool, float, float, float]
         return False, math.nan, math.nan, math.nan
     ok = True
     values = {}
-    for num, den in (("energy_sum", "events"), ("real", "exposure"), ("vz_sum", "events")):
+    for num, den in (("energy_sum", "weights"), ("real", "exposure"), ("vz_sum", "weights")):
         n, d = series.array(num), series.array(den)
         qa = n[a].sum(axis=0) / d[a].sum(axis=0)
         qb = n[b].sum(axis=0) / d[b].sum(axis=0)
@@ -444,7 +470,11 @@ def swarm(mixture: Mixture | str, reduced_field_Td: float, magnetic_field_T: flo
         quasi-static regime the AC cycle is computed from DC points, :mod:`avalanche.engine.quasistatic`; "exact"
         tracks every period; "quasi-static" always uses DC points), relaxation_pilot (True: a DC run that has not
         relaxed after 20 % of max_events thins every replica to 16 electrons, relaxes them and clones them back to
-        the ensemble the remaining budget affords, see :func:`_pilot_check`; False: the full ensemble relaxes).
+        the ensemble the remaining budget affords, see :func:`_pilot_check`; False: the full ensemble relaxes),
+        trial_frequency ("piecewise": in a DC field without B the null-collision trial frequency is a constant bound
+        of the collision frequency over each of a few energy intervals, which wastes far fewer null events in real
+        gases; "constant": one bound over all energies, Skullerud 1968; AC drives and magnetic fields always use
+        it).
 
     Returns
     -------
@@ -539,9 +569,10 @@ def _recent_rates(series: _Series, chunks: int) -> tuple[float, float, float, fl
     """Pooled over the replicas and the last ``chunks`` chunks: (mean energy [eV], flux drift velocity [m/s], real
     collision frequency [s⁻¹], trial events per electron-second [s⁻¹])."""
     events = series.array("events")[-chunks:].sum()
+    weights = series.array("weights")[-chunks:].sum()
     exposure = series.array("exposure")[-chunks:].sum()
-    return (float(series.array("energy_sum")[-chunks:].sum() / events),
-            float(series.array("vz_sum")[-chunks:].sum() / events),
+    return (float(series.array("energy_sum")[-chunks:].sum() / weights),
+            float(series.array("vz_sum")[-chunks:].sum() / weights),
             float(series.array("real")[-chunks:].sum() / exposure), float(events / exposure))
 
 
@@ -666,7 +697,8 @@ def _simulate(run: _Run, reduced_field_Td: float, progress=None) -> SwarmResult:
         nu_eff = net / exposure.sum() if exposure.sum() > 0 else 0.0
         series.add(time_s=t, duration_s=dt, electrons=ens.count.sum(), sampling=float(sampling),
                    energy_max_eV=run.grid.energy_max_eV, log_weight=ens.log_weight.mean(),
-                   events=counts[:, K.COUNT_EVENTS], energy_sum=sums[:, K.SUM_ENERGY], vz_sum=sums[:, K.SUM_VZ],
+                   events=counts[:, K.COUNT_EVENTS], weights=sums[:, K.SUM_WEIGHTS], energy_sum=sums[:, K.SUM_ENERGY],
+                   vz_sum=sums[:, K.SUM_VZ],
                    real=counts[:, K.COUNT_REAL], exposure=exposure, max_energy=sums[:, K.SUM_MAX_ENERGY],
                    net_production=np.full(s.replicas, net / s.replicas))
         boundary = drive is None or drive.at_boundary(t)
@@ -720,7 +752,7 @@ def _simulate(run: _Run, reduced_field_Td: float, progress=None) -> SwarmResult:
                 progress({"stage": "relaxing", "events": run.events, "max_events": s.max_events,
                           "elapsed_s": time.perf_counter() - started})
         else:
-            tallies.add_chunk(sums, counts, out.hist, out.process_counts, out.extrapolated, dt)
+            tallies.add_chunk(sums, counts, out.hist, out.process_counts, out.extrapolated, dt, out.expected_counts)
             if drive is not None:
                 phase_tallies.add(run.phase_out)
             if t_start + slack >= mature_from:
@@ -771,7 +803,7 @@ def _simulate(run: _Run, reduced_field_Td: float, progress=None) -> SwarmResult:
         ac.finish(result, drive, _phase_estimates(run, phase_tallies), phase_tallies, run.table.target_density_m3,
                   run.table.scatter == K.SCATTER_SCREENED_COULOMB, run.kT_eV)
     sampled = series.array("sampling") > 0
-    energy = series.array("energy_sum")[sampled] / series.array("events")[sampled] if drive is None else None
+    energy = series.array("energy_sum")[sampled] / series.array("weights")[sampled] if drive is None else None
     result.converged, result.convergence_notes = assess_convergence(result, energy)
     return result
 
@@ -825,10 +857,10 @@ def _result(run: _Run, reduced_field_Td: float, tallies: SwarmTallies, series: _
     if tallies["mature_events"].sum() == 0:
         warnings.warn(f"E/N = {reduced_field_Td:g} Td: no chunk was sampled for position moments (bulk drift, "
                       "diffusion, Townsend coefficients are NaN); raise max_events", PhysicsWarning, stacklevel=3)
-    events = series.array("events")
+    weights = series.array("weights")
     pooled = {
-        "mean_energy_eV": series.array("energy_sum").sum(axis=1) / events.sum(axis=1),
-        "drift_velocity_flux": series.array("vz_sum").sum(axis=1) / events.sum(axis=1),
+        "mean_energy_eV": series.array("energy_sum").sum(axis=1) / weights.sum(axis=1),
+        "drift_velocity_flux": series.array("vz_sum").sum(axis=1) / weights.sum(axis=1),
         "collision_frequency": series.array("real").sum(axis=1) / series.array("exposure").sum(axis=1),
         "net_production_frequency": (series.array("net_production").sum(axis=1)
                                      / series.array("exposure").sum(axis=1)),
@@ -851,6 +883,7 @@ def _result(run: _Run, reduced_field_Td: float, tallies: SwarmTallies, series: _
     return SwarmResult(
         reduced_field_Td=float(reduced_field_Td), estimates=estimates,
         rate_coefficients=rate_coefficients(tallies, ctx),
+        rate_coefficients_counted=rate_coefficients(tallies, ctx, counted=True),
         eedf=energy_distribution(tallies, ctx), events=int(run.events), cpu_seconds=0.0, wall_seconds=0.0,
         stop_reason=stop_reason, relaxation_time_s=float(relaxation_time),
         sampled_time_s=float(tallies["sampled_time_s"][0]), extrapolated_fraction=extrapolated_fraction(tallies),

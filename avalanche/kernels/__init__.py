@@ -15,6 +15,7 @@ from .flight import (  # noqa: F401
     field_frame_flight,
     gyration_coefficients,
     instantaneous_accel,
+    interval_exit,
     jerk_coefficients,
     magnetic_field_flight,
     magnetic_flight,
@@ -23,4 +24,4 @@ from .flight import (  # noqa: F401
     table_flight,
 )
 from .jit import JIT_OPTIONS, jit, jit_parallel  # noqa: F401
-from .time_of_flight import advance_chunk  # noqa: F401
+from .time_of_flight import advance_chunk, expected_counts  # noqa: F401

@@ -53,7 +53,8 @@ SHARING_EQUAL = 0
 SHARING_UNIFORM = 1
 SHARING_OPB = 2
 
-# Columns of the per-replica float tallies of one chunk (sums over trial events unless noted).
+# Columns of the per-replica float tallies of one chunk (sums over trial events, each weighted by ν*/ν*(t), unless
+# noted; the weight is 1 for a constant trial frequency).
 SUM_ENERGY = 0          # Σ ε [eV]
 SUM_VZ = 1              # Σ v_z [m/s]
 SUM_ZVZ = 2             # Σ (z − z_ref) v_z [m²/s]
@@ -74,10 +75,8 @@ SUM_YVY = 15            # Σ (y − y_ref) v_y [m²/s]
 SUM_YVZ = 16            # Σ (y − y_ref) v_z [m²/s]
 SUM_ZVX = 17            # Σ (z − z_ref) v_x [m²/s]
 SUM_ZVY = 18            # Σ (z − z_ref) v_y [m²/s]
-# Expected-value tallies (Skullerud 1968): Σ ν(ε)/ν* over trial events estimates the expected number of events.
-SUM_EXPECTED_IONIZATIONS = 19   # Σ ν_ion(ε)/ν* (direct ionization, all ionization processes) [1]
-SUM_EXPECTED_ATTACHMENTS = 20   # Σ ν_att(ε)/ν* [1]
-N_SUMS = 21
+SUM_WEIGHTS = 19        # Σ ν*/ν*(t) over trial events (their count for a constant trial frequency) [1]
+N_SUMS = 20
 SUM_VELOCITY = (SUM_VX, SUM_VY, SUM_VZ)
 """Columns of Σ (v_x, v_y, v_z)."""
 SUM_POSITION = (SUM_X, SUM_Y, SUM_Z)
@@ -277,7 +276,8 @@ def select_process(level, c, f, nu_cumulative, n_proc):
 
 
 @jit
-def thermal_trial(level, ux, uy, uz, electron_cell, inv_cell_eV, nu_cumulative, thermal_groups, s0, s1, s2, s3):
+def thermal_trial(level, ux, uy, uz, electron_cell, inv_cell_eV, nu_cumulative, thermal_groups, interval,
+                  s0, s1, s2, s3):
     """One trial event of an electron of velocity (ux, uy, uz) [m/s] in a gas of Maxwellian targets.
 
     The trial frequency is split into one band per target group (the processes of one species, rows
@@ -308,10 +308,13 @@ def thermal_trial(level, ux, uy, uz, electron_cell, inv_cell_eV, nu_cumulative, 
         Cumulative process frequencies at the nodes [s⁻¹] (extended above the electron grid by the thermal
         margin).
     thermal_groups : tuple of ndarray
-        (upper, first, last, thermal_speed, local), the first four of shape (S,): cumulative band edges
-        Σ_{j≤s} ν*_j [s⁻¹] (the last is ν*), the first and one-past-last process row of each group, its thermal
-        speed √(kT/M) [m/s]; ``local`` (n_cells, S): per electron cell the bound of ν_s over the reachable
-        relative energies [s⁻¹] (≤ the band).
+        (upper, first, last, thermal_speed, local): ``upper`` (J, S), per trial-frequency interval (see
+        :func:`avalanche.kernels.advance_chunk`; J = 1 for a constant trial frequency) the cumulative band edges
+        Σ_{j≤s} ν*_j [s⁻¹] (the last is that interval's ν*); of shape (S,) the first and one-past-last process row
+        of each group and its thermal speed √(kT/M) [m/s]; ``local`` (n_cells, S): per electron cell the bound of
+        ν_s over the reachable relative energies [s⁻¹] (≤ the band of every interval holding the cell).
+    interval : int
+        Row of ``upper`` in force (the electron's trial-frequency interval; 0 for a constant trial frequency).
     s0, s1, s2, s3 : uint64
         Generator state.
 
@@ -330,7 +333,8 @@ def thermal_trial(level, ux, uy, uz, electron_cell, inv_cell_eV, nu_cumulative, 
     event; from memory). Lewis P A W & Shedler G S (1979) Nav. Res. Logist. Q. 26 403 (superposition and thinning
     of Poisson processes; from memory).
     """
-    upper, group_first, group_last, group_thermal_speed, local = thermal_groups
+    edges, group_first, group_last, group_thermal_speed, local = thermal_groups
+    upper = edges[interval]
     s = 0
     while s < upper.shape[0] - 1 and level >= upper[s]:
         s += 1
@@ -458,9 +462,10 @@ def scatter_moving_target(kind, k, ux, uy, uz, tx, ty, tz, energy_rel_eV, action
 
 @jit
 def trial_event(level, energy_eV, e_cell, ux, uy, uz, inv_cell_eV, nu_star, nu_total, nu_cumulative, thermal_groups,
-                s0, s1, s2, s3):
+                interval, s0, s1, s2, s3):
     """One trial event of the null-collision method at ``level`` = u ν* [s⁻¹] for an electron of energy
-    ``energy_eV`` (grid coordinate ``e_cell`` = ε/Δε < n_cells) and velocity (ux, uy, uz) [m/s].
+    ``energy_eV`` (grid coordinate ``e_cell`` = ε/Δε < n_cells) and velocity (ux, uy, uz) [m/s]; ``nu_star`` is
+    the trial frequency in force and ``interval`` its row of the thermal band edges (0 for a constant one).
 
     Cold gas (``thermal_groups`` empty): the total frequency interpolated at ε decides real or null and the
     process is selected at ε (Skullerud 1968), targets at rest. Gas at T > 0: :func:`thermal_trial`. Returns
@@ -469,7 +474,7 @@ def trial_event(level, energy_eV, e_cell, ux, uy, uz, inv_cell_eV, nu_star, nu_t
     its bound, and the generator state.
     """
     if thermal_groups[0].shape[0] > 0:
-        return thermal_trial(level, ux, uy, uz, int(e_cell), inv_cell_eV, nu_cumulative, thermal_groups,
+        return thermal_trial(level, ux, uy, uz, int(e_cell), inv_cell_eV, nu_cumulative, thermal_groups, interval,
                              s0, s1, s2, s3)
     c = int(e_cell)
     f = e_cell - c

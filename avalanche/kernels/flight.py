@@ -65,6 +65,26 @@ GYRATION_SERIES_LIMIT = 0.25
 
 
 @jit
+def interval_exit(vperp2, uz, accel, low2, high2):
+    """When an electron in a uniform field leaves the energy interval v² ∈ [low2, high2) [m² s⁻²] it is in.
+
+    Motion with constant acceleration ``accel`` [m s⁻²] along +z: v²(t) = vperp2 + (uz + a t)², a parabola in t
+    with its minimum vperp2 at t = −uz/a. Moving down (uz < 0) the electron leaves through the lower edge at
+    uz + a t = −√(low2 − vperp2) if the minimum lies below it; otherwise it leaves through the upper edge at
+    uz + a t = +√(high2 − vperp2). Returns (t [s] ≥ 0, −1 or +1 for the lower or upper edge); (+inf, 0) when
+    a ≤ 0 (no field: the energy stays constant in flight). ``high2`` may be +inf (the top interval).
+    """
+    if accel <= 0.0:
+        return math.inf, 0
+    if uz < 0.0 and low2 > vperp2:
+        root = math.sqrt(low2 - vperp2)
+        if uz < -root:
+            return (-root - uz) / accel, -1
+    root = math.sqrt(max(high2 - vperp2, 0.0))
+    return max((root - uz) / accel, 0.0), 1
+
+
+@jit
 def sine_flight(tau, accel_dc, accel_ac, omega, cos0, sin0):
     """:func:`field_flight` for a sinusoidal field, from cos θ₀, sin θ₀ of the flight's start (θ = ω t + φ).
 

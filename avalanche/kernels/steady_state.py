@@ -200,7 +200,7 @@ def _pass_replica(r, z, vx, vy, vz, count, bank_vx, bank_vy, bank_vz, bank_count
             level = u * nu_star
             # T > 0: a Maxwellian target drawn for this event, frequencies at the relative energy (trial_event)
             k, tx, ty, tz, collision_energy, above, s0, s1, s2, s3 = trial_event(
-                level, energy, e_cell, ux, uy, uz, inv_cell_eV, nu_star, nu_total, nu_cumulative, thermal_groups,
+                level, energy, e_cell, ux, uy, uz, inv_cell_eV, nu_star, nu_total, nu_cumulative, thermal_groups, 0,
                 s0, s1, s2, s3)
             counts[r, COUNT_ABOVE_BOUND] += above
             if k < 0:

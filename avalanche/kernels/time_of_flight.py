@@ -33,13 +33,12 @@ from .collisions import (
     PHASE_REMOVED,
     PHASE_VZ,
     SUM_ENERGY,
-    SUM_EXPECTED_ATTACHMENTS,
-    SUM_EXPECTED_IONIZATIONS,
     SUM_EXPOSURE,
     SUM_MAX_ENERGY,
     SUM_VX,
     SUM_VY,
     SUM_VZ,
+    SUM_WEIGHTS,
     SUM_X,
     SUM_XVX,
     SUM_XVY,
@@ -62,6 +61,7 @@ from .flight import (
     field_flight,
     field_frame_flight,
     instantaneous_accel,
+    interval_exit,
     magnetic_field_flight,
     phase_bin,
     sine_flight,
@@ -83,13 +83,46 @@ def _store(x, y, z, vx, vy, vz, r, i, px, py, pz, ux, uy, uz):
 
 
 @jit
+def _to_frame(a_x, a_z, bx, bz):
+    """(ê₁, b̂) components of a vector with laboratory components (a_x, a_z) (B = |B| (b_x, 0, b_z); ê₂ = ŷ)."""
+    return bz * a_x - bx * a_z, bx * a_x + bz * a_z
+
+
+@jit
+def _from_frame(a_1, a_par, bx, bz):
+    """Laboratory (x, z) components of a vector with frame components (a₁, a∥): the inverse of :func:`_to_frame`."""
+    return bz * a_1 + bx * a_par, bz * a_par - bx * a_1
+
+
+@jit
+def _store_from_frame(x, y, z, vx, vy, vz, r, i, p1, p2, p_par, u1, u2, u_par, bx, bz):
+    """:func:`_store` of an electron whose coordinates are in the frame of B."""
+    px, pz = _from_frame(p1, p_par, bx, bz)
+    ux, uz = _from_frame(u1, u_par, bx, bz)
+    _store(x, y, z, vx, vy, vz, r, i, px, p2, pz, ux, u2, uz)
+
+
+@jit
+def _moments_from_frame(m11, m12, m1p, m21, m22, m2p, mp1, mp2, mpp, bx, bz):
+    """The moments Σ r_i v_j in the laboratory, R M Rᵀ, from those in the frame (rows, columns ê₁, ê₂, b̂)."""
+    # columns first (v_j), then rows (r_i)
+    c11, c1p = _from_frame(m11, m1p, bx, bz)
+    cp1, cpp = _from_frame(mp1, mpp, bx, bz)
+    c21, c2p = _from_frame(m21, m2p, bx, bz)
+    xx, zx = _from_frame(c11, cp1, bx, bz)
+    xz, zz = _from_frame(c1p, cpp, bx, bz)
+    xy, zy = _from_frame(m12, mp2, bx, bz)
+    return xx, xy, xz, c21, m22, c2p, zx, zy, zz
+
+
+@jit
 def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc, accel_ac, omega, phase,
                      inv_cell_eV, n_cells, nu_star, nu_total, nu_cumulative, action, loss_eV, electron_fraction,
                      target_fraction, thermal_speed, scatter, sharing, w_eV, table_max_eV, reference,
                      tally_positions, hist_inv_width_eV, sums, counts, hist, process_counts, extrapolated,
                      penning_probability, penning_energy_eV, penning_slot, period_s, wave_time, wave_accel,
-                     wave_F, wave_G, phase_sums, phase_counts, phase_process, thermal_groups, magnetic, expected_nu,
-                     expected_floor_eV):
+                     wave_F, wave_G, phase_sums, phase_counts, phase_process, thermal_groups, magnetic, trial,
+                     expected, node_time, below_threshold):
     s0 = rng[r, 0]
     s1 = rng[r, 1]
     s2 = rng[r, 2]
@@ -102,6 +135,14 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
     for k in range(n_proc):
         process_counts[r, k] = 0
         extrapolated[r, k] = 0
+        below_threshold[r, k, 0] = 0.0
+        below_threshold[r, k, 1] = 0.0
+    for c in range(node_time.shape[1]):
+        node_time[r, c] = 0.0
+    # -- trial frequency: constant (one interval) or piecewise constant over energy intervals (DC without B) --
+    trial_rates, speed2_edges, cell_interval = trial
+    variable = trial_rates.shape[0] > 1
+    cell_start, entry_process, entry_threshold_eV = expected
     # -- AC block: phase-resolved tallies (period_s > 0 only) --
     ac = period_s > 0.0
     table = wave_time.shape[0] > 0
@@ -123,10 +164,11 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
     has_b = omega_c > 0.0
     a_par = accel_dc * bz  # the electric acceleration in the frame of B (a₁, 0, a∥), see field_frame_flight
     a_1 = -accel_dc * bx
-    v_par = 0.0
-    w_1 = 0.0
-    w_2 = 0.0
-    in_frame = False  # whether (w_1, w_2, v_par) hold the electron's velocity (set again after every collision)
+    # DC with B: every electron lives in the frame (ê₁, ê₂, b̂) of B, its coordinates held in the x, y, z variables
+    # (x ← ê₁, y ← ê₂, z ← b̂) from its start to its store; collisions are the same in any frame (isotropic targets
+    # and scattering about the incident direction), so no conversion happens per flight, and the sums, taken in the
+    # frame, are rotated to the laboratory once, at the end
+    frame = has_b and not ac
     sum_vx = 0.0
     sum_vy = 0.0
     sum_x = 0.0
@@ -139,18 +181,18 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
     sum_yvz = 0.0
     sum_zvx = 0.0
     sum_zvy = 0.0
-    sum_expected_ion = 0.0
-    sum_expected_att = 0.0
-    expected_rows = expected_nu.shape[0]
     # -- end magnetic block --
     x_ref = reference[r, 0]
     y_ref = reference[r, 1]
     z_ref = reference[r, 2]
+    if frame:
+        x_ref, z_ref = _to_frame(x_ref, z_ref, bx, bz)
     sum_energy = 0.0
     sum_vz = 0.0
     sum_zvz = 0.0
     sum_z = 0.0
     sum_xyv = 0.0
+    sum_weights = 0.0
     exposure = 0.0
     max_energy = 0.0
     events = 0
@@ -161,6 +203,11 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
     above_bound = 0
     status = 0  # 0: fine, 1: above the energy grid, 2: particle store full
     inv_nu_star = 1.0 / nu_star
+    rate = nu_star
+    inv_rate = inv_nu_star
+    weight = 1.0
+    interval = 0
+    depth = 0.0
     thermal = thermal_groups[0].shape[0] > 0  # T > 0: collisions sampled at the relative speed (thermal_trial)
     action_args = (loss_eV, electron_fraction, target_fraction, thermal_speed, scatter, sharing, w_eV,
                    penning_probability, penning_energy_eV)
@@ -176,18 +223,37 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
         uy = vy[r, i]
         uz = vz[r, i]
         t = t0 if i < n_initial else birth[r, i]
+        if frame:
+            px, pz = _to_frame(px, pz, bx, bz)
+            ux, uz = _to_frame(ux, uz, bx, bz)
         vperp2 = ux * ux + uy * uy  # v_x² + v_y² changes only in collisions
-        in_frame = False
         alive = True
         if sine:  # AC: cos, sin of the drive's phase at the electron's start, then carried from flight to flight
             cos_theta = math.cos(omega * t + phase)
             sin_theta = math.sin(omega * t + phase)
+        if variable:
+            interval = cell_interval[min(int(ENERGY_PER_SPEED2_eV * (vperp2 + uz * uz) * inv_cell_eV), n_cells - 1)]
+            rate = trial_rates[interval]
+            inv_rate = 1.0 / rate
+            weight = nu_star * inv_rate
+        draw = True
         while True:
-            u, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
-            tau = -math.log(1.0 - u) * inv_nu_star
+            if draw:  # the flight's optical depth at unit rate: exponential (Poisson trial events)
+                u, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
+                depth = -math.log(1.0 - u)
+            draw = True
+            tau = depth * inv_rate
+            step = 0
+            if variable:  # the flight ends early where the electron leaves its interval (no event there)
+                t_exit, exit_step = interval_exit(vperp2, uz, accel_dc, speed2_edges[interval],
+                                                  speed2_edges[interval + 1])
+                if t_exit < tau:
+                    tau = t_exit
+                    step = exit_step
             last = t + tau >= t1
             if last:
                 tau = t1 - t
+                step = 0
             if has_b:  # magnetic: exact gyration (AC drives: tangent field over the flight, see the function)
                 if ac:
                     ux, uy, uz, dx, dy, dz = magnetic_field_flight(t, tau, ux, uy, uz, accel_dc, accel_ac, omega,
@@ -196,19 +262,11 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
                     px += dx
                     py += dy
                     pz += dz
-                else:  # DC: the velocity stays in the frame of B between collisions
-                    if not in_frame:
-                        v_par = bx * ux + bz * uz
-                        w_1 = bz * ux - bx * uz
-                        w_2 = uy
-                        in_frame = True
-                    v_par, w_1, w_2, r_par, r_1, r_2 = field_frame_flight(tau, v_par, w_1, w_2, a_par, a_1, omega_c)
-                    ux = v_par * bx + w_1 * bz
-                    uy = w_2
-                    uz = v_par * bz - w_1 * bx
-                    px += r_par * bx + r_1 * bz
+                else:  # DC: the electron's coordinates are those of the frame of B (see ``frame``)
+                    uz, ux, uy, r_par, r_1, r_2 = field_frame_flight(tau, uz, ux, uy, a_par, a_1, omega_c)
+                    px += r_1
                     py += r_2
-                    pz += r_par * bz - r_1 * bx
+                    pz += r_par
                 t += tau
                 vperp2 = ux * ux + uy * uy
                 if sine:
@@ -237,17 +295,27 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
                 break
             if last:
                 break
-            # A trial event: with a constant trial frequency these are Poisson times, so sums of the
-            # pre-collision state over them are time integrals of the swarm (divided by ν*).
+            if step != 0:  # the electron reached an interval edge: the rest of the depth at the next rate
+                depth = max(depth - rate * tau, 0.0)
+                interval += step
+                rate = trial_rates[interval]
+                inv_rate = 1.0 / rate
+                weight = nu_star * inv_rate
+                draw = False
+                continue
+            # A trial event. Trial events are a Poisson process of rate ν*(t) (the rate in force) in time, so sums
+            # of the pre-collision state over them, each weighted by ν*/ν*(t) (1 for a constant trial frequency),
+            # are time integrals of the swarm times ν*.
             events += 1
-            sum_energy += energy
-            sum_vz += uz
+            sum_weights += weight
+            sum_energy += energy * weight
+            sum_vz += uz * weight
             if tally_positions:
                 dzr = pz - z_ref
-                sum_zvz += dzr * uz
-                sum_z += dzr
-                sum_xyv += (px - x_ref) * ux + (py - y_ref) * uy
-            if has_b:  # magnetic: the transverse drift and the full position–velocity moments
+                sum_zvz += dzr * uz * weight
+                sum_z += dzr * weight
+                sum_xyv += ((px - x_ref) * ux + (py - y_ref) * uy) * weight
+            if has_b:  # magnetic (constant trial frequency): the transverse drift and the full moments
                 sum_vx += ux
                 sum_vy += uy
                 if tally_positions:
@@ -274,28 +342,29 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
                 else:
                     bin_sums[pb, PHASE_POWER] += uz * instantaneous_accel(t, accel_dc, accel_ac, omega, phase,
                                                                           period_s, wave_time, wave_accel)
-            # expected-value tallies: ν_ion(ε)/ν* and ν_att(ε)/ν* at every trial event (lab-frame energy; at the
-            # threshold the kernel rejects collisions below it, so the tables count only from there)
+            # expected-value tallies: the event's 1/ν*(t) shared between the two nodes of its cell (linear
+            # weights), so Σ_c node_time[c] ν_k(ε_c) = Σ_events ν_k(ε)/ν*(t), the kernel's own interpolation; a
+            # threshold's cell also tallies its events below the threshold (collisions there are rejected)
             c = int(e_cell)
-            if c + 1 < expected_rows:
-                f = e_cell - c
-                if energy >= expected_floor_eV[0]:
-                    low = expected_nu[c, 0]
-                    sum_expected_ion += (low + f * (expected_nu[c + 1, 0] - low)) * inv_nu_star
-                if energy >= expected_floor_eV[1]:
-                    low = expected_nu[c, 1]
-                    sum_expected_att += (low + f * (expected_nu[c + 1, 1] - low)) * inv_nu_star
+            f = e_cell - c
+            node_time[r, c] += (1.0 - f) * inv_rate
+            node_time[r, c + 1] += f * inv_rate
+            for q in range(cell_start[c], cell_start[c + 1]):
+                if energy < entry_threshold_eV[q]:
+                    p = entry_process[q]
+                    below_threshold[r, p, 0] += (1.0 - f) * inv_rate
+                    below_threshold[r, p, 1] += f * inv_rate
             b = int(energy * hist_inv_width_eV)
             if b < n_bins:
-                hist[r, b] += 1
+                hist[r, b] += weight
             else:
                 eedf_overflow += 1
             u, s0, s1, s2, s3 = next_uniform(s0, s1, s2, s3)
-            level = u * nu_star
+            level = u * rate
             # T > 0: a Maxwellian target drawn for this event, frequencies at the relative energy (trial_event)
             k, tx, ty, tz, collision_energy, above, s0, s1, s2, s3 = trial_event(
-                level, energy, e_cell, ux, uy, uz, inv_cell_eV, nu_star, nu_total, nu_cumulative, thermal_groups,
-                s0, s1, s2, s3)
+                level, energy, e_cell, ux, uy, uz, inv_cell_eV, rate, nu_total, nu_cumulative, thermal_groups,
+                interval, s0, s1, s2, s3)
             above_bound += above
             if k < 0:
                 continue  # null collision
@@ -320,7 +389,10 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
                 if n >= capacity:
                     status = 2
                     break
-                _store(x, y, z, vx, vy, vz, r, n, px, py, pz, wx, wy, wz)
+                if frame:
+                    _store_from_frame(x, y, z, vx, vy, vz, r, n, px, py, pz, wx, wy, wz, bx, bz)
+                else:
+                    _store(x, y, z, vx, vy, vz, r, n, px, py, pz, wx, wy, wz)
                 birth[r, n] = t
                 n += 1
                 created += 1
@@ -331,11 +403,19 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
                     if child == CHILD_PENNING:
                         bin_process[pb, penning_slot[k]] += 1
             vperp2 = ux * ux + uy * uy
-            in_frame = False
+            if variable:
+                interval = cell_interval[min(int(ENERGY_PER_SPEED2_eV * (vperp2 + uz * uz) * inv_cell_eV),
+                                             n_cells - 1)]
+                rate = trial_rates[interval]
+                inv_rate = 1.0 / rate
+                weight = nu_star * inv_rate
         if status != 0:
             break
         if alive:
-            _store(x, y, z, vx, vy, vz, r, write, px, py, pz, ux, uy, uz)
+            if frame:
+                _store_from_frame(x, y, z, vx, vy, vz, r, write, px, py, pz, ux, uy, uz, bx, bz)
+            else:
+                _store(x, y, z, vx, vy, vz, r, write, px, py, pz, ux, uy, uz)
             write += 1
         i += 1
     if status == 0:
@@ -353,6 +433,12 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
     rng[r, 1] = s1
     rng[r, 2] = s2
     rng[r, 3] = s3
+    if frame:  # the frame sums to the laboratory: vectors turn by R, the moments Σ r_i v_j by R · Rᵀ
+        sum_xvx, sum_xvy, sum_xvz, sum_yvx, sum_yvy, sum_yvz, sum_zvx, sum_zvy, sum_zvz = _moments_from_frame(
+            sum_xvx, sum_xvy, sum_xvz, sum_yvx, sum_yvy, sum_yvz, sum_zvx, sum_zvy, sum_zvz, bx, bz)
+        sum_xyv = sum_xvx + sum_yvy
+        sum_vx, sum_vz = _from_frame(sum_vx, sum_vz, bx, bz)
+        sum_x, sum_z = _from_frame(sum_x, sum_z, bx, bz)
     sums[r, SUM_ENERGY] = sum_energy
     sums[r, SUM_VZ] = sum_vz
     sums[r, SUM_ZVZ] = sum_zvz
@@ -372,8 +458,7 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
     sums[r, SUM_YVZ] = sum_yvz
     sums[r, SUM_ZVX] = sum_zvx
     sums[r, SUM_ZVY] = sum_zvy
-    sums[r, SUM_EXPECTED_IONIZATIONS] = sum_expected_ion
-    sums[r, SUM_EXPECTED_ATTACHMENTS] = sum_expected_att
+    sums[r, SUM_WEIGHTS] = sum_weights
     counts[r, COUNT_EVENTS] = events
     counts[r, COUNT_REAL] = real
     counts[r, COUNT_CREATED] = created
@@ -390,8 +475,8 @@ def advance_chunk(x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc, acce
                   target_fraction, thermal_speed, scatter, sharing, w_eV, table_max_eV, reference,
                   tally_positions, hist_inv_width_eV, sums, counts, hist, process_counts, extrapolated,
                   penning_probability, penning_energy_eV, penning_slot, period_s, wave_time, wave_accel, wave_F,
-                  wave_G, phase_sums, phase_counts, phase_process, thermal_groups, magnetic, expected_nu,
-                  expected_floor_eV):
+                  wave_G, phase_sums, phase_counts, phase_process, thermal_groups, magnetic, trial, expected,
+                  node_time, below_threshold):
     """Advance every replica's electrons from time ``t0`` to ``t1`` [s] (one chunk), in parallel over replicas.
 
     Each replica is a serial simulation with its own generator state, so the result does not depend on the
@@ -416,7 +501,8 @@ def advance_chunk(x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc, acce
     inv_cell_eV, n_cells : float, int
         The energy grid: node i is at i / inv_cell_eV [eV], i = 0 … n_cells.
     nu_star : float
-        Trial collision frequency [s⁻¹], ≥ every value of ``nu_total``.
+        The largest trial collision frequency [s⁻¹] (that of a constant trial frequency, ≥ every value of
+        ``nu_total``); the trial-event weights are ν*/ν*(t), see ``trial``.
     nu_total : ndarray, shape (n_nodes,)
         Total collision frequency at the nodes [s⁻¹] (n_nodes = n_cells + 1 for a cold gas).
     nu_cumulative : ndarray, shape (n_nodes, P)
@@ -459,14 +545,31 @@ def advance_chunk(x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc, acce
         exactly the field-free flights and leaves the columns SUM_VX … SUM_ZVY of ``sums`` at 0. With ω_c > 0
         every flight is :func:`magnetic_field_flight` (exact for a constant electric field) and those columns are
         filled (the position ones only with ``tally_positions``).
-    expected_nu : ndarray, shape (n_cells + 1, 2)
-        Total direct-ionization and attachment collision frequencies at the electron-grid nodes [s⁻¹]; each trial
-        event adds their interpolated values over ν* to ``sums[:, SUM_EXPECTED_IONIZATIONS]`` and
-        ``sums[:, SUM_EXPECTED_ATTACHMENTS]`` (expected numbers of events: unbiased because the trial events are a
-        Poisson process of rate ν* in time, Skullerud 1968). An array with fewer than two rows disables them.
-    expected_floor_eV : ndarray, shape (2,)
-        Energies below which the two frequencies count as 0 (the lowest ionization threshold, as the kernel rejects
-        collisions below a process's threshold inside its grid cell; 0 for attachment).
+    trial : tuple of ndarray
+        The trial frequency (rates (J,) [s⁻¹], speed2_edges (J + 1,) [m² s⁻²], cell_interval (n_cells,) int): a
+        constant ν* bound of the collision frequency over each of J energy intervals ½ m v², v² in
+        [speed2_edges[j], speed2_edges[j + 1]) (first edge 0, last +inf), and the interval of each grid cell.
+        J = 1 (rates = [ν*]) is the constant trial frequency of Skullerud (1968). J > 1 is for a DC field without
+        B only (the exit time from an interval is solved in closed form for the uniform acceleration, see
+        :func:`avalanche.kernels.interval_exit`): a flight that reaches an interval edge stops there without an
+        event and continues with the rest of its unit-rate optical depth at the next interval's rate (the
+        exponential's memorylessness), so the trial events stay a Poisson process of rate ν*(t), the rate in force,
+        and every frequency stays below it (thermal gas: ``thermal_groups[0]`` holds one row of band edges per
+        interval). Sums over trial events then carry the weight ν*/ν*(t).
+    expected : tuple of ndarray
+        Threshold cells for the expected-value tallies: (cell_start (n_cells + 1,), entry_process (Q,),
+        entry_threshold_eV (Q,)): entries cell_start[c] … cell_start[c + 1] − 1 are the processes whose threshold
+        lies inside cell c, and their thresholds [eV].
+    node_time : ndarray, shape (R, n_cells + 1)
+        Out: expected-value tallies, each trial event's 1/ν*(t) [s] shared between the nodes of its cell with the
+        linear weights 1 − f and f, so that Σ_c node_time[c] ν_k(ε_c) is the sum over trial events of
+        ν_k(ε)/ν*(t) interpolated as the kernel interpolates: the expected number of collisions of process k
+        (unbiased because the trial events are a Poisson process of rate ν*(t), Skullerud 1968), for every
+        process at the cost of one histogram.
+    below_threshold : ndarray, shape (R, P, 2)
+        Out: per process, the part of ``node_time`` (columns: lower, upper node of the threshold's cell) from
+        events inside the cell of its threshold but below it, where the kernel rejects the collision; subtracted
+        from the expected-value sums.
 
     Notes
     -----
@@ -484,4 +587,30 @@ def advance_chunk(x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc, acce
                          reference, tally_positions, hist_inv_width_eV, sums, counts, hist, process_counts,
                          extrapolated, penning_probability, penning_energy_eV, penning_slot, period_s, wave_time,
                          wave_accel, wave_F, wave_G, phase_sums, phase_counts, phase_process, thermal_groups, magnetic,
-                         expected_nu, expected_floor_eV)
+                         trial, expected, node_time, below_threshold)
+
+
+@jit
+def expected_counts(node_time, below_threshold, nu_nodes, cell_start, entry_process, out):
+    """Expected collisions per replica and process from the expected-value tallies of :func:`advance_chunk`.
+
+    out[r, k] = Σ_c node_time[r, c] ν_k(ε_c) − (below_threshold[r, k, 0] ν_k(ε_c_k) + below_threshold[r, k, 1]
+    ν_k(ε_c_k+1)), c_k the cell of process k's threshold: Σ over trial events of ν_k(ε)/ν*(t) with the kernel's
+    linear interpolation and its rejection below the threshold. ``nu_nodes`` (n_cells + 1, P) [s⁻¹];
+    ``cell_start``, ``entry_process`` as the ``expected`` argument of :func:`advance_chunk`; ``out`` (R, P) is
+    overwritten. (A loop, not a matrix product: BLAS threads would compete with the kernels' own.)
+    """
+    n_proc = nu_nodes.shape[1]
+    for r in range(node_time.shape[0]):
+        for k in range(n_proc):
+            out[r, k] = 0.0
+        for c in range(node_time.shape[1]):
+            weight = node_time[r, c]
+            if weight != 0.0:
+                for k in range(n_proc):
+                    out[r, k] += weight * nu_nodes[c, k]
+        for c in range(cell_start.shape[0] - 1):
+            for q in range(cell_start[c], cell_start[c + 1]):
+                k = entry_process[q]
+                out[r, k] -= below_threshold[r, k, 0] * nu_nodes[c, k] + below_threshold[r, k, 1] * nu_nodes[c + 1, k]
+

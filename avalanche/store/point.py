@@ -219,8 +219,8 @@ def read_result(group: h5py.Group) -> SwarmResult:
         tallies = None
         if "tallies" in group:
             stored = group["tallies"]
-            tallies = SwarmTallies({name: stored[name][()] for name in FIELDS}
-                                   | {name: stored[name][()] for name in MAGNETIC_FIELDS if name in stored})
+            arrays = {name: stored[name][()] for name in (*FIELDS, *MAGNETIC_FIELDS) if name in stored}
+            tallies = SwarmTallies(_with_constant_trial_weights(arrays))
         inputs = json.loads(attrs["inputs_json"])
         anomalies = json.loads(attrs["anomalies_json"])
         scalars = {name: attrs[name] for name in _SCALARS}
@@ -245,6 +245,20 @@ def read_result(group: h5py.Group) -> SwarmResult:
                        extrapolated_fraction=float(scalars["extrapolated_fraction"]), anomalies=anomalies,
                        inputs=inputs, time_series=time_series, tallies=tallies, magnetic=magnetic, **phase,
                        **convergence)
+
+
+def _with_constant_trial_weights(arrays: dict) -> dict:
+    """Tallies of a file written before the energy-dependent trial frequency (no ``event_weights``): its trial
+    frequency was constant, so every weight was 1 and the weighted sums are the counts; its expected-value sums
+    were per ionization and attachment only, so the per-process ones are taken from the counts."""
+    if "event_weights" not in arrays and "events" in arrays:
+        arrays["event_weights"] = arrays["events"].astype(float)
+        arrays["mature_event_weights"] = arrays["mature_events"].astype(float)
+        arrays["eedf_counts"] = arrays["eedf_counts"].astype(float)
+        arrays["expected_process_counts"] = arrays["process_counts"].astype(float)
+        arrays.pop("expected_ionizations", None)
+        arrays.pop("expected_attachments", None)
+    return arrays
 
 
 def write_point_file(path: str | Path, result) -> None:

@@ -34,13 +34,14 @@ def _tallies():
     t = SwarmTallies.zeros(R, P, B)
     a = t.arrays
     a["events"][:] = 1000
+    a["event_weights"][:] = 1000.0
     a["energy_sum_eV"][:] = [4000.0, 4100.0, 3900.0, 4000.0]
     a["vz_sum"][:] = 1e8
     a["exposure_s"][:] = 1e-6
     a["process_counts"][:] = [[5000, 30, 10]] * R
-    a["expected_ionizations"][:] = 30.0   # expected-value sums equal to the counts: both estimators give one value
-    a["expected_attachments"][:] = 10.0
+    a["expected_process_counts"][:] = [[5000.0, 30.0, 10.0]] * R  # equal to the counts: both estimators agree
     a["mature_events"][:] = 1000
+    a["mature_event_weights"][:] = 1000.0
     a["mature_vz_sum"][:] = 1e8
     a["mature_time_s"][:] = 1e-7
     a["z_mean_increment_m"][:] = 1e5 * 1e-7          # W_bulk = 1e5 m/s
@@ -103,6 +104,7 @@ def test_eedf_is_normalised():
     t = _tallies()
     t.arrays["eedf_counts"][:, :] = np.arange(B)[None, :] + 1
     t.arrays["events"][:] = t.arrays["eedf_counts"].sum(axis=1)
+    t.arrays["event_weights"][:] = t.arrays["eedf_counts"].sum(axis=1)
     f = energy_distribution(t, _context())
     edges = f.energy_edges_eV
     assert np.sum(f.value * (2 / 3) * (edges[1:] ** 1.5 - edges[:-1] ** 1.5)) == pytest.approx(1.0)

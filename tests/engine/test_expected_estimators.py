@@ -5,6 +5,9 @@ J. Phys. D 1 1567, doi:10.1088/0022-3727/1/11/423)."""
 import math
 import warnings
 
+import numpy as np
+import pytest
+
 from avalanche import swarm
 from avalanche.gas.library import model_gas
 from avalanche.gas.mixture import Mixture
@@ -34,3 +37,29 @@ def test_ionization_estimators_agree_on_argon():
     # alpha_N_simple = nu_ion / (N W_bulk) uses the expected-value frequency
     ratio = result.alpha_N_simple.value / (result.ionization_rate_coefficient.value / result.drift_velocity_bulk.value)
     assert ratio == 1.0 or abs(ratio - 1.0) < 1e-12
+
+
+@pytest.mark.parametrize("gas, field_Td", [("Ar", 100.0), ("air", 120.0)])
+def test_every_rate_coefficient_agrees_with_its_count_and_is_less_noisy(gas, field_Td):
+    # Every process's expected-value rate coefficient (Σ ν_k(ε)/ν*(t) over the trial events, from the linear node
+    # histogram) against the counted one, same run: 4 combined standard errors (3σ after a Bonferroni correction
+    # over the ~40 processes; the two are positively correlated, so this is conservative). Processes with fewer
+    # than 30 collisions have no Gaussian counted error and are left out. For the rare processes (counted error
+    # above 5 %) the expected value is the main lever of issue 13: a smaller error for each, 2× smaller or better
+    # for the median one (ionization gains least, see avalanche.engine.estimators).
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        result = swarm(gas, field_Td, seed=3, precision=1e-9, electrons=2048, max_events=8e6)
+    counts = result.tallies["process_counts"].sum(axis=0)
+    keys = list(result.rate_coefficients)
+    compared, gains = 0, []
+    for k, key in enumerate(keys):
+        if counts[k] < 30 or key.startswith("Penning "):
+            continue
+        expected, counted = result.rate_coefficients[key], result.rate_coefficients_counted[key]
+        assert abs(expected.value - counted.value) < 4 * math.hypot(expected.stderr, counted.stderr), key
+        compared += 1
+        if counted.relative_stderr > 0.05:
+            gains.append(expected.relative_stderr / counted.relative_stderr)
+    assert compared >= 10 and gains
+    assert max(gains) < 1.0 and float(np.median(gains)) < 0.5, gains

@@ -175,7 +175,7 @@ def _one_level_chunk(probability: float, electrons: int = 2000):
     count = np.array([electrons], dtype=np.int64)
     rng = np.random.SeedSequence(11).generate_state(4, np.uint64).reshape(1, 4)
     sums, counts = np.zeros((1, K.N_SUMS)), np.zeros((1, K.N_COUNTS), dtype=np.int64)
-    hist = np.zeros((1, 10), dtype=np.int64)
+    hist = np.zeros((1, 10))
     process_counts, extrapolated = np.zeros((1, P), dtype=np.int64), np.zeros((1, P), dtype=np.int64)
     K.advance_chunk(x, y, z, vx, vy, vz, birth, count, rng, 0.0, 60.0 / nu_17, 0.0, 0.0, 0.0, 0.0, cells / top,
                     cells, nu_star, total, cumulative, table.action, table.loss_eV, table.electron_fraction,
@@ -184,7 +184,10 @@ def _one_level_chunk(probability: float, electrons: int = 2000):
                     extrapolated, table.penning_probability, table.penning_energy_eV, table.penning_slot,
                     0.0, *(np.zeros(0),) * 4, np.zeros((1, 0, K.N_PHASE_SUMS)),  # DC: no drive period, no phases
                     np.zeros((1, 0, K.N_PHASE_COUNTS), dtype=np.int64), np.zeros((1, 0, P), dtype=np.int64),
-                    COLD_GAS_GROUPS, np.zeros(3), np.zeros((2, 2)), np.zeros(2))  # cold gas, no B, no expected tallies
+                    COLD_GAS_GROUPS, np.zeros(3),  # cold gas, no B, a constant trial frequency, no threshold cells
+                    (np.array([nu_star]), np.array([0.0, np.inf]), np.zeros(cells, dtype=np.int64)),
+                    (np.zeros(cells + 1, dtype=np.int64), np.zeros(0, dtype=np.int64), np.zeros(0)),
+                    np.zeros((1, cells + 1)), np.zeros((1, P, 2)))
     n = int(count[0])
     energy = K.ENERGY_PER_SPEED2_eV * (vx[0, :n] ** 2 + vy[0, :n] ** 2 + vz[0, :n] ** 2)
     cos_theta = vz[0, :n] / np.sqrt(vx[0, :n] ** 2 + vy[0, :n] ** 2 + vz[0, :n] ** 2)
@@ -250,8 +253,9 @@ def test_penning_counts_follow_the_excitations_and_add_to_the_ionization_frequen
     # ones (per target molecule; Penning rows per receiver molecule), up to rounding.
     N = m.number_density_m3
     fraction = {c.name: c.fraction for c in m.components}
-    total = sum(fraction[k.split(":")[0]] * r.rate_coefficients[k].value for k in keys if k.endswith("ionization"))
-    total += sum(fraction["Ar"] * r.rate_coefficients[k].value for k in keys if k.startswith("Penning "))
+    counted = r.rate_coefficients_counted
+    total = sum(fraction[k.split(":")[0]] * counted[k].value for k in keys if k.endswith("ionization"))
+    total += sum(fraction["Ar"] * counted[k].value for k in keys if k.startswith("Penning "))
     assert r.ionization_rate_coefficient_counted.value == pytest.approx(total, rel=1e-12, abs=0)
     exposure = t["exposure_s"].sum()
     assert r.penning_ionization_rate_coefficient.value == pytest.approx(penning / exposure / N, rel=1e-12, abs=0)
