@@ -234,7 +234,7 @@ def ensure_compiled() -> None:
                     np.zeros((1, 0, K.N_PHASE_SUMS)),
                     np.zeros((1, 0, K.N_PHASE_COUNTS), dtype=np.int64), np.zeros((1, 0, 1), dtype=np.int64),
                     COLD_GAS_GROUPS, np.zeros(3), (np.ones(1), np.array([0.0, np.inf]), np.zeros(1, dtype=np.int64)),
-                    (np.zeros(2, dtype=np.int64), np.zeros(0, dtype=np.int64), np.zeros(0)), np.zeros((1, 2)),
+                    (np.zeros(2, dtype=np.int64), np.zeros(0, dtype=np.int64), np.zeros(0)), np.zeros((1, 1, 2)),
                     np.zeros((1, 1, 2)))
 
 
@@ -269,7 +269,7 @@ class _Run:
         R, P, B = settings.replicas, len(self.table.processes), settings.eedf_bins
         self.out = _ChunkOutput(np.zeros((R, K.N_SUMS)), np.zeros((R, K.N_COUNTS), dtype=np.int64),
                                 np.zeros((R, B)), np.zeros((R, P), dtype=np.int64),
-                                np.zeros((R, P), dtype=np.int64), np.zeros((R, settings.energy_cells + 1)),
+                                np.zeros((R, P), dtype=np.int64), np.zeros((R, settings.energy_cells, 2)),
                                 np.zeros((R, P, 2)))
         # a piecewise-constant trial frequency over energy intervals in a DC field without B (the kernel solves the
         # flight's exit from an interval in closed form only there); constant otherwise

@@ -138,7 +138,8 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
         below_threshold[r, k, 0] = 0.0
         below_threshold[r, k, 1] = 0.0
     for c in range(node_time.shape[1]):
-        node_time[r, c] = 0.0
+        node_time[r, c, 0] = 0.0
+        node_time[r, c, 1] = 0.0
     # -- trial frequency: constant (one interval) or piecewise constant over energy intervals (DC without B) --
     trial_rates, speed2_edges, cell_interval = trial
     variable = trial_rates.shape[0] > 1
@@ -347,8 +348,8 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
             # threshold's cell also tallies its events below the threshold (collisions there are rejected)
             c = int(e_cell)
             f = e_cell - c
-            node_time[r, c] += (1.0 - f) * inv_rate
-            node_time[r, c + 1] += f * inv_rate
+            node_time[r, c, 0] += inv_rate  # one cache line per event: the cell's two sums side by side
+            node_time[r, c, 1] += f * inv_rate
             for q in range(cell_start[c], cell_start[c + 1]):
                 if energy < entry_threshold_eV[q]:
                     p = entry_process[q]
@@ -560,14 +561,15 @@ def advance_chunk(x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc, acce
         Threshold cells for the expected-value tallies: (cell_start (n_cells + 1,), entry_process (Q,),
         entry_threshold_eV (Q,)): entries cell_start[c] … cell_start[c + 1] − 1 are the processes whose threshold
         lies inside cell c, and their thresholds [eV].
-    node_time : ndarray, shape (R, n_cells + 1)
-        Out: expected-value tallies, each trial event's 1/ν*(t) [s] shared between the nodes of its cell with the
-        linear weights 1 − f and f, so that Σ_c node_time[c] ν_k(ε_c) is the sum over trial events of
+    node_time : ndarray, shape (R, n_cells, 2)
+        Out: expected-value tallies per cell c: the sums over its trial events of 1/ν*(t) [s] and of f/ν*(t), f the
+        event's position in the cell, so that node c gets (1 − f)/ν*(t) and node c + 1 gets f/ν*(t) of every event
+        (linear weights) and Σ_nodes ν_k(ε_node) × node share is the sum over trial events of
         ν_k(ε)/ν*(t) interpolated as the kernel interpolates: the expected number of collisions of process k
         (unbiased because the trial events are a Poisson process of rate ν*(t), Skullerud 1968), for every
         process at the cost of one histogram.
     below_threshold : ndarray, shape (R, P, 2)
-        Out: per process, the part of ``node_time`` (columns: lower, upper node of the threshold's cell) from
+        Out: per process, the node shares (columns: lower, upper node of the threshold's cell) from
         events inside the cell of its threshold but below it, where the kernel rejects the collision; subtracted
         from the expected-value sums.
 
@@ -594,7 +596,8 @@ def advance_chunk(x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc, acce
 def expected_counts(node_time, below_threshold, nu_nodes, cell_start, entry_process, out):
     """Expected collisions per replica and process from the expected-value tallies of :func:`advance_chunk`.
 
-    out[r, k] = Σ_c node_time[r, c] ν_k(ε_c) − (below_threshold[r, k, 0] ν_k(ε_c_k) + below_threshold[r, k, 1]
+    out[r, k] = Σ_c [(node_time[r, c, 0] − node_time[r, c, 1]) ν_k(ε_c) + node_time[r, c, 1] ν_k(ε_c+1)]
+    − (below_threshold[r, k, 0] ν_k(ε_c_k) + below_threshold[r, k, 1]
     ν_k(ε_c_k+1)), c_k the cell of process k's threshold: Σ over trial events of ν_k(ε)/ν*(t) with the kernel's
     linear interpolation and its rejection below the threshold. ``nu_nodes`` (n_cells + 1, P) [s⁻¹];
     ``cell_start``, ``entry_process`` as the ``expected`` argument of :func:`advance_chunk`; ``out`` (R, P) is
@@ -605,10 +608,11 @@ def expected_counts(node_time, below_threshold, nu_nodes, cell_start, entry_proc
         for k in range(n_proc):
             out[r, k] = 0.0
         for c in range(node_time.shape[1]):
-            weight = node_time[r, c]
-            if weight != 0.0:
+            upper = node_time[r, c, 1]
+            lower = node_time[r, c, 0] - upper
+            if node_time[r, c, 0] != 0.0:
                 for k in range(n_proc):
-                    out[r, k] += weight * nu_nodes[c, k]
+                    out[r, k] += lower * nu_nodes[c, k] + upper * nu_nodes[c + 1, k]
         for c in range(cell_start.shape[0] - 1):
             for q in range(cell_start[c], cell_start[c + 1]):
                 k = entry_process[q]

@@ -268,7 +268,7 @@ def _relax_without_field(mixture: Mixture, start_eV: float, relax_s: float, samp
                         *(np.zeros(0),) * 4, np.zeros((R, 0, K.N_PHASE_SUMS)),
                         np.zeros((R, 0, K.N_PHASE_COUNTS), dtype=np.int64), np.zeros((R, 0, P), dtype=np.int64),
                         grid.thermal_groups, np.zeros(3), grid.constant_trial, grid.expected,
-                        np.zeros((R, grid.n_cells + 1)), np.zeros((R, P, 2)))
+                        np.zeros((R, grid.n_cells, 2)), np.zeros((R, P, 2)))
         total += counts.sum(axis=0)
     mean = sums[:, K.SUM_ENERGY] / counts[:, K.COUNT_EVENTS]
     final = K.ENERGY_PER_SPEED2_eV * (ens.vx ** 2 + ens.vy ** 2 + ens.vz ** 2)[:, :ens.target].ravel()

@@ -187,7 +187,7 @@ def _one_level_chunk(probability: float, electrons: int = 2000):
                     COLD_GAS_GROUPS, np.zeros(3),  # cold gas, no B, a constant trial frequency, no threshold cells
                     (np.array([nu_star]), np.array([0.0, np.inf]), np.zeros(cells, dtype=np.int64)),
                     (np.zeros(cells + 1, dtype=np.int64), np.zeros(0, dtype=np.int64), np.zeros(0)),
-                    np.zeros((1, cells + 1)), np.zeros((1, P, 2)))
+                    np.zeros((1, cells, 2)), np.zeros((1, P, 2)))
     n = int(count[0])
     energy = K.ENERGY_PER_SPEED2_eV * (vx[0, :n] ** 2 + vy[0, :n] ** 2 + vz[0, :n] ** 2)
     cos_theta = vz[0, :n] / np.sqrt(vx[0, :n] ** 2 + vy[0, :n] ** 2 + vz[0, :n] ** 2)
