@@ -296,9 +296,23 @@ def _breakdown(args) -> int:
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always")
         table, source, computed = _coefficients(args, pd, pressure)
-        coefficients = table.coefficient_table(*COEFFICIENTS[args.coefficients], temperature_K=args.temperature)
-        temperature = coefficients.temperature_K
+        used = args.coefficients
+        coefficients = table.coefficient_table(*COEFFICIENTS[used], temperature_K=args.temperature)
         curve = paschen_curve(coefficients, args.gamma, pd)
+        if (used == "corrected" and not math.isfinite(curve.minimum_voltage_V)
+                and table.undefined_fields_Td(*COEFFICIENTS[used]).size):
+            # Above these fields 4 D_L ν > W²: the first-order (hydrodynamic) relation between the time-of-flight and
+            # the steady-state coefficients has no solution, and just below it the correction is large and unsure
+            # (its neglected higher-order terms grow with D_L α/W; Robson R E 1991, Aust. J. Phys. 44 685, from
+            # memory). When that hides the Paschen minimum, the curve uses ν/(N W), which is defined everywhere.
+            simple = table.coefficient_table(*COEFFICIENTS["simple"], temperature_K=args.temperature)
+            fallback = paschen_curve(simple, args.gamma, pd)
+            if math.isfinite(fallback.minimum_voltage_V):
+                note("avalanche breakdown: the diffusion-corrected alpha_N has no real solution at the top of the "
+                     "table, so the Paschen minimum cannot be placed with it; the curve uses alpha_N_simple = "
+                     "ν/(N W) (--coefficients simple; --coefficients sst computes the steady-state Townsend values)")
+                used, coefficients, curve = "simple", simple, fallback
+        temperature = coefficients.temperature_K
         gap_result = None
         if gap is not None:
             gap_result = {"geometry": repr(gap), "pressure_Pa": pressure,
@@ -319,7 +333,7 @@ def _breakdown(args) -> int:
                   critical * TOWNSEND_V_m2 * STANDARD_ATMOSPHERE_Pa / (BOLTZMANN_J_K * temperature))
     if args.json:
         print_json({"gas": curve.gas_label, "gamma": args.gamma, "temperature_K": temperature, "source": source,
-                    "coefficients_used": args.coefficients, **curve.to_dict(),
+                    "coefficients_used": used, **curve.to_dict(),
                     "minimum_pd_Torr_cm": curve.minimum_pd_Torr_cm if math.isfinite(curve.minimum_pd_Torr_cm)
                     else None, "critical_reduced_field_Td": critical, "critical_field_1atm_V_m": field_1atm,
                     "coefficients": {"reduced_field_Td": coefficients.reduced_field_Td,
@@ -330,7 +344,7 @@ def _breakdown(args) -> int:
     low, high = coefficients.reduced_field_range_Td
     print(f"Paschen curve of {curve.gas_label or args.gas}: uniform gap, Townsend criterion "
           f"γ (exp((α−η) d) − 1) = 1 with γ = {args.gamma:g}, T = {temperature:g} K")
-    print(f"coefficients ({args.coefficients}): {source}, {low:g}–{high:g} Td")
+    print(f"coefficients ({used}): {source}, {low:g}–{high:g} Td")
     print("\n".join(_paschen_rows(curve)))
     if math.isfinite(curve.minimum_voltage_V):
         print(f"minimum: {curve.minimum_voltage_V:.4g} V at p d = {curve.minimum_pd_Pa_m:.4g} Pa m "

@@ -274,7 +274,6 @@ class _Run:
         # a piecewise-constant trial frequency over energy intervals in a DC field without B (the kernel solves the
         # flight's exit from an interval in closed form only there); constant otherwise
         self.variable_trial = drive is None and magnetic is None and settings.trial_frequency == "piecewise"
-        self.trial_rate = None  # trial events per electron-second of the last chunk (variable trial frequency)
         self.eedf_max_eV = self.grid.energy_max_eV
         self.events = 0
         self.chunk_scale = 1.0  # chunks this many times longer while the ensemble is below its target (pilot)
@@ -304,9 +303,6 @@ class _Run:
             full = bool(o.counts[:, K.COUNT_OVERFLOW].any())
             if not (above or full):
                 o.expected_counts = g.expected_counts(o.node_time, o.below_threshold)
-                exposure = float(o.sums[:, K.SUM_EXPOSURE].sum())
-                if self.variable_trial and exposure > 0:
-                    self.trial_rate = float(o.counts[:, K.COUNT_EVENTS].sum()) / exposure
                 return o, t1
             self.ens.restore(saved)
             self.anomalies["redone_chunks"] += 1
@@ -336,7 +332,7 @@ class _Run:
         self.grid = EnergyGrid.build(self.table, energy_max_eV, self.settings.energy_cells)
 
     def chunk_duration(self, nu_eff: float) -> float:
-        dt = self.settings.events_per_chunk * self.chunk_scale / (self.trial_rate or self.grid.nu_star)
+        dt = self.settings.events_per_chunk * self.chunk_scale / self.grid.nu_star
         if nu_eff != 0.0 and math.isfinite(nu_eff):
             dt = min(dt, GROWTH_PER_CHUNK / abs(nu_eff))
         return dt
