@@ -139,11 +139,12 @@ def test_population_control_does_not_bias_a_growing_swarm():
 
 
 @pytest.mark.slow
-def test_diffusion_windows_do_not_depend_on_the_skip():
+def test_diffusion_windows_do_not_depend_on_the_skip(validation_budget):
     # The position moments are sampled a few energy relaxation times after each reset; doubling that skip must
     # not change the bulk coefficients (the position–energy correlations have built up).
-    short = _lucas_saelee(1.0, electrons=1024, events=8e7, seed=31)
-    long = _lucas_saelee(1.0, electrons=1024, events=8e7, seed=32, diffusion_skip=8.0, diffusion_segment=2.0)
+    events = validation_budget.pick(8e7, 4e7)
+    short = _lucas_saelee(1.0, electrons=1024, events=events, seed=31)
+    long = _lucas_saelee(1.0, electrons=1024, events=events, seed=32, diffusion_skip=8.0, diffusion_segment=2.0)
     for name in ("drift_velocity_bulk", "N_D_L_bulk", "N_D_T_bulk",
                  "N_D_L_flux"):
         assert _agree(getattr(short, name), getattr(long, name), 3.5), name
