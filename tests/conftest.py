@@ -41,6 +41,9 @@ def pytest_collection_modifyitems(config, items):
     for item in items:
         if "validation_budget" in getattr(item, "fixturenames", ()) and item.get_closest_marker("slow") is None:
             raise pytest.UsageError(f"{item.nodeid} sizes its run by the validation budget but is not marked slow")
+    # slow tests first (otherwise in collection order): the two test processes then end on short tests together
+    # instead of one waiting for the other's last long validation
+    items.sort(key=lambda item: item.get_closest_marker("slow") is None)
 
 
 VALID_SET = '''format_version = 1
