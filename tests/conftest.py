@@ -3,10 +3,48 @@
 from __future__ import annotations
 
 import os
+from dataclasses import dataclass
 
 import pytest
 
 os.environ.setdefault("MPLBACKEND", "Agg")
+
+VALIDATION_BUDGETS = ("reduced", "full")
+"""Choices of ``--validation-budget``: the reduced budget of CI (the default) or the full one of the source."""
+
+
+def pytest_addoption(parser):
+    parser.addoption("--validation-budget", choices=VALIDATION_BUDGETS, default="reduced",
+                     help="budget of the slow validations: 'reduced' (default, what CI runs) or 'full' (the long runs "
+                          "the tests were written with)")
+
+
+@dataclass(frozen=True)
+class ValidationBudget:
+    """The budget a slow validation runs on (``--validation-budget``)."""
+
+    full: bool
+
+    def pick(self, full, reduced):
+        """``full`` under ``--validation-budget=full``, else ``reduced``."""
+        return full if self.full else reduced
+
+
+@pytest.fixture(scope="session")
+def validation_budget(request) -> ValidationBudget:
+    """The budget of a slow validation (``--validation-budget``)."""
+    return ValidationBudget(request.config.getoption("--validation-budget") == "full")
+
+
+def pytest_collection_modifyitems(config, items):
+    # only slow validations may size their runs by the budget: a quick test has one budget
+    for item in items:
+        if "validation_budget" in getattr(item, "fixturenames", ()) and item.get_closest_marker("slow") is None:
+            raise pytest.UsageError(f"{item.nodeid} sizes its run by the validation budget but is not marked slow")
+    # slow tests first (otherwise in collection order): the two test processes then end on short tests together
+    # instead of one waiting for the other's last long validation
+    items.sort(key=lambda item: item.get_closest_marker("slow") is None)
+
 
 VALID_SET = '''format_version = 1
 

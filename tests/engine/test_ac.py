@@ -323,7 +323,7 @@ def test_maxwell_model_against_exact_periodic_solution(omega_over_nu, tabulated)
 
 
 @pytest.mark.slow
-def test_low_frequency_limit_argon():
+def test_low_frequency_limit_argon(validation_budget):
     # Quasi-static limit (ω ≪ ν_ε; Raizer Y P 1991, Gas Discharge Physics, ch. 2, from memory): the
     # cycle-averaged ionization rate coefficient equals the cycle average of DC rate coefficients at the
     # instantaneous |E|/N. Argon, 100 Pa, 50 kHz, amplitude 300 Td. DC at 6 fields, log-log interpolation.
@@ -334,8 +334,10 @@ def test_low_frequency_limit_argon():
         dc = [swarm(mixture, f, seed=20 + i, electrons=256, precision=0.01, max_events=6_000_000,
                     precision_on="ionization_rate_coefficient").ionization_rate_coefficient
               for i, f in enumerate(fields)]
-        r = swarm(mixture, 300.0, seed=7, electrons=64, max_events=2e7, precision=0.01, frequency_Hz=5e4,
-                  phase_bins=16)
+        # Reduced budget 5e6 events for the AC run: its relative standard error is 0.9 % (measured, seed 7; 0.5 % at
+        # 2e7), far inside the 3 % required below; the tolerance grows only through its 3-standard-error part.
+        r = swarm(mixture, 300.0, seed=7, electrons=64, max_events=validation_budget.pick(2e7, 5e6), precision=0.01,
+                  frequency_Hz=5e4, phase_bins=16)
     assert r.regime["verdict"] == "quasi-static"
     drive = make_drive(300.0, 5e4)
     values = np.array([e.value for e in dc])

@@ -319,13 +319,16 @@ def _sst_against_tof(result):
 
 @pytest.mark.slow
 @pytest.mark.parametrize("F", [0.5, 1.0])
-def test_lucas_saelee_sst_alpha_follows_the_time_of_flight_relation(F):
+def test_lucas_saelee_sst_alpha_follows_the_time_of_flight_relation(F, validation_budget):
     # Lucas J & Saelee H T 1975, J. Phys. D 8 640 model gas (avalanche.gas.library.model_gas), uniform energy sharing
     # as in the benchmark definition (Ness K F & Robson R E 1986, Phys. Rev. A 34 2185 — from memory). At 50 Td
     # the spatial energy oscillations are damped within ~2 mm at N = 1e24 m⁻³ (at 10 Td they are not).
+    # Reduced budget: precision 0.02 (measured, seed 7: |SST − TOF| at 0.08 (F = 1) and 0.05 (F = 0.5) of its
+    # tolerance, SST and ν/(N W) 33 and 14 standard errors apart, relaxation length 0.47 and 0.36 of the range).
+    precision = validation_budget.pick(0.01, 0.02)
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")
-        result = townsend(_lucas_saelee(F), 50.0, seed=7, precision=0.01, sharing="uniform", compare=True)
+        result = townsend(_lucas_saelee(F), 50.0, seed=7, precision=precision, sharing="uniform", compare=True)
     _sst_against_tof(result)
     assert result.relaxation_length_m.value < 0.6 * result.profiles["z_m"][-1]
 

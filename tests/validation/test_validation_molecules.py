@@ -17,7 +17,8 @@ References (all recalled without access to the sources, "from memory"):
 
 Every tolerance combines the reference's accuracy with three standard errors of the run, in quadrature
 (independent uncertainties). Each field is run once per module (module-scoped fixtures), with fixed seeds and
-budgets capped by ``max_events``.
+budgets capped by ``max_events``; the tests of one fixture share a test process (``xdist_group``), so that no
+field is run twice.
 """
 
 from __future__ import annotations
@@ -91,6 +92,7 @@ def check_townsend_formula(runs, gas: str, reduced_field_Td: float, accuracy: fl
 
 
 @pytest.mark.slow
+@pytest.mark.xdist_group("molecules-nitrogen")
 @pytest.mark.parametrize("reduced_field_Td", [350.0, 500.0, 700.0, 1000.0])
 def test_n2_ionization_coefficient_follows_townsend_formula(nitrogen, reduced_field_Td):
     # 25 %: the issue's tolerance for N2 against the Townsend formula inside its range (300-1800 Td at 293 K)
@@ -145,6 +147,7 @@ def test_morrow_lowke_coefficient_fits_cross_at_108_Td():
 
 
 @pytest.mark.slow
+@pytest.mark.xdist_group("molecules-air")
 @pytest.mark.parametrize("reduced_field_Td", [50.0, 120.0, 200.0, 300.0, 500.0])
 def test_air_drift_velocity_matches_morrow_lowke(air, reduced_field_Td):
     result = air(reduced_field_Td)
@@ -155,6 +158,7 @@ def test_air_drift_velocity_matches_morrow_lowke(air, reduced_field_Td):
 
 
 @pytest.mark.slow
+@pytest.mark.xdist_group("molecules-air")
 @pytest.mark.parametrize("reduced_field_Td", [100.0, 120.0, 200.0, 300.0])
 def test_air_ionization_coefficient_matches_morrow_lowke(air, reduced_field_Td):
     alpha = air(reduced_field_Td).alpha_N
@@ -165,6 +169,7 @@ def test_air_ionization_coefficient_matches_morrow_lowke(air, reduced_field_Td):
 
 
 @pytest.mark.slow
+@pytest.mark.xdist_group("molecules-air")
 @pytest.mark.parametrize("reduced_field_Td", [100.0, 110.0, 120.0, 130.0])
 def test_air_attachment_coefficient_matches_morrow_lowke(air, reduced_field_Td):
     eta = air(reduced_field_Td).eta_N
@@ -187,6 +192,7 @@ def test_air_references_disagree_at_350_Td():
 
 
 @pytest.mark.slow
+@pytest.mark.xdist_group("molecules-air")
 @pytest.mark.parametrize("reduced_field_Td", [pytest.param(350.0, marks=REFERENCES_DISAGREE), 500.0])
 def test_air_ionization_coefficient_follows_townsend_formula(air, reduced_field_Td):
     # 30 %: the accuracy of a two-parameter fit (common practice)
@@ -201,6 +207,7 @@ def _critical_field_Td(fields, alpha, eta) -> float:
 
 
 @pytest.mark.slow
+@pytest.mark.xdist_group("molecules-air")
 def test_air_critical_reduced_field(air):
     results = [air(f) for f in CRITICAL_FIELDS_Td]
     alpha = [r.alpha_N for r in results]
@@ -228,6 +235,7 @@ def air_lisbon():
 
 
 @pytest.mark.slow
+@pytest.mark.xdist_group("molecules-air-lisbon")
 @pytest.mark.parametrize("reduced_field_Td", [120.0, 200.0])
 def test_air_from_the_lisbon_sets_matches_morrow_lowke(air_lisbon, reduced_field_Td):
     # A data-set comparison: the alternative N2 and O2 sets meet the issue's tolerances against the Morrow & Lowke
