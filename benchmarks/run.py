@@ -281,9 +281,8 @@ def figure_reid(state: dict, budget: Budget) -> list[Row]:
     target, verdict = judge("reid_rate", rate)
     relaxed = "" if not result.anomalies.get("not_relaxed") else " (not relaxed: budget too small)"
     piecewise, _ = run_engine(reid_mixture(), REID_FIELD_Td, budget.reid_events, warmup=budget.warmup_events)
-    return [Row("avalanche events/s per core, Reid ramp 12 Td (constant trial frequency)", f"{rate:.3g}", target,
-                verdict),
-            Row("  (its mean energy [eV], flux W [m/s])",
+    return [Row("avalanche events/s per core, Reid ramp 12 Td", f"{rate:.3g}", target, verdict),
+            Row("  (constant trial frequency, as the C loop; its mean energy [eV], flux W [m/s])",
                 f"{estimate_text(result.mean_energy_eV)}, {estimate_text(result.drift_velocity_flux)}{relaxed}"),
             *real_collision_rows("Reid 12 Td, constant trial frequency", result, state),
             *real_collision_rows("Reid 12 Td, piecewise trial frequency (default)", piecewise, state)]
