@@ -7,6 +7,7 @@ import warnings
 
 import numpy as np
 import pytest
+from scipy import stats
 
 from avalanche import swarm
 from avalanche.gas.library import model_gas
@@ -42,8 +43,12 @@ def test_ionization_estimators_agree_on_argon():
 @pytest.mark.parametrize("gas, field_Td", [("Ar", 100.0), ("air", 120.0)])
 def test_every_rate_coefficient_agrees_with_its_count_and_is_less_noisy(gas, field_Td):
     # Every process's expected-value rate coefficient (Σ ν_k(ε)/ν*(t) over the trial events, from the linear node
-    # histogram) against the counted one, same run: 4 combined standard errors (3σ after a Bonferroni correction
-    # over the ~40 processes; the two are positively correlated, so this is conservative). Processes with fewer
+    # histogram) against the counted one, same run, at the false-alarm rate of 3σ after a Bonferroni correction over
+    # the ~40 processes. The standard errors are estimated from the spread of R = 16 replicas, so the difference
+    # over its estimated error follows Student's t with R − 1 degrees of freedom (Student 1908, Biometrika 6 1), not
+    # a normal law: the bound is the t quantile (5.4), not 4.0, which let about one run in twenty fail by chance
+    # (measured: |z| = 4.07 and 4.15 at 8e6 events for seeds 3 and 4, while at 4e7 events every |z| < 2.9 in both
+    # trial-frequency modes). The two are positively correlated, so this is conservative. Processes with fewer
     # than 30 collisions have no Gaussian counted error and are left out. For the rare processes (counted error
     # above 5 %) the expected value is the main lever of issue 13: a smaller error for each, 2× smaller or better
     # for the median one (ionization gains least, see avalanche.engine.estimators).
@@ -52,12 +57,14 @@ def test_every_rate_coefficient_agrees_with_its_count_and_is_less_noisy(gas, fie
         result = swarm(gas, field_Td, seed=3, precision=1e-9, electrons=2048, max_events=8e6)
     counts = result.tallies["process_counts"].sum(axis=0)
     keys = list(result.rate_coefficients)
+    replicas = result.tallies["process_counts"].shape[0]
+    bound = stats.t.isf(stats.norm.sf(3.0) / len(keys), replicas - 1)  # two-sided 3σ rate, Bonferroni over keys
     compared, gains = 0, []
     for k, key in enumerate(keys):
         if counts[k] < 30 or key.startswith("Penning "):
             continue
         expected, counted = result.rate_coefficients[key], result.rate_coefficients_counted[key]
-        assert abs(expected.value - counted.value) < 4 * math.hypot(expected.stderr, counted.stderr), key
+        assert abs(expected.value - counted.value) < bound * math.hypot(expected.stderr, counted.stderr), key
         compared += 1
         if counted.relative_stderr > 0.05:
             gains.append(expected.relative_stderr / counted.relative_stderr)

@@ -343,7 +343,10 @@ def test_einstein_relation_for_hard_spheres_at_low_field():
     # D_T/μ = kT/e (exact for any cross section and mass ratio). The drift velocity must stand out of the thermal
     # noise (W/v ~ 0.04) while the field heating M W²/2 stays small: light hard spheres (0.002 amu) at 300 K and
     # 0.2 Td heat the swarm by 0.9 % of 3kT/2, below the 2 % tolerance (with M = 4 amu the same W would heat it
-    # 2000 times more).
+    # 2000 times more). That heating is about three of the run's standard errors (0.34 %), so the 3σ check uses the
+    # generalized Einstein relation to first order in it, e D_T/K = k T_T, with k T_T = 2⟨ε⟩/3 for the nearly
+    # isotropic electrons (Mason E A & McDaniel E W 1988, Transport Properties of Ions in Gases, Wiley, ch. 5;
+    # from memory), the swarm's own transverse temperature measured in the same run (0.91 % above kT).
     mixture = hard_sphere_mixture(0.002, 300.0)
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")
@@ -354,7 +357,10 @@ def test_einstein_relation_for_hard_spheres_at_low_field():
     ratio = d.value / N_mu                       # D_T/μ [V]
     error = ratio * math.hypot(w.relative_stderr, d.relative_stderr)
     assert abs(ratio - kT_eV(300.0)) < 0.02 * kT_eV(300.0) + 1e-12, (ratio, error)
-    assert abs(ratio - kT_eV(300.0)) < 3 * error, (ratio, error)
+    kT_T = 2.0 / 3.0 * result.mean_energy_eV.value
+    assert 0.0 < kT_T / kT_eV(300.0) - 1.0 < 0.02  # the field heats the swarm a little
+    combined = math.hypot(error, 2.0 / 3.0 * result.mean_energy_eV.stderr)
+    assert abs(ratio - kT_T) < 3 * combined, (ratio, kT_T, combined)
     assert error < 0.007 * kT_eV(300.0)
 
 
