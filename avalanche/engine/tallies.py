@@ -30,7 +30,8 @@ FIELDS: dict[str, tuple[type, str, str, str]] = {
     "sampled_time_s": (np.float64, "", "s", "simulated time of the sampled chunks"),
     "created": (np.int64, "", "1", "electrons created by ionization"),
     "removed": (np.int64, "", "1", "electrons removed by attachment"),
-    "eedf_overflow": (np.int64, "", "1", "trial events above the last energy bin"),
+    "eedf_overflow": (np.int64, "", "1", "trial events above the last energy bin (unweighted diagnostic; the "
+                      "EEDF's overflow fraction comes from event_weights)"),
     "process_counts": (np.int64, "P", "1", "real collisions per process"),
     "extrapolated_counts": (np.int64, "P", "1", "real collisions beyond the process's table"),
     "eedf_counts": (np.float64, "B", "1", "weighted trial events per energy bin"),

@@ -116,6 +116,23 @@ def _moments_from_frame(m11, m12, m1p, m21, m22, m2p, mp1, mp2, mpp, bx, bz):
 
 
 @jit
+def _interval_rate(speed2, inv_cell_eV, n_cells, cell_interval, trial_rates, nu_star):
+    """The trial-frequency interval of an electron of squared speed ``speed2`` [m²/s²] (from its energy cell) and
+    that interval's (rate ν*(t) [s⁻¹], 1/ν*(t) [s], weight ν*/ν*(t))."""
+    interval = cell_interval[min(int(ENERGY_PER_SPEED2_eV * speed2 * inv_cell_eV), n_cells - 1)]
+    rate, inv_rate, weight = _rate_of(interval, trial_rates, nu_star)
+    return interval, rate, inv_rate, weight
+
+
+@jit
+def _rate_of(interval, trial_rates, nu_star):
+    """Interval ``interval``'s trial frequency ν*(t) [s⁻¹], its inverse [s] and the weight ν*/ν*(t)."""
+    rate = trial_rates[interval]
+    inv_rate = 1.0 / rate
+    return rate, inv_rate, nu_star * inv_rate
+
+
+@jit
 def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc, accel_ac, omega, phase,
                      inv_cell_eV, n_cells, nu_star, nu_total, nu_cumulative, action, loss_eV, electron_fraction,
                      target_fraction, thermal_speed, scatter, sharing, w_eV, table_max_eV, reference,
@@ -233,10 +250,8 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
             cos_theta = math.cos(omega * t + phase)
             sin_theta = math.sin(omega * t + phase)
         if variable:
-            interval = cell_interval[min(int(ENERGY_PER_SPEED2_eV * (vperp2 + uz * uz) * inv_cell_eV), n_cells - 1)]
-            rate = trial_rates[interval]
-            inv_rate = 1.0 / rate
-            weight = nu_star * inv_rate
+            interval, rate, inv_rate, weight = _interval_rate(vperp2 + uz * uz, inv_cell_eV, n_cells, cell_interval,
+                                                              trial_rates, nu_star)
         draw = True
         while True:
             if draw:  # the flight's optical depth at unit rate: exponential (Poisson trial events)
@@ -299,9 +314,7 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
             if step != 0:  # the electron reached an interval edge: the rest of the depth at the next rate
                 depth = max(depth - rate * tau, 0.0)
                 interval += step
-                rate = trial_rates[interval]
-                inv_rate = 1.0 / rate
-                weight = nu_star * inv_rate
+                rate, inv_rate, weight = _rate_of(interval, trial_rates, nu_star)
                 draw = False
                 continue
             # A trial event. Trial events are a Poisson process of rate ν*(t) (the rate in force) in time, so sums
@@ -405,11 +418,8 @@ def _advance_replica(r, x, y, z, vx, vy, vz, birth, count, rng, t0, t1, accel_dc
                         bin_process[pb, penning_slot[k]] += 1
             vperp2 = ux * ux + uy * uy
             if variable:
-                interval = cell_interval[min(int(ENERGY_PER_SPEED2_eV * (vperp2 + uz * uz) * inv_cell_eV),
-                                             n_cells - 1)]
-                rate = trial_rates[interval]
-                inv_rate = 1.0 / rate
-                weight = nu_star * inv_rate
+                interval, rate, inv_rate, weight = _interval_rate(vperp2 + uz * uz, inv_cell_eV, n_cells,
+                                                                  cell_interval, trial_rates, nu_star)
         if status != 0:
             break
         if alive:
