@@ -88,8 +88,8 @@ class Budget:
 
 FULL = Budget(reid_events=2e8, argon_events=1e8, c_events=2e8, thread_events=2e8, memory_electrons=1_000_000,
               warmup_events=2e6, run_sweeps=True)
-QUICK = Budget(reid_events=2e7, argon_events=1e7, c_events=2e7, thread_events=2e7, memory_electrons=1_000_000,
-               warmup_events=1e6, run_sweeps=False, convergence_events=1e7)
+QUICK = Budget(reid_events=5e6, argon_events=3e6, c_events=5e6, thread_events=5e6, memory_electrons=1_000_000,
+               warmup_events=5e5, run_sweeps=False, convergence_events=3e6)
 
 
 class NotAvailable(Exception):
@@ -662,7 +662,7 @@ def _limiting_error(result) -> str:
 def figure_convergence(state: dict, budget: Budget) -> list[Row]:
     """CPU seconds on one core to reach 1 % on every reported nonzero quantity, each point beside the 10 s target
     (the ratio is the measured time over the target). Full mode: the engine's default budget (1e9 events);
-    --quick: 1e7 events per point, so a point that needs more shows MISS with the error it reached."""
+    --quick: 3e6 events per point, so a point that needs more shows MISS with the error it reached."""
     swarm = engine_swarm()
     precision = CONVERGENCE_PRECISION
     rows = []

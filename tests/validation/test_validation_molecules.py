@@ -16,7 +16,7 @@ References (all recalled without access to the sources, "from memory"):
   the Morrow–Lowke fits cross at 108 Td).
 
 Every tolerance combines the reference's accuracy with three standard errors of the run, in quadrature
-(independent uncertainties). Each field is run once per module (module-scoped fixtures), with fixed seeds and
+(independent uncertainties). Each field is run once per test process (session-scoped fixtures), with fixed seeds and
 budgets capped by ``max_events``; the tests of one fixture share a test process (``xdist_group``), so that no
 field is run twice.
 """
@@ -69,13 +69,13 @@ class _Runs:
         return self.results[reduced_field_Td]
 
 
-@pytest.fixture(scope="module")
+@pytest.fixture(scope="session")  # kept for the session: test processes interleave modules
 def nitrogen():
     # the pressures of the Townsend formula are taken at HANDBOOK_TEMPERATURE_K (293 K)
     return _Runs(Mixture("N2", temperature_K=HANDBOOK_TEMPERATURE_K), seed=71)
 
 
-@pytest.fixture(scope="module")
+@pytest.fixture(scope="session")  # kept for the session: test processes interleave modules
 def air():
     return _Runs(Mixture("air", temperature_K=293.0), seed=72)
 
@@ -226,7 +226,7 @@ def test_air_critical_reduced_field(air):
 
 # --- dry air from the named alternative sets -------------------------------------------------------------------------
 
-@pytest.fixture(scope="module")
+@pytest.fixture(scope="session")  # kept for the session: test processes interleave modules
 def air_lisbon():
     # N2 and O2 of the Lisbon group (Loureiro & Ferreira 1986; Gousset et al. 1991, Alves et al. 2016), the default Ar
     mixture = Mixture("air", temperature_K=293.0, sets={"N2": "lisbon", "O2": "lisbon"})

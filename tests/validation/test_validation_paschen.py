@@ -61,16 +61,20 @@ def test_handbook_minimum_formula_matches_a_direct_minimisation():
     assert v[k] == pytest.approx(v_min, rel=1e-6, abs=0) and pd[k] == pytest.approx(pd_min, rel=1e-3, abs=0)
 
 
+_COMPUTED: dict = {}
+"""The Paschen curves made so far in this test process: kept for the whole session, so that a module fixture torn
+down between the two tests of a gas (the test processes interleave modules) never computes a curve twice."""
+
+
 @pytest.fixture(scope="module")
-def curves() -> dict:
-    """The computed Paschen curve of each gas, made on first use and kept for the module."""
-    computed = {}
+def curves():
+    """The computed Paschen curve of each gas, made on first use and kept for the session."""
 
     def curve(gas: str):
-        if gas not in computed:
+        if gas not in _COMPUTED:
             with pytest.warns(Warning):  # parts of the p d range fall outside the table: those voltages are NaN
-                computed[gas] = sst_paschen_curve(gas)
-        return computed[gas]
+                _COMPUTED[gas] = sst_paschen_curve(gas)
+        return _COMPUTED[gas]
 
     return curve
 
