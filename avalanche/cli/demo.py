@@ -17,8 +17,9 @@ Scenario (our own): the fill gas of an argon lamp cell, 300 K and 1 kPa. The dem
    file — with its caution. (The diffusion-corrected α/N of the sweep has α/E nearly flat from 800 to 1800 Td,
    within its errors, so the Paschen minimum could not be placed inside the table; ν_iz/(N W) peaks near 800 Td.)
 
-and prints where each output went. It needs about 110 s of CPU time (:data:`DEMO_CPU_SECONDS`), the sweep shared
-by 2 worker processes: about a minute on 2 idle cores (67 s measured), longer on a busy machine.
+and prints where each output went. It needs about 80 s of CPU time (:data:`DEMO_CPU_SECONDS`), the sweep shared
+by 2 worker processes: under a minute on 2 idle cores (48 s measured), longer on a busy machine; the first run
+after installing also compiles the kernels (about 70 s more CPU).
 """
 
 from __future__ import annotations
@@ -39,9 +40,9 @@ practice)."""
 DEMO_PD_TORR_CM = "0.6:16:25"
 """p d range of the demo's Paschen curve [Torr cm]: both branches around the minimum (near 1.6 Torr cm with the
 published argon set); at 20 Torr cm the breakdown field falls below the sweep's lowest field (100 Td)."""
-DEMO_CPU_SECONDS = 110
-"""CPU time of ``avalanche demo`` (user + system, worker processes included): 105 s measured with /usr/bin/time on
-the idle 2-core development machine (67 s wall), rounded up; the README states it."""
+DEMO_CPU_SECONDS = 80
+"""CPU time of ``avalanche demo`` (user + system, worker processes included): 77 s measured with /usr/bin/time on
+the idle 2-core development machine (48 s wall) with the kernels compiled, rounded up; the README states it."""
 DEMO_AC_FREQUENCY_Hz = 13.56e6
 DEMO_AC_AMPLITUDE_Td = 300.0
 """The demo's AC point: the 13.56 MHz industrial band, field amplitude E_0/N [Td]."""
@@ -65,11 +66,11 @@ pressure_Pa = 1000.0
 reduced_field_Td = [{", ".join(f"{f:g}" for f in DEMO_FIELDS_Td)}]
 
 [engine]
-# a demo budget: with the 37 resolved argon levels most points end by it before every rate coefficient reaches 2 %;
-# 2048 electrons leave each of them enough collisions to relax within the first half of the budget
+# a demo budget: the points from 300 to 1200 Td reach 2 % on every reported quantity before it; 100, 200 and 1800 Td
+# end by it (their worst quantity, the bulk N D_L or alpha/N, at 3-5 %); 2048 electrons relax within its first half
 precision = 0.02
 electrons = 2048
-max_events = 20_000_000
+max_events = 10_000_000
 """
 
 
@@ -144,7 +145,7 @@ def run_ac_point(path: Path) -> Path:
 
     mixture = Mixture("Ar", temperature_K=300.0, pressure_Pa=1000.0)
     result = swarm(mixture, DEMO_AC_AMPLITUDE_Td, frequency_Hz=DEMO_AC_FREQUENCY_Hz, phase_bins=16, seed=3,
-                   precision=0.03, electrons=2048, max_events=100_000_000)
+                   precision=0.03, electrons=2048, max_events=40_000_000)
     regime = result.regime
     print(f"      regime: {regime['verdict']} (omega/nu_m = {regime['omega_over_nu_m']:.3g}, omega/nu_energy = "
           f"{regime['omega_over_nu_energy']:.3g}, E_eff/N = {regime['effective_field_Td']:.4g} Td)")
