@@ -17,8 +17,8 @@ References (all recalled without access to the sources, "from memory"):
 
 Every tolerance combines the reference's accuracy with three standard errors of the run, in quadrature
 (independent uncertainties). Each field is run once per test process (session-scoped fixtures), with fixed seeds and
-budgets capped by ``max_events``; the tests of one fixture share a test process (``xdist_group``), so that no
-field is run twice.
+budgets capped by ``max_events``. The ``xdist_group`` marks ask for the tests of one fixture to share a test
+process; with pytest 9 they do not (see DEVELOPERS.md), so a field may be run once in each of the two processes.
 """
 
 from __future__ import annotations
